@@ -1,0 +1,1 @@
+"""Command-line interface (thin: parse, call the library, print)."""

@@ -1,0 +1,41 @@
+"""The ``atticsim`` command group. Heavy libraries are imported inside the commands that need them."""
+
+from __future__ import annotations
+
+import sys
+
+import click
+
+from atticsim import __version__
+
+
+class AtticsimGroup(click.Group):
+    """Turns the library's input errors into one line on stderr and exit status 2."""
+
+    def invoke(self, ctx):
+        try:
+            return super().invoke(ctx)
+        except (click.exceptions.Exit, click.exceptions.Abort, click.ClickException):
+            raise
+        except (ValueError, FileExistsError, FileNotFoundError) as exc:
+            click.echo(f"atticsim: error: {exc}", err=True)
+            sys.exit(2)
+
+
+@click.group(cls=AtticsimGroup, context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, prog_name="atticsim")
+def cli():
+    """Simulate an attic with a thermostat-switched ventilation fan.
+
+    Temperatures over time, every fan start and stop at the moment it happens, and a season's
+    figures (run hours, starts, kWh, ceiling heat gain with and without the fan).
+    """
+
+
+def _register():
+    from atticsim.cli.run import run
+
+    cli.add_command(run)
+
+
+_register()

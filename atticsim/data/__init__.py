@@ -1,0 +1,1 @@
+"""Data shipped inside the package (the built-in demo house)."""

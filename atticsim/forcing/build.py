@@ -1,0 +1,161 @@
+"""Turn a weather frame and a scenario into forcing arrays on one regular time base.
+
+The result, :class:`Forcing`, holds for each weather instant the outdoor air temperature, the sky
+temperature, the wind speed and the irradiance on each roof plane; between instants the network sees
+them linearly interpolated.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from atticsim.forcing.sky import (sky_temperature_berdahl_martin, sky_temperature_from_ir,
+                                  sky_temperature_swinbank)
+from atticsim.forcing.solar import plane_irradiance, solar_position
+
+
+@dataclass
+class Forcing:
+    """Forcing channels sampled at regular instants.
+
+    Attributes
+    ----------
+    times : pandas.DatetimeIndex
+        Sample instants (tz-aware).
+    step : float
+        Sample step [s].
+    values : numpy.ndarray
+        Shape (channels, n): temp_out [degC], temp_sky_k [K], wind_speed [m/s], then one plane-of-array
+        irradiance row per plane [W/m^2].
+    channels : list of str
+        Channel names.
+    notes : list of str
+        What was decided while building (site used, sky model).
+    """
+
+    times: pd.DatetimeIndex
+    step: float
+    values: np.ndarray
+    channels: list[str]
+    notes: list[str]
+
+    def seconds(self) -> np.ndarray:
+        """Sample instants as seconds from the first sample."""
+        return np.arange(self.values.shape[1]) * self.step
+
+    def at(self, t: float) -> np.ndarray:
+        """Channels at time t [s from the first sample], linearly interpolated (clamped at the ends)."""
+        x = t / self.step
+        i = int(x)
+        n = self.values.shape[1]
+        if i >= n - 1:
+            return self.values[:, -1].copy()
+        if i < 0:
+            return self.values[:, 0].copy()
+        frac = x - i
+        v = self.values
+        return v[:, i] + frac * (v[:, i + 1] - v[:, i])
+
+    def sample(self, t: np.ndarray) -> np.ndarray:
+        """Channels at many times t [s], shape (channels, len(t))."""
+        grid = self.seconds()
+        return np.vstack([np.interp(t, grid, row) for row in self.values])
+
+
+def _regular_step(times: pd.DatetimeIndex, source: str) -> float:
+    steps = np.asarray((times[1:] - times[:-1]).total_seconds(), dtype=float)
+    if len(steps) == 0:
+        raise ValueError(f"{source}: time: need at least two weather samples in the period")
+    if not np.allclose(steps, steps[0]):
+        raise ValueError(f"{source}: time: weather samples must be evenly spaced")
+    return float(steps[0])
+
+
+def period_bounds(frame: pd.DataFrame, start: str | None, end: str | None, source: str):
+    """Resolve a period from ISO strings in the weather's time zone.
+
+    A date without a time for ``end`` means the whole of that day (end inclusive).
+    Returns (start, end) tz-aware timestamps.
+    """
+    tz = frame.index.tz
+
+    def parse(text, is_end):
+        try:
+            ts = pd.Timestamp(text)
+        except (ValueError, TypeError):
+            raise ValueError(f"{source}: {'end' if is_end else 'start'}: not a date or time: {text!r}") from None
+        date_only = len(str(text).strip()) <= 10
+        ts = ts.tz_localize(tz) if ts.tzinfo is None else ts.tz_convert(tz)
+        if is_end and date_only:
+            ts += pd.Timedelta("1D")
+        return ts
+
+    t0 = parse(start, False) if start else frame.index[0]
+    t1 = parse(end, True) if end else frame.index[-1]
+    if not t1 > t0:
+        raise ValueError(f"{source}: end: the period must end after it starts ({t0} .. {t1})")
+    if t0 < frame.index[0] or t1 > frame.index[-1]:
+        raise ValueError(f"{source}: period {t0} .. {t1} is outside the weather data "
+                         f"({frame.index[0]} .. {frame.index[-1]})")
+    return t0, t1
+
+
+def build_forcing(frame: pd.DataFrame, meta, scenario, start=None, end=None, source="weather") -> Forcing:
+    """Forcing for the scenario's roof over [start, end] from a normalised weather frame.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Normalised weather frame (see ``atticsim.io``), tz-aware index.
+    meta : object
+        Weather metadata with latitude, longitude, altitude (None where the file has no site).
+    scenario : Scenario
+        The validated scenario (roof planes, site, sky model).
+    start, end : pandas.Timestamp, optional
+        Period; default the whole frame.
+    source : str
+        Name of the weather source for messages.
+    """
+    t0 = start if start is not None else frame.index[0]
+    t1 = end if end is not None else frame.index[-1]
+    # Keep one sample on each side so the period is covered by interpolation.
+    idx = frame.index
+    i0 = max(int(idx.searchsorted(t0, side="right")) - 1, 0)
+    i1 = min(int(idx.searchsorted(t1, side="left")), len(idx) - 1)
+    part = frame.iloc[i0:i1 + 1]
+    step = _regular_step(part.index, source)
+    notes = []
+
+    site = scenario.site
+    lat, lon, alt = site.latitude, site.longitude, site.altitude
+    if getattr(meta, "latitude", None) is not None and getattr(meta, "longitude", None) is not None:
+        if abs(meta.latitude - lat) > 0.01 or abs(meta.longitude - lon) > 0.01:
+            notes.append(f"sun computed for the weather file's site ({meta.latitude:.3f} N, "
+                         f"{meta.longitude:.3f} E), not the scenario's ({lat:.3f} N, {lon:.3f} E)")
+        lat, lon = meta.latitude, meta.longitude
+        alt = meta.altitude if getattr(meta, "altitude", None) is not None else alt
+
+    temp = part["temp_air"].to_numpy(float)
+    dew = part["temp_dew"].to_numpy(float)
+    sky_ir = part["sky_ir"].to_numpy(float) if "sky_ir" in part else np.full(len(part), np.nan)
+    if np.all(np.isfinite(sky_ir)):
+        t_sky = sky_temperature_from_ir(sky_ir)
+        notes.append("sky temperature from the weather file's long-wave column")
+    elif scenario.weather.sky_model == "swinbank":
+        t_sky = sky_temperature_swinbank(temp)
+        notes.append("sky temperature: Swinbank (1963)")
+    else:
+        t_sky = sky_temperature_berdahl_martin(temp, dew)
+        notes.append("sky temperature: Berdahl & Martin (1984), clear-sky form")
+
+    pressure = part["pressure"].to_numpy(float) if "pressure" in part else None
+    solpos = solar_position(part.index, lat, lon, alt, pressure=pressure, temperature=temp)
+    poa = plane_irradiance(part.index, part["ghi"], part["dni"], part["dhi"], lat, lon,
+                           [(p.tilt, p.azimuth) for p in scenario.roof.planes], altitude=alt,
+                           albedo=site.ground_albedo, solpos=solpos)
+    values = np.vstack([temp, t_sky, part["wind_speed"].to_numpy(float), poa])
+    channels = ["temp_out", "temp_sky_k", "wind_speed"] + [f"poa_{p.name}" for p in scenario.roof.planes]
+    return Forcing(times=part.index, step=step, values=values, channels=channels, notes=notes)

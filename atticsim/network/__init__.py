@@ -1,0 +1,1 @@
+"""Thermal network: nodes, capacities and the heat flows between them."""

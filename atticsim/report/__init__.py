@@ -1,0 +1,1 @@
+"""Reports: plots and the terminal summary."""

@@ -1,0 +1,80 @@
+"""Figures of a run (matplotlib, drawn off-screen)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+
+
+def _intervals(index, fan_on):
+    """Contiguous on-intervals of a sampled fan state as (start, end) index labels."""
+    on = np.asarray(fan_on, dtype=bool)
+    if not on.any():
+        return []
+    edges = np.diff(np.concatenate([[0], on.astype(int), [0]]))
+    starts, ends = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1) - 1
+    return [(index[s], index[e]) for s, e in zip(starts, ends)]
+
+
+def plot_temperatures(result, path: str | Path, units: str = "si") -> None:
+    """Temperatures over the period with the fan's on-intervals shaded, and the heat rates below.
+
+    Parameters
+    ----------
+    result : SimulationResult
+        A finished run.
+    path : str or Path
+        PNG file to write.
+    units : {"si", "ip"}
+        degC/W or degF/Btu/h on the axes.
+    """
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.dates as mdates
+    import matplotlib.pyplot as plt
+
+    ts = result.timeseries
+    ip = units == "ip"
+    conv = (lambda c: c * 9.0 / 5.0 + 32.0) if ip else (lambda c: c)
+    tunit = "°F" if ip else "°C"
+    index = ts.index.tz_localize(None)
+
+    fig, (ax, ax2) = plt.subplots(2, 1, figsize=(12, 7.5), sharex=True,
+                                  gridspec_kw={"height_ratios": [3, 1.4]})
+    for a, b in _intervals(index, ts["fan_on"].to_numpy()):
+        ax.axvspan(a, b, color="#9ecae1", alpha=0.35, lw=0)
+        ax2.axvspan(a, b, color="#9ecae1", alpha=0.35, lw=0)
+    deck_cols = [c for c in ts.columns if c.startswith("deck_")]
+    for c in deck_cols:
+        ax.plot(index, conv(ts[c]), lw=1.0, label=f"roof deck, {c[5:-2]} plane")
+    ax.plot(index, conv(ts["attic_air_c"]), color="#d62728", lw=1.6, label="attic air")
+    ax.plot(index, conv(ts["sensor_c"]), color="#ff9896", lw=0.9, ls="--", label="sensor")
+    ax.plot(index, conv(ts["ceiling_top_c"]), color="#8c564b", lw=1.0, label="insulation top")
+    ax.plot(index, conv(ts["outdoor_air_c"]), color="#2ca02c", lw=1.2, label="outdoor air")
+    th = getattr(getattr(result.scenario, "thermostat", None), "on", None)
+    if th is not None:
+        ax.axhline(conv(result.scenario.thermostat.on), color="k", lw=0.7, ls=":", label="switch-on")
+        ax.axhline(conv(result.scenario.thermostat.off), color="0.4", lw=0.7, ls=":", label="switch-off")
+    ax.set_ylabel(f"temperature [{tunit}]")
+    s = result.summary
+    house = getattr(getattr(result.scenario, "house", None), "name", "")
+    ax.set_title(f"{house}: {s['fan_starts']} fan starts, {s['fan_run_hours']:.1f} h run "
+                 f"(shaded = fan on)", fontsize=11)
+    ax.grid(alpha=0.3)
+    ax.legend(loc="upper left", fontsize=8, ncol=4, framealpha=0.85)
+
+    k = 3.412142 if ip else 1.0  # W -> Btu/h
+    punit = "Btu/h" if ip else "W"
+    ax2.plot(index, ts["ceiling_heat_gain_w"] * k, color="#8c564b", lw=1.2, label="ceiling heat gain to rooms")
+    ax2.plot(index, -ts["ventilation_heat_w"] * k / 10.0, color="#1f77b4", lw=1.0,
+             label="heat carried out by ventilation / 10")
+    ax2.set_ylabel(f"heat rate [{punit}]")
+    ax2.grid(alpha=0.3)
+    ax2.legend(loc="upper left", fontsize=8, ncol=2, framealpha=0.85)
+    ax2.xaxis.set_major_formatter(mdates.DateFormatter("%m-%d\n%H:%M"))
+    ax2.set_xlabel(f"local standard time (UTC{ts.index[0].strftime('%z')[:3]})")
+    fig.tight_layout()
+    fig.savefig(path, dpi=110)
+    plt.close(fig)

@@ -1,0 +1,48 @@
+"""The short human summary printed on the terminal, in SI or IP units."""
+
+from __future__ import annotations
+
+from atticsim.report.cautions import caution_text
+from atticsim.units import IP_FACTORS, c_to_f, k_to_delta_f
+
+
+def summary_text(result, units: str = "si") -> str:
+    """A few lines a technician reads at a glance.
+
+    Parameters
+    ----------
+    result : SimulationResult
+    units : {"si", "ip"}
+    """
+    s = result.summary
+    ip = units == "ip"
+
+    def temp(c):
+        return f"{c_to_f(c):.1f} °F" if ip else f"{c:.1f} °C"
+
+    def energy(kwh):
+        if kwh is None:
+            return "n/a"
+        return f"{kwh * IP_FACTORS['energy_kwh'][0]:,.0f} Btu" if ip else f"{kwh:.2f} kWh"
+
+    sc = result.scenario
+    lines = [
+        f"{sc.house.name} — {s['period_start'][:10]} to {s['period_end'][:10]} ({s['days']:.1f} days)",
+        f"  fan: {s['fan_starts']} starts, {s['fan_run_hours']:.1f} h run, {s['fan_energy_kwh']:.2f} kWh electric",
+    ]
+    med = s["cycle_minutes_median"]
+    lines.append(f"  runs: median {med:.1f} min, {s['short_cycles']} shorter than "
+                 f"{s['short_cycle_threshold_min']:.0f} min" if med is not None else
+                 "  runs: no complete on/off cycle in the period")
+    rise = s["attic_air_max_c"] - s["outdoor_air_max_c"]
+    rise_txt = f"{k_to_delta_f(rise):+.1f} °F" if ip else f"{rise:+.1f} K"
+    lines.append(f"  attic air: max {temp(s['attic_air_max_c'])} ({rise_txt} vs outdoor max), "
+                 f"mean {temp(s['attic_air_mean_c'])}; roof deck max {temp(s['deck_max_c'])}")
+    gain, nofan = s["ceiling_heat_gain_kwh"], s["ceiling_heat_gain_no_fan_kwh"]
+    saved = f", {energy(nofan - gain)} kept out by the fan" if nofan is not None else ""
+    lines.append(f"  ceiling heat gain: {energy(gain)} with the fan, {energy(nofan)} without{saved}")
+    lines.append(f"  energy books close to {s['energy_balance_error_pct']:.2e} %")
+    for note in result.notes:
+        lines.append(f"  note: {note}")
+    lines.append(caution_text())
+    return "\n".join(lines)

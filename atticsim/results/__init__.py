@@ -1,0 +1,1 @@
+"""Results and metrics of a run."""

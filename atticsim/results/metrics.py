@@ -1,0 +1,184 @@
+"""Results and metrics: time series, switching events, fan cycles, energy books, summary and daily figures.
+
+Run-time figures come from the exact event times (not from sampled fan states); energies come from
+the books integrated with the states; temperatures' maxima and means come from the output samples.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from atticsim.constants import KELVIN
+from atticsim.network.model import BOOKS
+
+J_PER_KWH = 3.6e6
+
+
+@dataclass
+class SimulationResult:
+    """What one simulation gives back.
+
+    Attributes
+    ----------
+    summary : dict
+        Season figures (keys carry their units: ``fan_run_hours``, ``ceiling_heat_gain_kwh``...).
+    daily : pandas.DataFrame
+        The same figures per local day.
+    timeseries : pandas.DataFrame
+        States, flows and heat rates at each output step.
+    events : pandas.DataFrame
+        Every fan switch: time, new state, sensor temperature.
+    notes : list of str
+        What the run decided or repaired (site used, sky model, weather repairs).
+    """
+
+    summary: dict
+    daily: pd.DataFrame
+    timeseries: pd.DataFrame
+    events: pd.DataFrame
+    notes: list = field(default_factory=list)
+    scenario: object = None
+
+
+def fan_intervals(events, fan_at_start: bool, t_start: float, t_end: float):
+    """On-intervals [(t_on, t_off, complete)] from the event list; complete=False where an interval is
+    cut by the period's start or end."""
+    intervals, t_on, complete_start = [], (t_start if fan_at_start else None), False
+    for t, state, _ in events:
+        if state and t_on is None:
+            t_on, complete_start = t, True
+        elif not state and t_on is not None:
+            intervals.append((t_on, t, complete_start))
+            t_on = None
+    if t_on is not None:
+        intervals.append((t_on, t_end, False))
+    return intervals
+
+
+def energy_balance_error_pct(capacities, y_start, y_end, books_end, n_nodes) -> float:
+    """Closure of the building's energy books [% of gross exchange].
+
+    stored = sum C_i (T_i,end - T_i,start) over the building nodes; in = solar + sky + ground + exterior
+    convection + ventilation - ceiling gain; error = (in - stored) / (sum of |book|) * 100.
+    """
+    caps = capacities[:n_nodes - 1]  # the sensor (last node) is outside the building books
+    stored = float(np.sum(caps * (y_end[:n_nodes - 1] - y_start[:n_nodes - 1])))
+    b = dict(zip(BOOKS, books_end))
+    inflow = b["solar"] + b["sky"] + b["ground"] + b["exterior_convection"] + b["ventilation"] - b["ceiling_gain"]
+    gross = sum(abs(b[k]) for k in BOOKS if k != "fan_electric")
+    return 100.0 * (inflow - stored) / gross if gross > 0 else 0.0
+
+
+def _cycle_figures(intervals, short_cycle):
+    runs = np.array([b - a for a, b, complete in intervals if complete])
+    return {
+        "short_cycles": int(np.sum(runs < short_cycle)) if runs.size else 0,
+        "cycle_minutes_median": float(np.median(runs) / 60.0) if runs.size else None,
+    }
+
+
+def build_result(scenario, raw) -> SimulationResult:
+    """Assemble the result of :func:`atticsim.simulate.run.run_raw`."""
+    net, forcing, period = raw.network, raw.forcing, raw.period
+    run, nofan = raw.with_fan, raw.without_fan
+    n = net.n_nodes
+    idx = net.index
+    times = forcing.times[0] + pd.to_timedelta(run.t, unit="s")
+    temps = run.y[:n]
+    f = forcing.sample(run.t)
+    q = net.flows(temps, f, run.fan)
+
+    cols = {"outdoor_air_c": f[0], "sky_c": f[1] - KELVIN, "wind_speed_m_s": f[2]}
+    for i, p in enumerate(net.plane_names):
+        cols[f"poa_{p}_w_m2"] = f[3 + i]
+    for name, i in idx.items():
+        cols[("attic_air" if name == "air" else name) + "_c"] = temps[i]
+    cols["fan_on"] = run.fan.astype(int)
+    cols["ventilation_flow_m3_s"] = q["ventilation_flow"] * np.ones(run.t.size)
+    cols["solar_absorbed_w"] = q["solar"].sum(axis=0)
+    cols["roof_longwave_w"] = (q["sky"] + q["ground"]).sum(axis=0)
+    cols["roof_convection_w"] = q["exterior_convection"].sum(axis=0)
+    cols["ventilation_heat_w"] = q["ventilation"]
+    cols["ceiling_heat_gain_w"] = q["ceiling_gain"]
+    cols["fan_power_w"] = q["fan_electric"] * np.ones(run.t.size)
+    ts = pd.DataFrame(cols, index=pd.DatetimeIndex(times, name="time"))
+
+    ev_times = forcing.times[0] + pd.to_timedelta([e[0] for e in run.events], unit="s")
+    events = pd.DataFrame({
+        "time": ev_times,
+        "fan": ["on" if e[1] else "off" for e in run.events],
+        "sensor_c": [e[2] for e in run.events],
+    })
+
+    fan_start = bool(run.fan[0]) if run.fan.size else False
+    intervals = fan_intervals(run.events, fan_start, period.t_start, period.t_end)
+    sim = scenario.simulation
+    books = dict(zip(BOOKS, run.y_end[n:]))
+    books_nf = dict(zip(BOOKS, nofan.y_end[n:])) if nofan is not None else None
+    run_seconds = sum(b - a for a, b, _ in intervals)
+    summary = {
+        "period_start": period.start.isoformat(),
+        "period_end": period.end.isoformat(),
+        "days": (period.t_end - period.t_start) / 86400.0,
+        "fan_run_hours": run_seconds / 3600.0,
+        "fan_starts": int(sum(1 for e in run.events if e[1])),
+        "fan_energy_kwh": books["fan_electric"] / J_PER_KWH,
+        **_cycle_figures(intervals, sim.short_cycle),
+        "attic_air_max_c": float(np.max(temps[idx["air"]])),
+        "attic_air_mean_c": float(np.mean(temps[idx["air"]])),
+        "outdoor_air_max_c": float(np.max(f[0])),
+        "deck_max_c": float(np.max(temps[net.n_planes:2 * net.n_planes])),
+        "sensor_max_c": float(np.max(temps[idx["sensor"]])),
+        "ceiling_heat_gain_kwh": books["ceiling_gain"] / J_PER_KWH,
+        "ceiling_heat_gain_no_fan_kwh": books_nf["ceiling_gain"] / J_PER_KWH if books_nf else None,
+        "solar_absorbed_kwh": books["solar"] / J_PER_KWH,
+        "ventilation_heat_removed_kwh": -books["ventilation"] / J_PER_KWH,
+        "energy_balance_error_pct": energy_balance_error_pct(net.capacities, raw.y_start_fan, run.y_end,
+                                                             run.y_end[n:], n),
+        "energy_balance_error_no_fan_pct": (energy_balance_error_pct(
+            net.capacities, raw.y_start_nofan, nofan.y_end, nofan.y_end[n:], n) if nofan else None),
+        "short_cycle_threshold_min": sim.short_cycle / 60.0,
+    }
+    daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n)
+    notes = list(raw.notes)
+    return SimulationResult(summary, daily, ts, events, notes, scenario)
+
+
+def _daily(ts, run, nofan, intervals, forcing, period, short_cycle, n):
+    """Per local day: run hours, starts, short cycles, median cycle, kWh, attic max/mean, ceiling gains."""
+    base = forcing.times[0]
+    day0 = period.start.normalize()
+    edges = pd.date_range(day0, period.end + pd.Timedelta("1D"), freq="1D")
+    edges = edges[(edges >= day0)]
+    rows = []
+
+    def cum(book_series_run, t):
+        return np.interp(t, book_series_run.t, book_series_run.y[n + BOOKS.index("ceiling_gain")])
+
+    for a, b in zip(edges[:-1], edges[1:]):
+        lo = max((a - base).total_seconds(), period.t_start)
+        hi = min((b - base).total_seconds(), period.t_end)
+        if hi <= lo:
+            continue
+        day_iv = [(max(s, lo), min(e, hi), c) for s, e, c in intervals if e > lo and s < hi]
+        started = [(s, e, c) for s, e, c in intervals if lo <= s < hi]
+        sel = ts[(ts.index >= a) & (ts.index < b)]
+        row = {
+            "date": a.date().isoformat(),
+            "fan_run_hours": sum(e - s for s, e, _ in day_iv) / 3600.0,
+            "fan_starts": sum(1 for t, st, _ in run.events if st and lo <= t < hi),
+            **_cycle_figures(started, short_cycle),
+            "fan_energy_kwh": (np.interp(hi, run.t, run.y[n + BOOKS.index("fan_electric")])
+                               - np.interp(lo, run.t, run.y[n + BOOKS.index("fan_electric")])) / J_PER_KWH,
+            "attic_air_max_c": float(sel["attic_air_c"].max()) if len(sel) else None,
+            "attic_air_mean_c": float(sel["attic_air_c"].mean()) if len(sel) else None,
+            "outdoor_air_max_c": float(sel["outdoor_air_c"].max()) if len(sel) else None,
+            "ceiling_heat_gain_kwh": (cum(run, hi) - cum(run, lo)) / J_PER_KWH,
+            "ceiling_heat_gain_no_fan_kwh": ((cum(nofan, hi) - cum(nofan, lo)) / J_PER_KWH
+                                             if nofan is not None else None),
+        }
+        rows.append(row)
+    return pd.DataFrame(rows)

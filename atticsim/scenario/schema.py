@@ -1,0 +1,210 @@
+"""The scenario schema: every key a scenario TOML file may hold, its unit and its default.
+
+Quantities accept a bare number in the SI unit named in the field description, or a string with a
+unit ("1200 cfm", "38 degC", "R-38", "6/12"). Unknown keys are rejected. All values are held as SI
+floats after validation.
+"""
+
+from __future__ import annotations
+
+from typing import Annotated, Literal, Union
+
+from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, model_validator
+
+from atticsim.materials import MATERIALS
+from atticsim.units import to_si
+
+
+def _q(kind: str):
+    def convert(value):
+        return to_si(value, kind)
+
+    return BeforeValidator(convert)
+
+
+Length = Annotated[float, _q("length")]
+Area = Annotated[float, _q("area")]
+Volume = Annotated[float, _q("volume")]
+Flow = Annotated[float, _q("flow")]
+Power = Annotated[float, _q("power")]
+Temperature = Annotated[float, _q("temperature")]
+TempDiff = Annotated[float, _q("temperature_difference")]
+Duration = Annotated[float, _q("time")]
+Angle = Annotated[float, _q("angle")]
+Mass = Annotated[float, _q("mass")]
+Density = Annotated[float, _q("density")]
+Conductivity = Annotated[float, _q("conductivity")]
+SpecificHeat = Annotated[float, _q("specific_heat")]
+RValue = Annotated[float, _q("r_value")]
+Conductance = Annotated[float, _q("conductance")]
+Pressure = Annotated[float, _q("pressure")]
+Fraction = Annotated[float, _q("dimensionless")]
+# TOML dates (2025-07-01) and date-times arrive as date objects; keep them as ISO text.
+DateText = Annotated[str, BeforeValidator(lambda v: v.isoformat() if hasattr(v, "isoformat") else v)]
+
+
+class _Model(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+
+class House(_Model):
+    """Free-text description of the (fictional or real) house."""
+
+    name: str = "unnamed house"
+    note: str = ""
+
+
+class Site(_Model):
+    """Where the house is; used for the sun when the weather file does not say."""
+
+    name: str = "unnamed site"
+    latitude: Angle = Field(ge=-90.0, le=90.0, description="degrees north")
+    longitude: Angle = Field(ge=-180.0, le=180.0, description="degrees east")
+    altitude: Length = Field(0.0, ge=-500.0, le=9000.0, description="m above sea level")
+    utc_offset: float = Field(ge=-12.0, le=14.0, description="h, local standard time minus UTC")
+    ground_albedo: Fraction = Field(0.2, ge=0.0, le=1.0, description="solar reflectance of the ground")
+
+
+class Weather(_Model):
+    """Weather input and the simulated period."""
+
+    file: str = Field(description="weather file path (relative to the scenario file) or 'demo:NAME'")
+    start: DateText | None = Field(None, description="first day or instant (ISO 8601, local standard time)")
+    end: DateText | None = Field(None, description="last day (inclusive) or end instant (ISO 8601)")
+    sky_model: Literal["berdahl-martin", "swinbank"] = "berdahl-martin"
+
+
+class Layer(_Model):
+    """One roof layer: a named material with optional overrides."""
+
+    material: str
+    thickness: Length | None = Field(None, gt=0.0)
+    density: Density | None = Field(None, gt=0.0)
+    conductivity: Conductivity | None = Field(None, gt=0.0)
+    specific_heat: SpecificHeat | None = Field(None, gt=0.0)
+
+    @model_validator(mode="after")
+    def _known_material(self):
+        if self.material not in MATERIALS:
+            raise ValueError(f"unknown material {self.material!r}; known: {', '.join(sorted(MATERIALS))}")
+        return self
+
+    def prop(self, name: str) -> float:
+        """The layer's property in SI: the override if given, else the material default."""
+        value = getattr(self, name)
+        return MATERIALS[self.material][name] if value is None else value
+
+
+class Plane(_Model):
+    """One roof plane."""
+
+    name: str
+    area: Area = Field(gt=0.0, description="m2, sloped area")
+    tilt: Angle = Field(ge=0.0, lt=90.0, description="degrees from horizontal, or pitch 'rise/12'")
+    azimuth: Angle = Field(ge=0.0, le=360.0, description="degrees clockwise from north the plane faces")
+    perimeter: Length | None = Field(None, gt=0.0, description="m; default 4*sqrt(area)")
+
+
+class Roof(_Model):
+    """Roof planes, their layers and surface properties."""
+
+    planes: list[Plane] = Field(min_length=1)
+    covering: Layer = Layer(material="asphalt-shingle")
+    sheathing: Layer = Layer(material="osb")
+    absorptance: Fraction = Field(0.92, gt=0.0, le=1.0, description="solar absorptance of the covering")
+    emittance: Fraction = Field(0.90, gt=0.0, le=1.0, description="thermal emittance of the covering")
+    underside_emittance: Fraction = Field(0.90, gt=0.0, le=1.0,
+                                          description="thermal emittance of the deck underside")
+    roughness: Literal["very-rough", "rough", "medium-rough", "medium-smooth", "smooth",
+                       "very-smooth"] = "rough"
+
+
+class Attic(_Model):
+    """The attic volume and its framing."""
+
+    floor_area: Area = Field(gt=0.0, description="m2, attic floor = ceiling area")
+    volume: Volume = Field(gt=0.0, description="m3 of attic air")
+    framing_mass: Mass = Field(gt=0.0, description="kg of wood framing (rafters, trusses, gables)")
+    framing_area: Area = Field(gt=0.0, description="m2 of framing surface exposed to attic air")
+    floor_emittance: Fraction = Field(0.90, gt=0.0, le=1.0,
+                                      description="thermal emittance of the insulation top")
+
+
+class Ceiling(_Model):
+    """Insulation over gypsum, with the rooms below held at a setpoint."""
+
+    insulation: RValue = Field(gt=0.0, description="m2K/W, or 'R-38' (IP) / 'RSI 6.7'")
+    insulation_density: Density = Field(12.0, gt=0.0)
+    gypsum: Layer = Layer(material="gypsum")
+    room_temperature: Temperature = Field(24.0, ge=5.0, le=40.0,
+                                          description="degC, cooling setpoint of the rooms below")
+    room_film: RValue = Field(0.16, gt=0.0,
+                              description="m2K/W, room-side surface film (heat flow down, still air)")
+
+
+class Vents(_Model):
+    """Passive ventilation (baseline air change with the fan off)."""
+
+    passive_ach: float = Field(1.5, ge=0.0, le=60.0, description="attic air changes per hour")
+
+
+class Fan(_Model):
+    """The powered attic ventilator."""
+
+    enabled: bool = True
+    flow: Flow = Field(gt=0.0, description="m3/s delivered when running, or '1200 cfm'")
+    power: Power = Field(gt=0.0, description="W electric when running")
+
+
+class Sensor(_Model):
+    """The thermistor's thermal behaviour: a small mass coupled to attic air."""
+
+    time_constant: Duration = Field(20.0, gt=0.0, le=3600.0, description="s, in attic air")
+    dissipation_constant: Conductance = Field(0.0015, gt=0.0, description="W/K, to attic air")
+    self_heating: Power = Field(0.0, ge=0.0, le=1.0, description="W dissipated in the sensor")
+
+
+class SetpointThermostat(_Model):
+    """An ideal comparator with hysteresis, given as switch-on and switch-off sensor temperatures."""
+
+    kind: Literal["setpoints"]
+    mode: Literal["heat", "cold"] = "heat"
+    on: Temperature = Field(ge=-40.0, le=120.0)
+    off: Temperature = Field(ge=-40.0, le=120.0)
+
+    @model_validator(mode="after")
+    def _order(self):
+        if self.mode == "heat" and not self.off < self.on:
+            raise ValueError(f"heat mode needs off < on (got on {self.on:g} degC, off {self.off:g} degC)")
+        if self.mode == "cold" and not self.on < self.off:
+            raise ValueError(f"cold mode needs on < off (got on {self.on:g} degC, off {self.off:g} degC)")
+        return self
+
+
+Thermostat = Annotated[Union[SetpointThermostat], Field(discriminator="kind")]
+
+
+class Simulation(_Model):
+    """Numerical and reporting settings."""
+
+    output_step: Duration = Field(60.0, gt=0.0, le=3600.0, description="s between output rows")
+    short_cycle: Duration = Field(300.0, gt=0.0, description="s; runs shorter than this are short cycles")
+    spinup_days: int = Field(2, ge=0, le=30, description="days of the first day repeated before the period")
+    rtol: float = Field(1e-6, gt=0.0, le=1e-2)
+    max_step: Duration = Field(300.0, gt=0.0, le=3600.0, description="s, largest integrator step")
+
+
+class Scenario(_Model):
+    """A complete scenario."""
+
+    house: House = House()
+    site: Site
+    weather: Weather
+    roof: Roof
+    attic: Attic
+    ceiling: Ceiling
+    vents: Vents = Vents()
+    fan: Fan
+    sensor: Sensor = Sensor()
+    thermostat: Thermostat
+    simulation: Simulation = Simulation()

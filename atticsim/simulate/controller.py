@@ -1,0 +1,53 @@
+"""Thermostat controllers as blocks with a discrete state (fan on/off) that switches on events.
+
+A controller tells the event loop which sensor temperature ends the present state and in which
+direction the sensor must cross it. The switching itself is exact: the loop finds the crossing
+instant by root finding on the integrator's dense output.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class HysteresisController:
+    """An ideal comparator with hysteresis.
+
+    ``mode="heat"``: the fan switches on when the sensor rises to ``on`` and off when it falls to
+    ``off`` (off < on). ``mode="cold"``: on when the sensor falls to ``on``, off when it rises to
+    ``off`` (on < off).
+
+    Parameters
+    ----------
+    mode : {"heat", "cold"}
+    on, off : float
+        Switching sensor temperatures [degC].
+    """
+
+    mode: str
+    on: float
+    off: float
+
+    def __post_init__(self):
+        if self.mode not in ("heat", "cold"):
+            raise ValueError(f"mode must be 'heat' or 'cold', got {self.mode!r}")
+        if self.mode == "heat" and not self.off < self.on:
+            raise ValueError("heat mode needs off < on")
+        if self.mode == "cold" and not self.on < self.off:
+            raise ValueError("cold mode needs on < off")
+
+    def initial_state(self, sensor_temp: float) -> bool:
+        """Fan state at the start: on only if the sensor is already beyond the switch-on point."""
+        return sensor_temp >= self.on if self.mode == "heat" else sensor_temp <= self.on
+
+    def next_switch(self, fan_on: bool) -> tuple[float, int]:
+        """(sensor temperature, crossing direction +1 rising / -1 falling) that ends the present state."""
+        sign = 1 if self.mode == "heat" else -1
+        return (self.off, -sign) if fan_on else (self.on, sign)
+
+
+def controller_from_scenario(scenario) -> HysteresisController:
+    """The controller a scenario's ``[thermostat]`` table describes."""
+    th = scenario.thermostat
+    return HysteresisController(mode=th.mode, on=th.on, off=th.off)

@@ -1,0 +1,133 @@
+"""Run a scenario: weather -> forcing -> network -> hybrid integration (with and without the fan) -> results.
+
+This is the Python API the CLI wraps::
+
+    from atticsim import load_scenario, simulate
+    sc = load_scenario("scenarios/heron_lane_bungalow.toml", ["fan.flow=1500 cfm"])
+    res = simulate(sc, start="2025-07-01", end="2025-07-07")
+    res.summary["fan_starts"], res.timeseries, res.events
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from atticsim.forcing.build import build_forcing, period_bounds
+from atticsim.forcing.weather import load_weather
+from atticsim.network.model import BOOKS, build_network
+from atticsim.simulate.controller import controller_from_scenario
+from atticsim.simulate.hybrid import HybridRun, integrate
+
+DAY = 86400.0
+
+
+@dataclass
+class Period:
+    """The simulated period: tz-aware start/end and the same as seconds on the forcing's clock."""
+
+    start: pd.Timestamp
+    end: pd.Timestamp
+    t_start: float
+    t_end: float
+
+
+@dataclass
+class RawRuns:
+    """Everything the metrics need: the network, forcing, period and both hybrid runs."""
+
+    network: object
+    forcing: object
+    period: Period
+    output_times: np.ndarray
+    with_fan: HybridRun
+    without_fan: HybridRun
+    y_start_fan: np.ndarray
+    y_start_nofan: np.ndarray
+    notes: list = field(default_factory=list)
+
+
+def _spin_up(network, forcing, controller, period, y, fan_on, days, rtol, max_step):
+    """Repeat the period's first day ``days`` times to approach a periodic start state.
+
+    The books are reset after each repetition; the returned state is the start state of the run.
+    """
+    span = min(DAY, period.t_end - period.t_start)
+    n_nodes = network.n_nodes
+    for _ in range(days):
+        t1 = period.t_start + span
+        run = integrate(network, forcing, controller, period.t_start, t1, y, fan_on, np.array([t1]),
+                        rtol=rtol, max_step=max_step)
+        y = run.y_end.copy()
+        y[n_nodes:] = 0.0
+        if controller is not None:
+            fan_on = controller.initial_state(y[network.index["sensor"]])
+    return y, fan_on
+
+
+def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True) -> RawRuns:
+    """Integrate the scenario with the fan under thermostat control and, optionally, with no fan.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        Validated scenario.
+    weather : (DataFrame, meta), optional
+        A normalised weather frame and its metadata; default: the scenario's weather file.
+    start, end : str, optional
+        Period overrides (ISO date or instant, local standard time; a date-only end is inclusive).
+    include_no_fan : bool
+        Also run the same period with the fan disabled (for the ceiling gain without the fan).
+    """
+    if weather is None:
+        weather = load_weather(scenario.weather.file)
+    frame, meta = weather[0], weather[1]
+    source = getattr(meta, "path", None) or scenario.weather.file
+    t0, t1 = period_bounds(frame, start or scenario.weather.start, end or scenario.weather.end, str(source))
+    forcing = build_forcing(frame, meta, scenario, t0, t1, source=str(source))
+    base = forcing.times[0]
+    period = Period(t0, t1, (t0 - base).total_seconds(), (t1 - base).total_seconds())
+    sim = scenario.simulation
+    output_times = np.arange(period.t_start, period.t_end, sim.output_step)
+    output_times = np.append(output_times, period.t_end)
+
+    pressure = float(np.nanmean(frame["pressure"])) if "pressure" in frame else 101325.0
+    network = build_network(scenario, pressure=pressure)
+    controller = controller_from_scenario(scenario)
+    y0 = np.zeros(network.n_nodes + len(BOOKS))
+    y0[:network.n_nodes] = forcing.at(period.t_start)[0]
+
+    def one(enabled: bool):
+        net = network if enabled else build_network(
+            scenario.model_copy(update={"fan": scenario.fan.model_copy(update={"enabled": False})}),
+            pressure=pressure)
+        ctl = controller if enabled else None
+        fan0 = ctl.initial_state(y0[net.index["sensor"]]) if ctl else False
+        y_start, fan0 = _spin_up(net, forcing, ctl, period, y0.copy(), fan0, sim.spinup_days, sim.rtol,
+                                 sim.max_step)
+        run = integrate(net, forcing, ctl, period.t_start, period.t_end, y_start, fan0, output_times,
+                        rtol=sim.rtol, max_step=sim.max_step)
+        return run, y_start
+
+    with_fan, y_fan = one(scenario.fan.enabled)
+    if include_no_fan:
+        without_fan, y_nofan = one(False)
+    else:
+        without_fan, y_nofan = None, None
+    return RawRuns(network, forcing, period, output_times, with_fan, without_fan, y_fan, y_nofan,
+                   notes=list(forcing.notes))
+
+
+def simulate(scenario, weather=None, start=None, end=None):
+    """Simulate a scenario and compute its results (time series, events, summary, daily figures).
+
+    Returns
+    -------
+    atticsim.results.metrics.SimulationResult
+    """
+    from atticsim.results.metrics import build_result
+
+    raw = run_raw(scenario, weather, start, end, include_no_fan=True)
+    return build_result(scenario, raw)

@@ -1,0 +1,183 @@
+"""Units at the edges: parse user quantities to SI floats and format SI values for display.
+
+Everything inside atticsim is an SI float. This module is the one place where strings such as
+``"1200 cfm"``, ``"38 degC"``, ``"R-38"`` or ``"6/12"`` become numbers, and where SI numbers become
+IP figures for people who read °F, CFM and Btu. pint is imported lazily, only when a string with a
+unit has to be parsed, so that the solver and ``atticsim --help`` never pay for it.
+
+A bare number (no unit) is taken in the SI unit of its kind (listed in :data:`KINDS`).
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from functools import lru_cache
+
+#: Quantity kinds understood by :func:`to_si`: kind -> (SI unit as pint spells it, human description).
+KINDS: dict[str, tuple[str, str]] = {
+    "length": ("m", "a length"),
+    "area": ("m**2", "an area"),
+    "volume": ("m**3", "a volume"),
+    "flow": ("m**3/s", "a volume flow"),
+    "power": ("W", "a power"),
+    "energy": ("J", "an energy"),
+    "temperature": ("degC", "a temperature"),
+    "temperature_difference": ("K", "a temperature difference"),
+    "time": ("s", "a time"),
+    "angle": ("deg", "an angle"),
+    "pressure": ("Pa", "a pressure"),
+    "mass": ("kg", "a mass"),
+    "density": ("kg/m**3", "a density"),
+    "conductivity": ("W/(m*K)", "a thermal conductivity"),
+    "specific_heat": ("J/(kg*K)", "a specific heat capacity"),
+    "r_value": ("m**2*K/W", "a thermal resistance per area (R-value)"),
+    "conductance": ("W/K", "a thermal conductance"),
+    "velocity": ("m/s", "a speed"),
+    "voltage": ("V", "a voltage"),
+    "resistance": ("ohm", "a resistance"),
+    "current": ("A", "a current"),
+    "capacitance": ("F", "a capacitance"),
+    "frequency": ("Hz", "a frequency"),
+    "dimensionless": ("dimensionless", "a plain number"),
+}
+
+# 1 ft^2.degF.h/Btu_IT in m^2.K/W: (0.3048^2 m^2)(5/9 K)(3600 s) / 1055.05585262 J
+# (Btu_IT by definition, NIST SP 811 appendix B).
+R_IP_TO_SI = 0.3048**2 * (5.0 / 9.0) * 3600.0 / 1055.05585262
+
+_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
+_R_VALUE = re.compile(rf"^\s*(RSI|R)\s*-?\s*({_NUMBER})\s*$", re.IGNORECASE)
+_PITCH = re.compile(rf"^\s*({_NUMBER})\s*[/:]\s*12\s*(?:pitch)?\s*$", re.IGNORECASE)
+_SPLIT = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+
+
+class UnitError(ValueError):
+    """A quantity whose unit is missing, unknown or of the wrong kind."""
+
+
+@lru_cache(maxsize=1)
+def registry():
+    """The project's pint UnitRegistry (created once, on first use).
+
+    Adds ``cfm``/``CFM`` (pint would read bare ``cfm`` as centi-fermi), ``in_wc``/``inH2O`` for inches of
+    water column, and ``ach`` is deliberately *not* defined (an air-change rate needs a volume).
+    """
+    import pint
+
+    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=":auto:")
+    ureg.define("cubic_foot_per_minute = foot**3/minute = cfm = CFM")
+    ureg.define("inch_water_column = 249.0889 * pascal = in_wc = inWC = in_w_c")
+    return ureg
+
+
+def to_si(value, kind: str) -> float:
+    """Convert a user value to an SI float of the given kind.
+
+    Parameters
+    ----------
+    value : float, int or str
+        A bare number (taken in the SI unit of ``kind``) or a string with a unit, e.g. ``"1200 cfm"``,
+        ``"100 degF"``, ``"R-38"`` (IP R-value), ``"RSI 6.7"``, ``"6/12"`` (roof pitch, angles only).
+    kind : str
+        One of :data:`KINDS`.
+
+    Returns
+    -------
+    float
+        The value in the SI unit of ``kind`` (degrees Celsius for temperatures, degrees for angles).
+
+    Raises
+    ------
+    UnitError
+        If the value cannot be read as a quantity of that kind.
+    """
+    if kind not in KINDS:
+        raise KeyError(f"unknown quantity kind {kind!r}")
+    if isinstance(value, bool):
+        raise UnitError(f"expected {KINDS[kind][1]}, got a true/false value")
+    if isinstance(value, (int, float)):
+        return float(value)
+    if not isinstance(value, str):
+        raise UnitError(f"expected {KINDS[kind][1]}, got {value!r}")
+    text = value.strip()
+    if kind == "r_value":
+        m = _R_VALUE.match(text)
+        if m:
+            number = float(m.group(2))
+            # "R-38" is the North American trade R-value in ft2.degF.h/Btu; "RSI 6.7" is already SI.
+            return number if m.group(1).upper() == "RSI" else number * R_IP_TO_SI
+    if kind == "angle":
+        m = _PITCH.match(text)
+        if m:
+            # Roof pitch "rise/12": angle = atan(rise/12) (common practice, carpentry).
+            return math.degrees(math.atan(float(m.group(1)) / 12.0))
+    m = _SPLIT.match(text)
+    if not m:
+        raise UnitError(f"expected {KINDS[kind][1]} such as '{_example(kind)}', got {value!r}")
+    number, unit = float(m.group(1)), m.group(2)
+    if not unit:
+        return number
+    return _convert(number, unit, kind, value)
+
+
+def _convert(number: float, unit: str, kind: str, original) -> float:
+    import pint
+
+    ureg = registry()
+    target, description = KINDS[kind]
+    # Trade shorthand "ft2", "m3/s" -> "ft**2", "m**3/s".
+    unit = re.sub(r"(?<=[A-Za-z])([23])(?![\d.])", r"**\1", unit)
+    try:
+        q = ureg.Quantity(number, unit)
+    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
+            TypeError, ValueError, AssertionError) as exc:
+        raise UnitError(f"unknown unit {unit!r} in {original!r}") from exc
+    try:
+        if kind == "temperature_difference":
+            unit_str = str(q.units)
+            # A difference written in an absolute scale ("5 degC", "9 degF") means a difference.
+            if unit_str in ("degree_Celsius", "degree_Fahrenheit"):
+                delta = {"degree_Celsius": 1.0, "degree_Fahrenheit": 5.0 / 9.0}[unit_str]
+                return number * delta
+        return float(q.to(target).magnitude)
+    except pint.errors.DimensionalityError as exc:
+        raise UnitError(
+            f"expected {description} such as '{_example(kind)}', got {original!r} (unit {unit!r})"
+        ) from exc
+
+
+def _example(kind: str) -> str:
+    return {
+        "length": "3.2 m", "area": "120 m2", "volume": "180 m3", "flow": "1200 cfm",
+        "power": "180 W", "energy": "1.5 kWh", "temperature": "38 degC", "temperature_difference": "4 K",
+        "time": "5 min", "angle": "6/12", "pressure": "0.1 in_wc", "mass": "900 kg",
+        "density": "500 kg/m3", "conductivity": "0.12 W/(m*K)", "specific_heat": "1880 J/(kg*K)",
+        "r_value": "R-38", "conductance": "0.0015 W/K", "velocity": "3 m/s", "voltage": "12 V",
+        "resistance": "10 kohm", "current": "10 mA", "capacitance": "0.47 uF", "frequency": "60 Hz",
+        "dimensionless": "0.9",
+    }[kind]
+
+
+# --- display in IP units (edges only) -------------------------------------------------------------
+
+def c_to_f(temp_c):
+    """Temperature [degC] -> [degF] (definition of the Fahrenheit scale)."""
+    return temp_c * 9.0 / 5.0 + 32.0
+
+
+def k_to_delta_f(delta_k):
+    """Temperature difference [K] -> [delta degF]."""
+    return delta_k * 9.0 / 5.0
+
+
+#: SI -> IP factors for display: name -> (factor, IP unit label). Sources: NIST SP 811 appendix B.
+IP_FACTORS = {
+    "flow": (1.0 / (0.3048**3 / 60.0), "cfm"),
+    "area": (1.0 / 0.3048**2, "ft2"),
+    "length": (1.0 / 0.3048, "ft"),
+    "energy_kwh": (3412.14163, "Btu"),  # 1 kWh = 3412.14 Btu_IT
+    "pressure": (1.0 / 249.0889, "in. w.c."),
+    "r_value": (1.0 / R_IP_TO_SI, "h.ft2.F/Btu"),
+    "volume": (1.0 / 0.3048**3, "ft3"),
+}
