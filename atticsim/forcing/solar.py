@@ -12,7 +12,7 @@ import pandas as pd
 
 
 def solar_position(times: pd.DatetimeIndex, latitude, longitude, altitude=0.0, pressure=None,
-                   temperature=12.0) -> pd.DataFrame:
+                   temperature=12.0, delta_t=None) -> pd.DataFrame:
     """Sun position at the given instants (NREL SPA via pvlib).
 
     Parameters
@@ -27,6 +27,8 @@ def solar_position(times: pd.DatetimeIndex, latitude, longitude, altitude=0.0, p
         Air pressure [Pa] for refraction; default from altitude.
     temperature : float or array_like
         Air temperature [degC] for refraction.
+    delta_t : float, optional
+        TT - UT1 [s]; default pvlib's estimate for the date.
 
     Returns
     -------
@@ -35,8 +37,9 @@ def solar_position(times: pd.DatetimeIndex, latitude, longitude, altitude=0.0, p
     """
     import pvlib
 
+    extra = {} if delta_t is None else {"delta_t": delta_t}
     return pvlib.solarposition.get_solarposition(times, latitude, longitude, altitude=altitude,
-                                                 pressure=pressure, temperature=temperature)
+                                                 pressure=pressure, temperature=temperature, **extra)
 
 
 def plane_irradiance(times: pd.DatetimeIndex, ghi, dni, dhi, latitude, longitude, planes,

@@ -122,7 +122,7 @@ def synthetic_weather(climate: DemoClimate, start: str, days: int, seed: int = 1
     wind_fac = rng.lognormal(0.0, 0.3, n_days)
 
     day_index = ((times - t0) // pd.Timedelta("1D")).to_numpy().astype(int)
-    doy = times.dayofyear.to_numpy()
+    doy = times.day_of_year.to_numpy()
     # Seasonal cycle peaking around 20 July (day 201) in the northern hemisphere (our choice).
     season = np.cos(2.0 * np.pi * (doy - 201) / 365.25)
     if climate.latitude < 0:
@@ -179,5 +179,5 @@ def demo_weather(name: str, year: int = 2025, seed: int = 1):
     """A full invented year of hourly weather for a named demo site (see :data:`DEMO_CLIMATES`)."""
     if name not in DEMO_CLIMATES:
         raise ValueError(f"unknown demo weather {name!r}; known: {', '.join(sorted(DEMO_CLIMATES))}")
-    days = 366 if pd.Timestamp(year=year, month=12, day=31).dayofyear == 366 else 365
+    days = 366 if pd.Timestamp(year=year, month=12, day=31).day_of_year == 366 else 365
     return synthetic_weather(DEMO_CLIMATES[name], f"{year}-01-01", days, seed=seed)

@@ -1,0 +1,100 @@
+"""The command line: the run command's files, and one-line errors for bad input."""
+
+import json
+from pathlib import Path
+
+import pytest
+from click.testing import CliRunner
+
+from atticsim.cli.main import cli
+
+DEMO = Path(__file__).resolve().parent.parent / "atticsim" / "data" / "demo_house.toml"
+
+
+def invoke(*args):
+    return CliRunner().invoke(cli, [str(a) for a in args])
+
+
+def one_line_error(result):
+    err = result.output.strip().splitlines()
+    return err[-1] if err else ""
+
+
+def write_scenario(tmp_path, replace_from=None, replace_to=None, extra=""):
+    text = DEMO.read_text()
+    if replace_from is not None:
+        assert replace_from in text
+        text = text.replace(replace_from, replace_to)
+    p = tmp_path / "house.toml"
+    p.write_text(text + extra)
+    return p
+
+
+def test_run_writes_results_for_one_day(tmp_path):
+    out = tmp_path / "res"
+    r = invoke("run", "--out", out, "--start", "2025-07-01", "--end", "2025-07-01",
+               "--set", "simulation.spinup_days=1", "--units", "ip")
+    assert r.exit_code == 0, r.output
+    for name in ("summary.json", "daily.csv", "timeseries.csv", "events.csv", "temperatures.png"):
+        assert (out / name).stat().st_size > 0
+    s = json.loads((out / "summary.json").read_text())
+    for key in ("fan_run_hours", "fan_starts", "fan_energy_kwh", "short_cycles", "cycle_minutes_median",
+                "attic_air_max_c", "attic_air_mean_c", "ceiling_heat_gain_kwh", "ceiling_heat_gain_no_fan_kwh",
+                "energy_balance_error_pct", "period_start", "period_end"):
+        assert key in s
+    assert "°F" in r.output and "Mains voltage" in r.output
+    # existing output is not overwritten without --force, and is left as it was
+    before = (out / "summary.json").read_text()
+    r2 = invoke("run", "--out", out, "--start", "2025-07-01", "--end", "2025-07-01")
+    assert r2.exit_code != 0 and "--force" in one_line_error(r2)
+    assert (out / "summary.json").read_text() == before
+
+
+@pytest.mark.parametrize("change,key,reason", [
+    (('flow = "1200 cfm"', 'flow = "1200 kg"'), "fan.flow", "volume flow"),
+    (('area = "78.3 m2"', 'area = "-78.3 m2"'), "roof.planes.0.area", "greater than 0"),
+    (('off = "35 degC"', 'off = "45 degC"'), "thermostat", "off < on"),
+    (('flow = "1200 cfm"', 'flow = "0 cfm"'), "fan.flow", "greater than 0"),
+    (('[vents]', '[vents]\ncolour = "red"'), "vents.colour", "unknown key"),
+    (('insulation = "R-30"\n', ''), "ceiling.insulation", "required key is missing"),
+    (('kind = "setpoints"', 'kind = "magic"'), "thermostat", "kind"),
+    (('latitude = 29.3', 'latitude = 129.3'), "site.latitude", "less than or equal to 90"),
+])
+def test_bad_scenarios_give_one_line_errors(tmp_path, change, key, reason):
+    p = write_scenario(tmp_path, *change)
+    out = tmp_path / "res"
+    r = invoke("run", p, "--out", out)
+    assert r.exit_code == 2
+    line = one_line_error(r)
+    assert line.startswith("atticsim: error: ") and str(p) in line and key in line and reason in line, line
+    assert not out.exists()  # nothing half-written
+
+
+def test_malformed_toml_and_missing_file(tmp_path):
+    p = tmp_path / "bad.toml"
+    p.write_text("[fan\nflow = 3")
+    r = invoke("run", p, "--out", tmp_path / "o")
+    assert r.exit_code == 2 and "TOML syntax error" in one_line_error(r)
+    r = invoke("run", tmp_path / "nope.toml", "--out", tmp_path / "o")
+    assert r.exit_code == 2 and "file not found" in one_line_error(r)
+
+
+def test_bad_set_override(tmp_path):
+    r = invoke("run", "--out", tmp_path / "o", "--set", "fan.speed=3")
+    assert r.exit_code == 2 and "fan.speed" in one_line_error(r) and "unknown key" in one_line_error(r)
+    r = invoke("run", "--out", tmp_path / "o", "--set", "fan.flow")
+    assert r.exit_code == 2 and "KEY=VALUE" in one_line_error(r)
+
+
+def test_period_outside_weather(tmp_path):
+    r = invoke("run", "--out", tmp_path / "o", "--start", "2031-01-01", "--end", "2031-01-02")
+    assert r.exit_code == 2 and "outside the weather data" in one_line_error(r)
+
+
+def test_help_is_fast_to_import():
+    import subprocess
+    import sys
+
+    code = "import sys, atticsim.cli.main; print(sorted(m for m in ('matplotlib', 'pvlib', 'pandas', 'scipy.integrate') if m in sys.modules))"
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
+    assert out.strip() == "[]"
