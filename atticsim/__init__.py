@@ -21,7 +21,7 @@ def __getattr__(name):
 
         return getattr(scenario, name)
     if name == "simulate":
-        from atticsim.simulate.run import simulate
+        from atticsim.pipeline import simulate
 
         return simulate
     raise AttributeError(f"module 'atticsim' has no attribute {name!r}")

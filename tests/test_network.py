@@ -7,7 +7,7 @@ from scipy.optimize import brentq
 from atticsim.forcing.build import Forcing, build_forcing
 from atticsim.network.model import BOOKS, build_network
 from atticsim.scenario import demo_scenario
-from atticsim.simulate.hybrid import integrate
+from atticsim.hybrid.events import integrate
 
 from conftest import make_weather
 

@@ -7,7 +7,7 @@ import pytest
 
 from atticsim.forcing.synthetic import DEMO_CLIMATES, synthetic_weather
 from atticsim.scenario import demo_scenario
-from atticsim.simulate.run import run_raw, simulate
+from atticsim.pipeline import run_raw, simulate
 
 
 @pytest.fixture(scope="module")

@@ -37,7 +37,7 @@ def run(scenario, out, weather, start, end, overrides, units, force):
     from atticsim.report.text import summary_text
     from atticsim.results.export import result_writers
     from atticsim.results.output import write_outputs
-    from atticsim.simulate.run import simulate
+    from atticsim.pipeline import simulate
 
     click.echo(f"simulating {sc.house.name} ...", err=True)
     result = simulate(sc, start=start, end=end)

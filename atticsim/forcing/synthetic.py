@@ -157,16 +157,18 @@ def synthetic_weather(climate: DemoClimate, start: str, days: int, seed: int = 1
     wind = climate.wind_mean * wind_fac[day_index] * (1.0 + 0.4 * np.sin(2.0 * np.pi * (hour - 9.0) / 24.0))
     wind = np.maximum(wind, 0.3)
 
+    # Rounded to the resolution weather files carry, so the CSV files stay small.
+    temp_air, temp_dew, wind = np.round(temp_air, 2), np.round(temp_dew, 2), np.round(wind, 2)
     frame = pd.DataFrame({
         "temp_air": temp_air,
         "temp_dew": temp_dew,
-        "relative_humidity": magnus_relative_humidity(temp_air, temp_dew),
+        "relative_humidity": np.round(magnus_relative_humidity(temp_air, temp_dew), 2),
         "wind_speed": wind,
         "wind_direction": np.nan,
         "ghi": np.round(ghi, 1),
         "dni": np.round(dni, 1),
         "dhi": np.round(dhi, 1),
-        "pressure": standard_pressure(climate.altitude),
+        "pressure": np.round(standard_pressure(climate.altitude), 0),
         "sky_ir": np.nan,
     }, index=pd.DatetimeIndex(times, name="time"))
     meta = SimpleNamespace(name=climate.name, latitude=climate.latitude, longitude=climate.longitude,

@@ -81,7 +81,7 @@ def _cycle_figures(intervals, short_cycle):
 
 
 def build_result(scenario, raw) -> SimulationResult:
-    """Assemble the result of :func:`atticsim.simulate.run.run_raw`."""
+    """Assemble the result of :func:`atticsim.pipeline.run_raw`."""
     net, forcing, period = raw.network, raw.forcing, raw.period
     run, nofan = raw.with_fan, raw.without_fan
     n = net.n_nodes

@@ -18,8 +18,8 @@ import pandas as pd
 from atticsim.forcing.build import build_forcing, period_bounds
 from atticsim.forcing.weather import load_weather
 from atticsim.network.model import BOOKS, build_network
-from atticsim.simulate.controller import controller_from_scenario
-from atticsim.simulate.hybrid import HybridRun, integrate
+from atticsim.hybrid.controller import controller_from_scenario
+from atticsim.hybrid.events import HybridRun, integrate
 
 DAY = 86400.0
 
