@@ -9,7 +9,8 @@ not a climate record of any real place. Ingredients:
 - hourly dry-bulb from daily maximum and range with the ASHRAE fraction-of-daily-range profile
   (ASHRAE Handbook Fundamentals, climatic design information chapter, table "fraction of daily
   temperature range"; values typed from memory);
-- relative humidity from dew point by the Magnus formula (Alduchov & Eskridge 1996).
+- relative humidity from dew point by the Magnus formula and pressure from the ISO 2533 standard
+  atmosphere (both from :mod:`atticsim.io.weather_frame`).
 """
 
 from __future__ import annotations
@@ -19,6 +20,8 @@ from types import SimpleNamespace
 
 import numpy as np
 import pandas as pd
+
+from atticsim.io.weather_frame import relative_humidity_from_dew_point, standard_atmosphere_pressure
 
 #: ASHRAE fraction of daily temperature range for hours 1..24 of local standard time
 #: (T = T_max - f * range). ASHRAE Handbook Fundamentals, climatic design chapter (from memory).
@@ -60,23 +63,6 @@ DEMO_CLIMATES = {
         dew_summer=8.0, dew_winter=-2.0, wind_mean=3.0, linke_turbidity=3.0, cloudy_day_chance=0.1,
         note="invented hot-dry desert climate for demonstrations"),
 }
-
-
-def magnus_relative_humidity(temp_air, temp_dew):
-    """Relative humidity [%] from dry-bulb and dew point [degC].
-
-    Magnus form e_s(T) = 6.1094 exp(17.625 T / (T + 243.04)) hPa (Alduchov & Eskridge 1996).
-    """
-    def es(t):
-        return 6.1094 * np.exp(17.625 * t / (t + 243.04))
-
-    return 100.0 * es(np.asarray(temp_dew, float)) / es(np.asarray(temp_air, float))
-
-
-def standard_pressure(altitude):
-    """Standard-atmosphere pressure [Pa] at altitude [m] (ISO 2533 troposphere:
-    p = 101325 (1 - 2.25577e-5 h)^5.25588)."""
-    return 101325.0 * (1.0 - 2.25577e-5 * np.asarray(altitude, float)) ** 5.25588
 
 
 def synthetic_weather(climate: DemoClimate, start: str, days: int, seed: int = 1, step_minutes: int = 60):
@@ -162,13 +148,13 @@ def synthetic_weather(climate: DemoClimate, start: str, days: int, seed: int = 1
     frame = pd.DataFrame({
         "temp_air": temp_air,
         "temp_dew": temp_dew,
-        "relative_humidity": np.round(magnus_relative_humidity(temp_air, temp_dew), 2),
+        "relative_humidity": np.round(relative_humidity_from_dew_point(temp_air, temp_dew), 2),
         "wind_speed": wind,
         "wind_direction": np.nan,
         "ghi": np.round(ghi, 1),
         "dni": np.round(dni, 1),
         "dhi": np.round(dhi, 1),
-        "pressure": np.round(standard_pressure(climate.altitude), 0),
+        "pressure": np.round(standard_atmosphere_pressure(climate.altitude), 0),
         "sky_ir": np.nan,
     }, index=pd.DatetimeIndex(times, name="time"))
     meta = SimpleNamespace(name=climate.name, latitude=climate.latitude, longitude=climate.longitude,

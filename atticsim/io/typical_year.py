@@ -1,0 +1,482 @@
+"""Readers for the building trade's typical-year weather files: TMY3, TMY2 and EPW.
+
+Parsing is done by :mod:`pvlib.iotools` (``read_tmy3``, ``read_tmy2``, ``read_epw``);
+this module takes the file's own month / day / hour fields (not pvlib's index),
+converts units to SI, lays the records on the calendar year the user picks and
+brings every column to ONE time base.
+
+Time conventions of the three formats (all hourly, local standard time, hour 1..24
+is the hour ENDING at that time):
+
+* irradiance (GHI, DNI, DHI) is the energy received during the 60 minutes before the
+  stamp [Wh/m^2], i.e. numerically the mean irradiance of that hour [W/m^2]
+  (TMY3: Wilcox & Marion 2008, NREL/TP-581-43156, section 1; TMY2: Marion & Urban
+  1995, User's Manual for TMY2s, section 3; EPW: EnergyPlus Auxiliary Programs,
+  weather file format, from memory);
+* dry-bulb, dew point, humidity, pressure and wind are observed AT the stamp
+  (same sources).
+
+An interval mean belongs to the middle of its interval, so every output row is
+stamped at mid-hour: the record for hour-ending 13:00 gives the row 12:30.  The
+instantaneous quantities are interpolated linearly to the same mid-hour stamps (the
+mean of the hour-end values before and after; wind direction on the circle).  For
+the first mid-hour of a full typical year the value "before" is the Dec 31 24:00
+record (the typical year is treated as periodic); for a partial file the first value
+is held for that half hour.  EPW horizontal infrared radiation is treated as an
+instantaneous value too: weather converters compute it from the hour's dry-bulb,
+dew point and opaque sky cover (EnergyPlus Auxiliary Programs, from memory).
+
+Calendar year: typical years mix months from different source years.  The records
+are laid on ``year`` (default: the file's year when all records share one, otherwise
+:data:`DEFAULT_TYPICAL_YEAR`).  For a leap year without Feb 29 in the file, Feb 28
+is repeated as Feb 29; a Feb 29 in the file is dropped for a common year (both
+common practice, no source; reported as notes).  The hour-ending 24:00 of Dec 31
+becomes Jan 1 00:00 of the next year on the file's time base and 23:30 Dec 31 on the
+output time base, so the output index stays inside the year and monotonic.
+"""
+
+from __future__ import annotations
+
+import calendar
+import os
+
+import numpy as np
+import pandas as pd
+
+from atticsim.io.weather_frame import (
+    DEFAULT_MAX_GAP_H,
+    ValidationReport,
+    WeatherMeta,
+    finish_frame,
+    site_timezone,
+    validate_weather,
+)
+
+#: Calendar year a typical year is laid on when the caller gives none (a common year).
+DEFAULT_TYPICAL_YEAR = 2025
+
+#: Columns that are means over the interval ending at the stamp (moved to mid-interval).
+INTERVAL_MEAN_COLUMNS = ("ghi", "dni", "dhi")
+
+# Hecto-pascal (millibar) to pascal.
+_HPA = 100.0
+
+
+def _check_year(year: int | None, where: str) -> None:
+    if year is None:
+        return
+    if isinstance(year, bool) or not isinstance(year, (int, np.integer)) or not 1000 <= int(year) <= 9999:
+        raise ValueError(f"{where}: year: {year!r} is not a four-digit calendar year")
+
+
+def _records_frame(
+    years: np.ndarray,
+    months: np.ndarray,
+    days: np.ndarray,
+    hours: np.ndarray,
+    values: dict[str, np.ndarray],
+    meta: WeatherMeta,
+    year: int | None,
+    report: ValidationReport,
+) -> tuple[pd.DataFrame, bool]:
+    """Lay hour-ending records on a calendar year.
+
+    Returns the records indexed by their hour-ending stamps (tz-aware) and whether they
+    form one complete year (Jan 1 hour 1 .. Dec 31 hour 24).
+    """
+    where = meta.path or meta.name
+    months = np.asarray(months, dtype=int)
+    days = np.asarray(days, dtype=int)
+    hours = np.asarray(hours, dtype=int)
+    if np.any((hours < 1) | (hours > 24)):
+        i = int(np.flatnonzero((hours < 1) | (hours > 24))[0])
+        raise ValueError(f"{where}: hour: {hours[i]} in record {i + 1} is outside 1..24 (hour-ending records)")
+    if np.any((months < 1) | (months > 12)):
+        i = int(np.flatnonzero((months < 1) | (months > 12))[0])
+        raise ValueError(f"{where}: month: {months[i]} in record {i + 1} is outside 1..12")
+
+    if year is None:
+        found = np.unique(np.asarray(years, dtype=int))
+        if found.size == 1:
+            year = int(found[0])
+            report.notes.append(f"records laid on their own year {year}")
+        else:
+            year = DEFAULT_TYPICAL_YEAR
+            report.notes.append(
+                f"typical year (records from {found.size} source years) laid on calendar year {year}; "
+                f"pass year= to choose another"
+            )
+    else:
+        report.notes.append(f"records laid on calendar year {year}")
+
+    keep = np.ones(len(months), dtype=bool)
+    feb29 = (months == 2) & (days == 29)
+    if not calendar.isleap(year) and feb29.any():
+        keep &= ~feb29
+        report.notes.append(f"dropped {int(feb29.sum())} Feb 29 record(s): {year} is not a leap year")
+    columns = {k: np.asarray(v, dtype=float)[keep] for k, v in values.items()}
+    months, days, hours = months[keep], days[keep], hours[keep]
+    feb28 = np.flatnonzero((months == 2) & (days == 28))
+    if calendar.isleap(year) and not ((months == 2) & (days == 29)).any() and feb28.size:
+        after = feb28[-1] + 1
+        if after < len(months) and months[after] == 3:
+            order = np.concatenate((np.arange(after), feb28, np.arange(after, len(months))))
+            columns = {k: v[order] for k, v in columns.items()}
+            days = days[order].copy()
+            days[after : after + feb28.size] = 29
+            months, hours = months[order], hours[order]
+            report.notes.append(f"{year} is a leap year: Feb 28 repeated as Feb 29 ({feb28.size} records)")
+
+    try:
+        dates = pd.to_datetime(pd.DataFrame({"year": year, "month": months, "day": days}))
+    except (TypeError, ValueError) as exc:
+        raise ValueError(f"{where}: day: invalid calendar date in the records ({exc})") from None
+    stamps = pd.DatetimeIndex(dates + pd.to_timedelta(hours, unit="h")).tz_localize(site_timezone(meta.utc_offset))
+    records = pd.DataFrame(columns, index=stamps)
+    n_year = 8784 if calendar.isleap(year) else 8760
+    full = (
+        len(records) == n_year
+        and (months[0], days[0], hours[0]) == (1, 1, 1)
+        and (months[-1], days[-1], hours[-1]) == (12, 31, 24)
+    )
+    return records, full
+
+
+def _to_midpoints(records: pd.DataFrame, full_year: bool, report: ValidationReport) -> pd.DataFrame:
+    """Move hour-ending records to mid-hour stamps (one time base for all columns)."""
+    step = records.index[1] - records.index[0]
+    out = pd.DataFrame(index=records.index - step / 2)
+    for col in records.columns:
+        now = records[col].to_numpy(dtype=float)
+        if col in INTERVAL_MEAN_COLUMNS:
+            out[col] = now  # mean over the hour ending at the stamp -> its midpoint
+            continue
+        before = np.empty_like(now)
+        before[1:] = now[:-1]
+        # Full typical year: the hour-end before Jan 1 01:00 is Dec 31 24:00 (periodic year).
+        before[0] = now[-1] if full_year else now[0]
+        if col == "wind_direction":
+            out[col] = _circular_mean(before, now)
+        else:
+            # Linear interpolation to the midpoint: common practice, no source.
+            out[col] = 0.5 * (before + now)
+    if full_year:
+        report.notes.append(
+            "irradiance (hourly means) stamped at mid-hour; temperature, humidity, wind, pressure and sky "
+            "long-wave interpolated from the hour-end values to mid-hour (first half hour from Dec 31 24:00)"
+        )
+    else:
+        report.notes.append(
+            "irradiance (hourly means) stamped at mid-hour; temperature, humidity, wind, pressure and sky "
+            "long-wave interpolated from the hour-end values to mid-hour (first half hour held: partial year)"
+        )
+    return out
+
+
+def _finish(
+    records: pd.DataFrame,
+    full: bool,
+    meta: WeatherMeta,
+    max_gap_h: float,
+    labels: dict[str, str],
+    report: ValidationReport,
+) -> tuple[pd.DataFrame, WeatherMeta, ValidationReport]:
+    # Validate on the file's own (hour-ending) time base so messages name the file's times.
+    checked, report = validate_weather(records, meta, max_gap_h=max_gap_h, labels=labels, report=report)
+    frame = _to_midpoints(checked, full, report)
+    return finish_frame(frame, meta.path or meta.name), meta, report
+
+
+def _circular_mean(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Direction halfway between two directions [deg] (angle of the summed unit vectors).
+
+    Same as :func:`~atticsim.io.weather_frame.interpolate_direction` at the midpoint;
+    common practice, no source.  NaN where either input is NaN.
+    """
+    ra, rb = np.radians(a), np.radians(b)
+    angle = np.degrees(np.arctan2(np.sin(ra) + np.sin(rb), np.cos(ra) + np.cos(rb)))
+    return np.mod(np.round(angle, 6), 360.0)  # rounded to 1e-6 deg: no 224.99999999999997
+
+
+def read_tmy3(
+    path: str | os.PathLike, year: int | None = None, *, max_gap_h: float = DEFAULT_MAX_GAP_H
+) -> tuple[pd.DataFrame, WeatherMeta, ValidationReport]:
+    """Read an NREL TMY3 CSV file into the normalised weather frame.
+
+    Parsing by :func:`pvlib.iotools.read_tmy3`.  Site from the first line (USAF, name,
+    state, UTC offset [h], latitude, longitude, elevation [m]).  Missing values
+    (-9900, TMY3 user's manual, from memory) become gaps.  Pressure mbar -> Pa.  TMY3
+    has no sky long-wave column (sky_ir NaN).
+
+    Parameters
+    ----------
+    path : str or path-like
+        The TMY3 file.
+    year : int, optional
+        Calendar year to lay the typical year on (see module docstring).
+    max_gap_h : float
+        Longest missing duration that is interpolated [h].
+
+    Returns
+    -------
+    frame : pandas.DataFrame
+        Normalised weather frame, stamped at mid-hour.
+    meta : WeatherMeta
+        Site metadata, ``source_format="tmy3"``.
+    report : ValidationReport
+        Repairs made and notes.
+    """
+    import pvlib.iotools
+
+    where = os.fspath(path)
+    _check_year(year, where)
+    try:
+        data, head = pvlib.iotools.read_tmy3(where, coerce_year=None, map_variables=True)
+    except FileNotFoundError:
+        raise ValueError(f"{where}: file: not found") from None
+    except Exception as exc:  # pvlib raises assorted errors for malformed files
+        raise ValueError(f"{where}: format: cannot be read as TMY3 ({type(exc).__name__}: {exc})") from None
+    meta = WeatherMeta(
+        name=", ".join(p for p in (str(head["Name"]).strip().strip('"'), str(head["State"]).strip()) if p),
+        latitude=float(head["latitude"]),
+        longitude=float(head["longitude"]),
+        altitude=float(head["altitude"]),
+        utc_offset=float(head["TZ"]),
+        source_format="tmy3",
+        path=where,
+    )
+    names = {
+        "temp_air": "Dry-bulb (C)",
+        "temp_dew": "Dew-point (C)",
+        "relative_humidity": "RHum (%)",
+        "wind_speed": "Wspd (m/s)",
+        "wind_direction": "Wdir (degrees)",
+        "ghi": "GHI (W/m^2)",
+        "dni": "DNI (W/m^2)",
+        "dhi": "DHI (W/m^2)",
+        "pressure": "Pressure (mbar)",
+    }
+    for col in ("temp_air", "wind_speed", "ghi", "dni", "dhi", "Date (MM/DD/YYYY)", "Time (HH:MM)"):
+        if col not in data.columns:
+            raise ValueError(f"{where}: {names.get(col, col)}: required column missing")
+    values = {}
+    for col in names:
+        if col in data.columns:
+            v = pd.to_numeric(data[col], errors="coerce").to_numpy(dtype=float, copy=True)
+            v[v <= -9900.0] = np.nan  # TMY3 missing-data code -9900 (from memory)
+            values[col] = v * _HPA if col == "pressure" else v
+    try:
+        date = data["Date (MM/DD/YYYY)"].astype(str).str.split("/", expand=True).astype(int).to_numpy()
+        clock = data["Time (HH:MM)"].astype(str).str.split(":", expand=True).astype(int).to_numpy()
+        if date.shape[1] != 3 or clock.shape[1] != 2 or (clock[:, 1] != 0).any():
+            raise ValueError("wrong field count or minutes")
+    except (TypeError, ValueError):
+        raise ValueError(
+            f"{where}: Date (MM/DD/YYYY) / Time (HH:MM): expected MM/DD/YYYY dates and whole hours HH:00"
+        ) from None
+    report = ValidationReport()
+    records, full = _records_frame(
+        date[:, 2],
+        date[:, 0],
+        date[:, 1],
+        clock[:, 0],
+        values,
+        meta,
+        year,
+        report,
+    )
+    return _finish(records, full, meta, max_gap_h, names, report)
+
+
+def read_tmy2(
+    path: str | os.PathLike, year: int | None = None, *, max_gap_h: float = DEFAULT_MAX_GAP_H
+) -> tuple[pd.DataFrame, WeatherMeta, ValidationReport]:
+    """Read an NREL TMY2 fixed-width file into the normalised weather frame.
+
+    Parsing by :func:`pvlib.iotools.read_tmy2`.  Units per the TMY2 user's manual
+    (Marion & Urban 1995, Table 3-2): dry-bulb and dew point in tenths of degC, wind
+    speed in tenths of m/s, pressure in mbar; converted to SI here.  A field filled
+    with 9s (9999 / 999) is a missing value (TMY2 user's manual, from memory).  No sky
+    long-wave column (sky_ir NaN).
+
+    Parameters
+    ----------
+    path : str or path-like
+        The TMY2 file.
+    year : int, optional
+        Calendar year to lay the typical year on (see module docstring).
+    max_gap_h : float
+        Longest missing duration that is interpolated [h].
+
+    Returns
+    -------
+    frame : pandas.DataFrame
+        Normalised weather frame, stamped at mid-hour.
+    meta : WeatherMeta
+        Site metadata, ``source_format="tmy2"``.
+    report : ValidationReport
+        Repairs made and notes.
+    """
+    import pvlib.iotools
+
+    where = os.fspath(path)
+    _check_year(year, where)
+    if not os.path.isfile(where):
+        raise ValueError(f"{where}: file: not found")
+    try:
+        data, head = pvlib.iotools.read_tmy2(where)
+    except Exception as exc:  # pvlib raises assorted errors for malformed files
+        raise ValueError(f"{where}: format: cannot be read as TMY2 ({type(exc).__name__}: {exc})") from None
+    meta = WeatherMeta(
+        name=", ".join(p for p in (str(head["City"]).strip(), str(head["State"]).strip()) if p),
+        latitude=float(head["latitude"]),
+        longitude=float(head["longitude"]),
+        altitude=float(head["altitude"]),
+        utc_offset=float(head["TZ"]),
+        source_format="tmy2",
+        path=where,
+    )
+    # column -> (TMY2 field, scale to SI, all-nines missing code)
+    fields = {
+        "temp_air": ("DryBulb", 0.1, 9999.0),
+        "temp_dew": ("DewPoint", 0.1, 9999.0),
+        "relative_humidity": ("RHum", 1.0, 999.0),
+        "wind_speed": ("Wspd", 0.1, 999.0),
+        "wind_direction": ("Wdir", 1.0, 999.0),
+        "ghi": ("GHI", 1.0, 9999.0),
+        "dni": ("DNI", 1.0, 9999.0),
+        "dhi": ("DHI", 1.0, 9999.0),
+        "pressure": ("Pressure", _HPA, 9999.0),
+    }
+    values = {}
+    for col, (name, scale, code) in fields.items():
+        v = data[name].to_numpy(dtype=float, copy=True)
+        v[v == code] = np.nan
+        values[col] = v * scale
+    report = ValidationReport()
+    records, full = _records_frame(
+        data["year"].to_numpy(dtype=int) + 1900,
+        data["month"].to_numpy(dtype=int),
+        data["day"].to_numpy(dtype=int),
+        data["hour"].to_numpy(dtype=int),
+        values,
+        meta,
+        year,
+        report,
+    )
+    return _finish(records, full, meta, max_gap_h, {c: f[0] for c, f in fields.items()}, report)
+
+
+def _epw_records_per_hour(where: str) -> int:
+    """Records per hour from the EPW 'DATA PERIODS' header line (field 2)."""
+    with open(where, encoding="latin-1") as handle:
+        head = [handle.readline() for _ in range(8)]
+    for line in head:
+        if line.upper().startswith("DATA PERIODS"):
+            parts = line.split(",")
+            try:
+                return int(parts[2])
+            except (IndexError, ValueError):
+                raise ValueError(f"{where}: DATA PERIODS: cannot read the records per hour") from None
+    raise ValueError(f"{where}: DATA PERIODS: header line missing (an EPW file has 8 header lines)")
+
+
+def read_epw(
+    path: str | os.PathLike, year: int | None = None, *, max_gap_h: float = DEFAULT_MAX_GAP_H
+) -> tuple[pd.DataFrame, WeatherMeta, ValidationReport]:
+    """Read an EnergyPlus weather (EPW) file into the normalised weather frame.
+
+    Parsing by :func:`pvlib.iotools.read_epw`.  Site from the LOCATION line (city,
+    state, country, source, WMO, latitude, longitude, UTC offset [h], elevation [m]).
+    Uses the file's own horizontal infrared radiation as sky_ir.  Missing-value codes
+    (EnergyPlus Auxiliary Programs, weather file format, from memory): dry-bulb and dew
+    point 99.9, humidity 999, pressure 999999, irradiance and infrared 9999, wind
+    direction 999, wind speed 999.  Only hourly files (1 record per hour).
+
+    Parameters
+    ----------
+    path : str or path-like
+        The EPW file.
+    year : int, optional
+        Calendar year to lay the records on (see module docstring).
+    max_gap_h : float
+        Longest missing duration that is interpolated [h].
+
+    Returns
+    -------
+    frame : pandas.DataFrame
+        Normalised weather frame, stamped at mid-hour.
+    meta : WeatherMeta
+        Site metadata, ``source_format="epw"``.
+    report : ValidationReport
+        Repairs made and notes.
+    """
+    import pvlib.iotools
+
+    where = os.fspath(path)
+    _check_year(year, where)
+    if not os.path.isfile(where):
+        raise ValueError(f"{where}: file: not found")
+    per_hour = _epw_records_per_hour(where)
+    if per_hour != 1:
+        raise ValueError(f"{where}: DATA PERIODS: {per_hour} records per hour; only hourly EPW files are supported")
+    try:
+        data, head = pvlib.iotools.read_epw(where)
+    except Exception as exc:  # pvlib raises assorted errors for malformed files
+        raise ValueError(f"{where}: format: cannot be read as EPW ({type(exc).__name__}: {exc})") from None
+    meta = WeatherMeta(
+        name=", ".join(
+            p for p in (str(head.get(k, "")).strip() for k in ("city", "state-prov", "country")) if p and p != "-"
+        ),
+        latitude=float(head["latitude"]),
+        longitude=float(head["longitude"]),
+        altitude=float(head["altitude"]),
+        utc_offset=float(head["TZ"]),
+        source_format="epw",
+        path=where,
+    )
+    # column -> (pvlib name, missing code: values >= code are missing)
+    fields = {
+        "temp_air": ("temp_air", 99.9),
+        "temp_dew": ("temp_dew", 99.9),
+        "relative_humidity": ("relative_humidity", 999.0),
+        "pressure": ("atmospheric_pressure", 999999.0),
+        "sky_ir": ("ghi_infrared", 9999.0),
+        "ghi": ("ghi", 9999.0),
+        "dni": ("dni", 9999.0),
+        "dhi": ("dhi", 9999.0),
+        "wind_direction": ("wind_direction", 999.0),
+        "wind_speed": ("wind_speed", 999.0),
+    }
+    values = {}
+    for col, (name, code) in fields.items():
+        v = pd.to_numeric(data[name], errors="coerce").to_numpy(dtype=float, copy=True)
+        v[v >= code] = np.nan
+        values[col] = v
+    report = ValidationReport()
+    records, full = _records_frame(
+        data["year"].to_numpy(dtype=int),
+        data["month"].to_numpy(dtype=int),
+        data["day"].to_numpy(dtype=int),
+        data["hour"].to_numpy(dtype=int),
+        values,
+        meta,
+        year,
+        report,
+    )
+    labels = {
+        "temp_air": "dry bulb temperature",
+        "temp_dew": "dew point temperature",
+        "relative_humidity": "relative humidity",
+        "pressure": "atmospheric station pressure",
+        "sky_ir": "horizontal infrared radiation intensity",
+        "ghi": "global horizontal radiation",
+        "dni": "direct normal radiation",
+        "dhi": "diffuse horizontal radiation",
+        "wind_direction": "wind direction",
+        "wind_speed": "wind speed",
+    }
+    return _finish(records, full, meta, max_gap_h, labels, report)
+
+
+__all__ = ["DEFAULT_TYPICAL_YEAR", "INTERVAL_MEAN_COLUMNS", "read_epw", "read_tmy2", "read_tmy3"]
