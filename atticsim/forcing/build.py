@@ -28,8 +28,8 @@ class Forcing:
     step : float
         Sample step [s].
     values : numpy.ndarray
-        Shape (channels, n): temp_out [degC], temp_sky_k [K], wind_speed [m/s], then one plane-of-array
-        irradiance row per plane [W/m^2].
+        Shape (channels, n): temp_out [degC], temp_sky_k [K], wind_speed [m/s], temp_dew [degC], then one
+        plane-of-array irradiance row per plane [W/m^2].
     channels : list of str
         Channel names.
     notes : list of str
@@ -156,6 +156,6 @@ def build_forcing(frame: pd.DataFrame, meta, scenario, start=None, end=None, sou
     poa = plane_irradiance(part.index, part["ghi"], part["dni"], part["dhi"], lat, lon,
                            [(p.tilt, p.azimuth) for p in scenario.roof.planes], altitude=alt,
                            albedo=site.ground_albedo, solpos=solpos)
-    values = np.vstack([temp, t_sky, part["wind_speed"].to_numpy(float), poa])
-    channels = ["temp_out", "temp_sky_k", "wind_speed"] + [f"poa_{p.name}" for p in scenario.roof.planes]
+    values = np.vstack([temp, t_sky, part["wind_speed"].to_numpy(float), dew, poa])
+    channels = ["temp_out", "temp_sky_k", "wind_speed", "temp_dew"] + [f"poa_{p.name}" for p in scenario.roof.planes]
     return Forcing(times=part.index, step=step, values=values, channels=channels, notes=notes)

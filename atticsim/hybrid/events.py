@@ -5,10 +5,14 @@ scipy's ``solve_ivp`` (LSODA, tight tolerances). The controller's next switching
 event function on the sensor temperature; ``solve_ivp`` locates its root on the dense output, the
 loop records the event, toggles the state and restarts from the event's state. No fixed-step
 chattering: the fan switches only at located crossings.
+
+Air flows are quasi-steady: the loop asks the network's airflow model for them at the start of every
+segment (each ``airflow.update_interval`` and after every switch) and holds them over the segment.
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -29,20 +33,26 @@ class HybridRun:
         States at the output instants, shape (n_nodes + books, len(t)).
     fan : numpy.ndarray of bool
         Fan state holding at each output instant.
+    air : list
+        The airflow state held at each output instant.
     events : list of (float, bool, float)
         (time [s], new fan state, sensor temperature [degC]) for every switch.
     y_end : numpy.ndarray
         State at the end of the period.
     n_rhs : int
         Right-hand-side evaluations (cost figure).
+    air_updates : list
+        (time [s], AirflowState) at every airflow solve.
     """
 
     t: np.ndarray
     y: np.ndarray
     fan: np.ndarray
+    air: list
     events: list
     y_end: np.ndarray
     n_rhs: int
+    air_updates: list
 
 
 def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_times,
@@ -52,7 +62,7 @@ def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_t
     Parameters
     ----------
     network : AtticNetwork
-        The thermal network.
+        The thermal network (its ``airflow`` model gives the held air flows).
     forcing : Forcing
         Forcing channels.
     controller : HysteresisController or None
@@ -64,14 +74,16 @@ def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_t
     fan_on : bool
         Fan state at t_start.
     output_times : numpy.ndarray
-        Increasing instants in [t_start, t_end] at which to report the state [s].
+        Increasing instants in [t_start, t_end] at which to report the state [s]; must include t_end.
     rtol : float
         Relative tolerance of the integrator.
     max_step : float
         Largest integrator step [s]; bounds how fast a crossing-and-recrossing could hide.
     """
     n_nodes = network.n_nodes
-    i_sensor = network.index["sensor"]
+    i_sensor, i_air = network.index["sensor"], network.index.get("air")
+    airflow = getattr(network, "airflow", None)
+    update = airflow.update_interval if airflow is not None else math.inf
     # Absolute tolerances: 1e-5 K on temperatures, 1e-2 J on the books (their scale is MJ).
     atol = np.concatenate([np.full(n_nodes, 1e-5), np.full(len(BOOKS), 1e-2)])
     calls = [0]
@@ -82,9 +94,14 @@ def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_t
         f = forcing.at(t)
         return network.derivatives(y[:n_nodes, None], f[:, None], state["fan"])[:, 0]
 
-    ts, ys, fans, events = [], [], [], []
+    ts, ys, fans, airs, events, updates = [], [], [], [], [], []
     t, y, k = float(t_start), np.asarray(y0, dtype=float), 0
     while t < t_end:
+        if airflow is not None:
+            f = forcing.at(t)
+            network.air = airflow.solve(y[i_air], f[0], f[2], state["fan"], with_depressurisation=True)
+            updates.append((t, network.air))
+        seg_end = min(t_end, (math.floor(t / update) + 1) * update) if math.isfinite(update) else t_end
         evs = None
         if controller is not None:
             level, direction = controller.next_switch(state["fan"])
@@ -95,31 +112,37 @@ def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_t
             crossing.terminal = True
             crossing.direction = direction
             evs = [crossing]
-        t_eval = output_times[k:]
-        sol = solve_ivp(rhs, (t, t_end), y, method="LSODA", t_eval=t_eval, events=evs, rtol=rtol,
+        outs = output_times[k:]
+        outs = outs[outs < seg_end]
+        t_eval = np.append(outs, seg_end)
+        sol = solve_ivp(rhs, (t, seg_end), y, method="LSODA", t_eval=t_eval, events=evs, rtol=rtol,
                         atol=atol, max_step=max_step)
         if sol.status < 0:
             raise RuntimeError(f"integration failed at t = {t:.1f} s: {sol.message}")
         sol_t = np.asarray(sol.t, dtype=float)
         sol_y = np.asarray(sol.y, dtype=float).reshape(len(y), -1)
-        if sol_t.size:
-            ts.append(sol_t)
-            ys.append(sol_y)
-            fans.append(np.full(sol_t.size, state["fan"]))
-            k += sol_t.size
-        if sol.status == 1:  # an event ended the segment
-            t_ev = float(sol.t_events[0][0])
-            y = sol.y_events[0][0].copy()
-            state["fan"] = not state["fan"]
-            events.append((t_ev, state["fan"], float(y[i_sensor])))
-            t = t_ev
+        if sol.status == 1:  # an event ended the segment before seg_end
+            keep = sol_t < seg_end
+            t_next = float(sol.t_events[0][0])
+            y_next = sol.y_events[0][0].copy()
         else:
-            if not (sol_t.size and sol_t[-1] == t_end):
-                raise RuntimeError("internal: t_end must be one of the output times")
-            y = sol_y[:, -1].copy()
-            t = t_end
+            y_next, t_next = sol_y[:, -1].copy(), seg_end
+            # seg_end is reported only if it is an output instant
+            is_output = k + outs.size < output_times.size and output_times[k + outs.size] == seg_end
+            keep = np.ones(sol_t.size, bool)
+            keep[-1] = is_output
+        if keep.any():
+            ts.append(sol_t[keep])
+            ys.append(sol_y[:, keep])
+            fans.append(np.full(int(keep.sum()), state["fan"]))
+            airs.extend([getattr(network, "air", None)] * int(keep.sum()))
+            k += int(keep.sum())
+        if sol.status == 1:
+            state["fan"] = not state["fan"]
+            events.append((t_next, state["fan"], float(y_next[i_sensor])))
+        t, y = t_next, y_next
     return HybridRun(
         t=np.concatenate(ts) if ts else np.empty(0),
         y=np.hstack(ys) if ys else np.empty((len(y0), 0)),
         fan=np.concatenate(fans) if fans else np.empty(0, bool),
-        events=events, y_end=y, n_rhs=calls[0])
+        air=airs, events=events, y_end=y, n_rhs=calls[0], air_updates=updates)

@@ -18,12 +18,15 @@ Heat flows [W] (positive into the node written first):
 - interior: Walton natural convection deck/ceiling/framing -> air; long-wave deck <-> attic floor by
   the exact gray two-surface exchange sigma*G*(T1^4 - T2^4) (not linearised; each plane sees the share of the
   floor in proportion to its area; the framing takes no part in radiation, a simplification);
-- ventilation: rho(T_out) c_p Q (T_out - T_air), the air entering at outdoor density;
+- ventilation: c_p [m_out (T_out - T_air) + m_house (T_room - T_air)] for the outdoor and house air
+  entering the attic (mass flows from :mod:`atticsim.airflow.model`, held constant between airflow
+  updates; what leaves carries the attic air temperature);
 - sensor: dT_s/dt = (T_air - T_s)/tau + P_self/C_s with C_s = delta*tau (delta the dissipation constant).
 
 The books integrate, as extra ODE states, the heat that crosses the boundary of the building nodes
-(solar, sky, ground, exterior convection, ventilation, ceiling gain to the rooms) and the fan's
-electric energy; the storage change plus the books must close.
+(solar, sky, ground, exterior convection, ventilation, ceiling gain to the rooms), the fan's electric
+energy, and the load that air exchanged through the ceiling puts on the rooms (sensible and latent,
+outside the attic's closure); the storage change plus the attic's books must close.
 """
 
 from __future__ import annotations
@@ -32,17 +35,23 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from atticsim.airflow.ventilation import passive_flow, ventilation_flow
+from atticsim.airflow.model import AirflowModel
 from atticsim.constants import CP_AIR, KELVIN, P_STANDARD, SIGMA
+from atticsim.io.weather_frame import saturation_vapour_pressure
 from atticsim.materials import INSULATION, WOOD_SPECIFIC_HEAT
 from atticsim.network.heat_transfer import (ROUGHNESS, air_density, forced_convection_sparrow,
                                             gray_two_surface_factor, natural_convection_walton,
                                             view_factors_tilted)
 
 #: Names of the energy books, in state order after the temperatures.
-BOOKS = ("solar", "sky", "ground", "exterior_convection", "ventilation", "ceiling_gain", "fan_electric")
+BOOKS = ("solar", "sky", "ground", "exterior_convection", "ventilation", "ceiling_gain", "fan_electric",
+         "house_air_sensible", "house_air_latent")
+#: Books that cross the attic's boundary (the energy closure uses these).
+ATTIC_BOOKS = BOOKS[:6]
 #: Forcing channels before the per-plane irradiance channels.
-FORCING_BASE = ("temp_out", "temp_sky_k", "wind_speed")
+FORCING_BASE = ("temp_out", "temp_sky_k", "wind_speed", "temp_dew")
+#: Latent heat of vaporisation at 0 degC [J/kg] (ASHRAE Handbook Fundamentals, psychrometrics chapter).
+H_FG = 2501e3
 
 
 @dataclass
@@ -71,15 +80,14 @@ class AtticNetwork:
     r_insulation: float          # m2K/W
     r_room: float                # m2K/W (room film + half gypsum)
     room_temperature: float      # degC
-    passive_flow: float          # m3/s
-    fan_flow: float              # m3/s
-    fan_power: float             # W
-    fan_enabled: bool
+    room_humidity_ratio: float   # kg/kg
+    airflow: object              # AirflowModel
     sensor_tau: float            # s
     sensor_capacity: float       # J/K
     sensor_power: float          # W
     pressure: float = P_STANDARD
     node_names: list[str] = field(default_factory=list)
+    air: object = None           # the AirflowState held by the event loop
 
     @property
     def n_planes(self) -> int:
@@ -99,7 +107,7 @@ class AtticNetwork:
         return np.concatenate([self.c_cover.ravel(), self.c_deck.ravel(),
                                [self.c_air, self.c_framing, self.c_ceiling_top, self.c_gypsum, np.nan]])
 
-    def flows(self, temps, forcing, fan_on):
+    def flows(self, temps, forcing, fan_on, air=None):
         """Every heat flow of the network [W], vectorised over trailing (time) axes.
 
         Parameters
@@ -107,9 +115,11 @@ class AtticNetwork:
         temps : numpy.ndarray
             Node temperatures [degC], shape (n_nodes, m).
         forcing : numpy.ndarray
-            Forcing channels (:data:`FORCING_BASE` then one irradiance row per plane), shape (3 + P, m).
+            Forcing channels (:data:`FORCING_BASE` then one irradiance row per plane), shape (4 + P, m).
         fan_on : numpy.ndarray
             Fan state, shape (m,).
+        air : AirflowState or namespace of arrays, optional
+            Air flows; default the state held by the event loop (``self.air``).
 
         Returns
         -------
@@ -119,8 +129,9 @@ class AtticNetwork:
         P = self.n_planes
         t_cov, t_deck = temps[:P], temps[P:2 * P]
         t_air, t_fr, t_ct, t_gyp, t_s = temps[2 * P:2 * P + 5]
-        t_out, t_sky_k, wind = forcing[0], forcing[1], forcing[2]
-        poa = forcing[3:3 + P]
+        t_out, t_sky_k, wind, t_dew = forcing[0], forcing[1], forcing[2], forcing[3]
+        poa = forcing[4:4 + P]
+        air = self.air if air is None else air
         k_cov = t_cov + KELVIN
         k_out = t_out + KELVIN
         area = self.area
@@ -139,18 +150,24 @@ class AtticNetwork:
         q_frame_air = h_fr * self.framing_area * (t_fr - t_air)
         h_ct = natural_convection_walton(t_ct - t_air, 1.0, True)
         q_ceiling_air = h_ct * self.floor_area * (t_ct - t_air)
-        flow = ventilation_flow(fan_on, self.passive_flow, self.fan_flow if self.fan_enabled else 0.0)
-        q_vent = air_density(t_out, self.pressure) * CP_AIR * flow * (t_out - t_air)
+        q_vent = CP_AIR * (air.outdoor_in * (t_out - t_air) + air.house_in * (self.room_temperature - t_air))
+        # Load on the rooms from air exchanged through the ceiling: drawn house air is replaced by outdoor
+        # air through the envelope; attic air entering the house brings its heat (ASHRAE Handbook
+        # Fundamentals, ventilation and infiltration chapter, infiltration heat gain).
+        q_house_s = CP_AIR * (air.house_in * (t_out - self.room_temperature)
+                              + air.attic_to_house * (t_air - self.room_temperature))
+        w_out = humidity_ratio(t_dew, self.pressure)
+        q_house_l = H_FG * (air.house_in + air.attic_to_house) * (w_out - self.room_humidity_ratio)
         q_insulation = self.floor_area * (t_ct - t_gyp) / self.r_insulation
         q_room = self.floor_area * (t_gyp - self.room_temperature) / self.r_room
         q_sensor = self.sensor_capacity / self.sensor_tau * (t_air - t_s)
-        p_fan = np.asarray(fan_on, dtype=float) * (self.fan_power if self.fan_enabled else 0.0)
+        p_fan = np.asarray(fan_on, dtype=float) * air.fan_power
         return {
             "solar": q_solar, "sky": q_sky, "ground": q_ground, "exterior_convection": q_ext,
             "cover_deck": q_cond, "deck_air": q_deck_air, "deck_floor": q_deck_floor,
             "framing_air": q_frame_air, "ceiling_air": q_ceiling_air, "ventilation": q_vent,
             "insulation": q_insulation, "ceiling_gain": q_room, "sensor": q_sensor,
-            "ventilation_flow": flow, "fan_electric": p_fan,
+            "fan_electric": p_fan, "house_air_sensible": q_house_s, "house_air_latent": q_house_l,
         }
 
     def derivatives(self, temps, forcing, fan_on):
@@ -165,8 +182,22 @@ class AtticNetwork:
         d_s = (q["sensor"] + self.sensor_power) / self.sensor_capacity
         books = [q["solar"].sum(axis=0), q["sky"].sum(axis=0), q["ground"].sum(axis=0),
                  q["exterior_convection"].sum(axis=0), q["ventilation"], q["ceiling_gain"],
-                 q["fan_electric"] * np.ones_like(d_air)]
+                 q["fan_electric"] * np.ones_like(d_air), q["house_air_sensible"] * np.ones_like(d_air),
+                 q["house_air_latent"] * np.ones_like(d_air)]
         return np.vstack([d_cover, d_deck, d_air, d_fr, d_ct, d_gyp, d_s, *books])
+
+
+def humidity_ratio(temp_dew, pressure):
+    """Humidity ratio W = 0.621945 p_w / (p - p_w) [kg/kg], p_w the saturation pressure at the dew point
+    (ASHRAE Handbook Fundamentals, psychrometrics chapter, eq. 20 and 36)."""
+    p_w = saturation_vapour_pressure(temp_dew)
+    return 0.621945 * p_w / (pressure - p_w)
+
+
+def humidity_ratio_from_rh(temp, relative_humidity, pressure):
+    """Humidity ratio [kg/kg] at a temperature [degC] and relative humidity [%] (same source)."""
+    p_w = relative_humidity / 100.0 * saturation_vapour_pressure(temp)
+    return 0.621945 * p_w / (pressure - p_w)
 
 
 def build_network(scenario, pressure: float = P_STANDARD) -> AtticNetwork:
@@ -210,8 +241,9 @@ def build_network(scenario, pressure: float = P_STANDARD) -> AtticNetwork:
         c_gypsum=(cap_gyp + 0.5 * cap_ins) * attic.floor_area,
         r_insulation=ceiling.insulation, r_room=ceiling.room_film + 0.5 * r_gyp,
         room_temperature=ceiling.room_temperature,
-        passive_flow=passive_flow(scenario.vents.passive_ach, attic.volume),
-        fan_flow=scenario.fan.flow, fan_power=scenario.fan.power, fan_enabled=scenario.fan.enabled,
+        room_humidity_ratio=float(humidity_ratio_from_rh(ceiling.room_temperature,
+                                                         scenario.house.indoor_relative_humidity, pressure)),
+        airflow=AirflowModel(scenario, pressure),
         sensor_tau=sensor.time_constant, sensor_capacity=sensor.dissipation_constant * sensor.time_constant,
         sensor_power=sensor.self_heating, pressure=pressure, node_names=names,
     )

@@ -41,7 +41,26 @@ def summary_text(result, units: str = "si") -> str:
     gain, nofan = s["ceiling_heat_gain_kwh"], s["ceiling_heat_gain_no_fan_kwh"]
     saved = f", {energy(nofan - gain)} kept out by the fan" if nofan is not None else ""
     lines.append(f"  ceiling heat gain: {energy(gain)} with the fan, {energy(nofan)} without{saved}")
+    if s.get("airflow_model") == "balance":
+        def flow(q):
+            return "n/a" if q is None else (f"{q * IP_FACTORS['flow'][0]:.0f} cfm" if ip else f"{q:.3f} m3/s")
+
+        def vol(v):
+            return "n/a" if v is None else (f"{v * IP_FACTORS['volume'][0]:,.0f} ft3" if ip else f"{v:,.0f} m3")
+
+        ach = s["natural_ach_mean"]
+        lines.append(f"  airflow: fan {flow(s['fan_flow_mean_m3s'])} while running; natural "
+                     f"{'n/a' if ach is None else f'{ach:.1f}'} air changes/h with the fan off")
+        lines.append(f"  conditioned air drawn through the ceiling: {vol(s['conditioned_air_drawn_m3'])} "
+                     f"(without the fan {vol(s['conditioned_air_drawn_no_fan_m3'])}), load on the rooms "
+                     f"{energy(s['conditioned_air_load_kwh'])}; house depressurised by the fan up to "
+                     f"{s['house_depressurisation_max_pa']:.2f} Pa")
+    if s.get("net_benefit_kwh") is not None:
+        lines.append(f"  net benefit of the fan: {s['net_benefit_kwh']:+.2f} kWh of electricity "
+                     f"(cooling COP {sc.house.cooling_cop:g}; negative = costs more than it saves)")
     lines.append(f"  energy books close to {s['energy_balance_error_pct']:.2e} %")
+    for w in s.get("warnings", []):
+        lines.append(f"  WARNING: {w}")
     for note in result.notes:
         lines.append(f"  note: {note}")
     lines.append(caution_text())

@@ -8,11 +8,14 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from types import SimpleNamespace
+
 import numpy as np
 import pandas as pd
 
 from atticsim.constants import KELVIN
-from atticsim.network.model import BOOKS
+from atticsim.airflow.model import stack_states
+from atticsim.network.model import ATTIC_BOOKS, BOOKS
 
 J_PER_KWH = 3.6e6
 
@@ -68,7 +71,7 @@ def energy_balance_error_pct(capacities, y_start, y_end, books_end, n_nodes) -> 
     stored = float(np.sum(caps * (y_end[:n_nodes - 1] - y_start[:n_nodes - 1])))
     b = dict(zip(BOOKS, books_end))
     inflow = b["solar"] + b["sky"] + b["ground"] + b["exterior_convection"] + b["ventilation"] - b["ceiling_gain"]
-    gross = sum(abs(b[k]) for k in BOOKS if k != "fan_electric")
+    gross = sum(abs(b[k]) for k in ATTIC_BOOKS)
     return 100.0 * (inflow - stored) / gross if gross > 0 else 0.0
 
 
@@ -89,21 +92,30 @@ def build_result(scenario, raw) -> SimulationResult:
     times = forcing.times[0] + pd.to_timedelta(run.t, unit="s")
     temps = run.y[:n]
     f = forcing.sample(run.t)
-    q = net.flows(temps, f, run.fan)
+    air = stack_states(run.air)
+    q = net.flows(temps, f, run.fan, SimpleNamespace(**air))
 
     cols = {"outdoor_air_c": f[0], "sky_c": f[1] - KELVIN, "wind_speed_m_s": f[2]}
     for i, p in enumerate(net.plane_names):
-        cols[f"poa_{p}_w_m2"] = f[3 + i]
+        cols[f"poa_{p}_w_m2"] = f[4 + i]
     for name, i in idx.items():
         cols[("attic_air" if name == "air" else name) + "_c"] = temps[i]
     cols["fan_on"] = run.fan.astype(int)
-    cols["ventilation_flow_m3_s"] = q["ventilation_flow"] * np.ones(run.t.size)
+    cols["outdoor_air_flow_m3_s"] = air["outdoor_flow"]
+    cols["fan_flow_m3_s"] = air["fan_flow"]
+    cols["ceiling_flow_m3_s"] = air["ceiling_flow"]
+    cols["attic_pressure_pa"] = air["pressure_attic"]
+    cols["house_pressure_pa"] = air["pressure_house"]
+    for j, name in enumerate(net.airflow.path_names):
+        cols[f"flow_{name.replace(' ', '_')}_m3_s"] = air["path_flows"][:, j]
+    cols["airflow_mass_residual"] = air["residual"]
     cols["solar_absorbed_w"] = q["solar"].sum(axis=0)
     cols["roof_longwave_w"] = (q["sky"] + q["ground"]).sum(axis=0)
     cols["roof_convection_w"] = q["exterior_convection"].sum(axis=0)
     cols["ventilation_heat_w"] = q["ventilation"]
     cols["ceiling_heat_gain_w"] = q["ceiling_gain"]
     cols["fan_power_w"] = q["fan_electric"] * np.ones(run.t.size)
+    cols["house_air_load_w"] = (q["house_air_sensible"] + q["house_air_latent"]) * np.ones(run.t.size)
     ts = pd.DataFrame(cols, index=pd.DatetimeIndex(times, name="time"))
 
     ev_times = forcing.times[0] + pd.to_timedelta([e[0] for e in run.events], unit="s")
@@ -141,10 +153,76 @@ def build_result(scenario, raw) -> SimulationResult:
         "energy_balance_error_no_fan_pct": (energy_balance_error_pct(
             net.capacities, raw.y_start_nofan, nofan.y_end, nofan.y_end[n:], n) if nofan else None),
         "short_cycle_threshold_min": sim.short_cycle / 60.0,
+        **airflow_figures(scenario, raw, air, books, books_nf),
     }
     daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n)
     notes = list(raw.notes)
     return SimulationResult(summary, daily, ts, events, notes, scenario)
+
+
+def held_integral(updates, t_end, name, positive=False):
+    """Integral over time of a held airflow quantity (exact: flows are constant between updates)."""
+    total = 0.0
+    for (t0, state), (t1, _) in zip(updates, updates[1:] + [(t_end, None)]):
+        v = getattr(state, name)
+        total += (max(v, 0.0) if positive else v) * (t1 - t0)
+    return total
+
+
+def airflow_figures(scenario, raw, air, books, books_nf):
+    """Airflow summary: fan flow, natural air changes, conditioned air drawn, depressurisation, net benefit.
+
+    ``net_benefit_kwh`` is on the basis of electricity at the meter: (ceiling heat gain avoided minus the
+    extra load of conditioned air drawn from the house) divided by the cooling system's COP
+    (``house.cooling_cop``), minus the fan's electric energy. Positive means the fan saves electricity.
+    """
+    from atticsim.airflow import checks
+
+    run, period = raw.with_fan, raw.period
+    fan_on = run.fan.astype(bool)
+    volume = scenario.attic.volume
+    off = ~fan_on
+    load = (books["house_air_sensible"] + books["house_air_latent"]) / J_PER_KWH
+    load_nf = ((books_nf["house_air_sensible"] + books_nf["house_air_latent"]) / J_PER_KWH
+               if books_nf else None)
+    depress = [s.depressurisation for _, s in run.air_updates if np.isfinite(s.depressurisation)]
+    figures = {
+        "airflow_model": raw.network.airflow.kind,
+        "fan_flow_mean_m3s": float(np.mean(air["fan_flow"][fan_on])) if fan_on.any() else None,
+        "natural_ach_mean": float(np.mean(air["outdoor_flow"][off]) * 3600.0 / volume) if off.any() else None,
+        "conditioned_air_drawn_m3": held_integral(run.air_updates, period.t_end, "ceiling_flow", positive=True),
+        "conditioned_air_drawn_no_fan_m3": (held_integral(raw.without_fan.air_updates, period.t_end, "ceiling_flow",
+                                                          positive=True) if raw.without_fan else None),
+        "conditioned_air_load_kwh": load,
+        "conditioned_air_load_no_fan_kwh": load_nf,
+        "house_depressurisation_max_pa": max(depress) if depress else 0.0,
+    }
+    if books_nf:
+        avoided = (books_nf["ceiling_gain"] - books["ceiling_gain"]) / J_PER_KWH
+        figures["net_benefit_kwh"] = (avoided - (load - load_nf)) / scenario.house.cooling_cop - \
+            books["fan_electric"] / J_PER_KWH
+    else:
+        figures["net_benefit_kwh"] = None
+    warnings = []
+    openings = scenario.vents.openings
+    if openings:
+        total = sum(o.net_free_area for o in openings)
+        upper = sum(o.net_free_area for o in openings if o.kind in ("ridge", "roof-vent", "gable")
+                    and o.role != "intake")
+        warnings += checks.check_code_vent_area(scenario.attic.floor_area, total, upper)
+        intake = sum(o.net_free_area for o in openings if (o.role or ("intake" if o.kind == "soffit" else
+                                                                        "exhaust")) == "intake")
+        if scenario.fan.enabled:
+            warnings += checks.check_intake_area(intake, scenario.fan.rated_flow)
+    warnings += checks.check_house_depressurisation(figures["house_depressurisation_max_pa"],
+                                                    scenario.house.depressurisation_limit,
+                                                    scenario.house.atmospheric_appliances)
+    if figures["net_benefit_kwh"] is not None and figures["net_benefit_kwh"] < 0 and scenario.fan.enabled:
+        warnings.append(f"The fan costs more electricity than it saves over this period "
+                        f"(net benefit {figures['net_benefit_kwh']:.2f} kWh at the meter, "
+                        f"cooling COP {scenario.house.cooling_cop:g}).")
+    figures["warnings"] = warnings
+    return figures
 
 
 def _daily(ts, run, nofan, intervals, forcing, period, short_cycle, n):

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 from typing import Annotated, Literal, Union
 
+import numpy as np
+
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, model_validator
 
 from atticsim.materials import MATERIALS
@@ -48,10 +50,19 @@ class _Model(BaseModel):
 
 
 class House(_Model):
-    """Free-text description of the (fictional or real) house."""
+    """The house below the attic: description, envelope leakage and cooling system."""
 
     name: str = "unnamed house"
     note: str = ""
+    envelope_leakage_area: Area | None = Field(
+        None, gt=0.0, description="m2, effective leakage area of the house envelope at 4 Pa (blower door)")
+    envelope_leakage_exponent: float = Field(0.65, ge=0.5, le=1.0)
+    atmospheric_appliances: bool = Field(
+        True, description="atmospherically vented combustion appliances in the house (water heater, furnace)")
+    depressurisation_limit: Pressure = Field(5.0, gt=0.0, description="Pa; warn above this")
+    cooling_cop: float = Field(3.0, gt=0.5, le=10.0,
+                               description="cooling system COP, W of heat removed per W electric")
+    indoor_relative_humidity: Fraction = Field(50.0, ge=0.0, le=100.0, description="% in the rooms")
 
 
 class Site(_Model):
@@ -140,20 +151,63 @@ class Ceiling(_Model):
                                           description="degC, cooling setpoint of the rooms below")
     room_film: RValue = Field(0.16, gt=0.0,
                               description="m2K/W, room-side surface film (heat flow down, still air)")
+    leakage_area: Area | None = Field(None, gt=0.0,
+                                      description="m2, effective leakage area of the ceiling at 4 Pa")
+    leakage_exponent: float = Field(0.65, ge=0.5, le=1.0)
+
+
+class Opening(_Model):
+    """A passive vent between outdoors and the attic."""
+
+    name: str
+    kind: Literal["soffit", "gable", "ridge", "roof-vent"]
+    net_free_area: Area = Field(gt=0.0, description="m2 of net free area")
+    height: Length = Field(ge=0.0, description="m, centre of the opening above the attic floor")
+    discharge_coefficient: Fraction = Field(0.61, gt=0.0, le=1.0)
+    wind_pressure_coefficient: float | None = Field(None, ge=-2.0, le=2.0,
+                                                    description="Cp; default by kind")
+    role: Literal["intake", "exhaust"] | None = None
 
 
 class Vents(_Model):
-    """Passive ventilation (baseline air change with the fan off)."""
+    """Passive ventilation: a baseline air change, or the openings themselves."""
 
-    passive_ach: float = Field(1.5, ge=0.0, le=60.0, description="attic air changes per hour")
+    passive_ach: float = Field(1.5, ge=0.0, le=60.0,
+                               description="attic air changes per hour (used when no openings are given)")
+    openings: list[Opening] = Field(default_factory=list)
 
 
 class Fan(_Model):
-    """The powered attic ventilator."""
+    """The powered attic ventilator: a rated flow, or its published curve (needed with openings)."""
 
     enabled: bool = True
-    flow: Flow = Field(gt=0.0, description="m3/s delivered when running, or '1200 cfm'")
+    flow: Flow | None = Field(None, gt=0.0, description="m3/s delivered when running (simple airflow)")
     power: Power = Field(gt=0.0, description="W electric when running")
+    curve_pressure: list[Pressure] | None = Field(None, description="static pressures of the curve points")
+    curve_flow: list[Flow] | None = Field(None, description="flows at those pressures")
+    curve_power: list[Power] | None = Field(None, description="W at those points (default: power)")
+    speed_ratio: float = Field(1.0, gt=0.0, le=2.0, description="speed relative to the curve (fan laws)")
+    height: Length = Field(2.0, ge=0.0, description="m above the attic floor")
+    kind: Literal["gable", "roof-vent", "ridge"] = "gable"
+    idle_area: Area = Field(0.0, ge=0.0, description="m2 free area through the stopped fan")
+
+    @model_validator(mode="after")
+    def _curve(self):
+        if (self.curve_pressure is None) != (self.curve_flow is None):
+            raise ValueError("give both curve_pressure and curve_flow, or neither")
+        if self.curve_flow is not None:
+            if len(self.curve_flow) != len(self.curve_pressure) or len(self.curve_flow) < 2:
+                raise ValueError("curve_pressure and curve_flow need the same number (>= 2) of points")
+            if self.curve_power is not None and len(self.curve_power) != len(self.curve_flow):
+                raise ValueError("curve_power needs one value per curve point")
+        elif self.flow is None:
+            raise ValueError("give the fan's rated flow, or its curve (curve_pressure and curve_flow)")
+        return self
+
+    @property
+    def rated_flow(self) -> float:
+        """Flow used by the simple airflow form: the rated flow, else the curve's free-air flow [m3/s]."""
+        return self.flow if self.flow is not None else self.curve_flow[int(np.argmin(self.curve_pressure))]
 
 
 class Sensor(_Model):
@@ -192,10 +246,18 @@ class Simulation(_Model):
     spinup_days: int = Field(2, ge=0, le=30, description="days of the first day repeated before the period")
     rtol: float = Field(1e-6, gt=0.0, le=1e-2)
     max_step: Duration = Field(300.0, gt=0.0, le=3600.0, description="s, largest integrator step")
+    airflow_step: Duration = Field(300.0, ge=10.0, le=3600.0,
+                                   description="s between re-solves of the vent/fan pressure balance")
 
 
 class Scenario(_Model):
     """A complete scenario."""
+
+    @model_validator(mode="after")
+    def _airflow_needs(self):
+        if self.vents.openings and self.fan.curve_flow is None:
+            raise ValueError("fan: with vents.openings the fan needs its curve (curve_pressure, curve_flow)")
+        return self
 
     house: House = House()
     site: Site
