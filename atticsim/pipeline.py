@@ -46,6 +46,7 @@ class RawRuns:
     without_fan: HybridRun
     y_start_fan: np.ndarray
     y_start_nofan: np.ndarray
+    controller: object = None
     notes: list = field(default_factory=list)
 
 
@@ -117,7 +118,7 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True) -
     else:
         without_fan, y_nofan = None, None
     return RawRuns(network, forcing, period, output_times, with_fan, without_fan, y_fan, y_nofan,
-                   notes=list(forcing.notes))
+                   controller=controller, notes=list(forcing.notes))
 
 
 def simulate(scenario, weather=None, start=None, end=None):

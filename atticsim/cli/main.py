@@ -34,8 +34,10 @@ def cli():
 
 def _register():
     from atticsim.cli.run import run
+    from atticsim.cli.thermostat import thermostat
 
     cli.add_command(run)
+    cli.add_command(thermostat)
 
 
 _register()

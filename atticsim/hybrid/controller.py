@@ -48,6 +48,14 @@ class HysteresisController:
 
 
 def controller_from_scenario(scenario) -> HysteresisController:
-    """The controller a scenario's ``[thermostat]`` table describes."""
+    """The controller a scenario's ``[thermostat]`` table describes.
+
+    For a circuit thermostat the switching points are the circuit's exact thermistor temperatures
+    (node equations solved by :func:`atticsim.circuit.switching_temperatures`); the sensor node is the
+    thermistor, so self-heating is in the sensor's temperature, not in the thresholds.
+    """
     th = scenario.thermostat
+    if th.kind == "circuit":
+        t = th.thresholds()
+        return HysteresisController(mode=th.mode, on=t.on_c, off=t.off_c)
     return HysteresisController(mode=th.mode, on=th.on, off=th.off)

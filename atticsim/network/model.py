@@ -84,7 +84,7 @@ class AtticNetwork:
     airflow: object              # AirflowModel
     sensor_tau: float            # s
     sensor_capacity: float       # J/K
-    sensor_power: float          # W
+    sensor_power: object         # W, or a function (sensor temp, fan_on) -> W
     pressure: float = P_STANDARD
     node_names: list[str] = field(default_factory=list)
     air: object = None           # the AirflowState held by the event loop
@@ -161,6 +161,7 @@ class AtticNetwork:
         q_insulation = self.floor_area * (t_ct - t_gyp) / self.r_insulation
         q_room = self.floor_area * (t_gyp - self.room_temperature) / self.r_room
         q_sensor = self.sensor_capacity / self.sensor_tau * (t_air - t_s)
+        p_self = self.sensor_power(t_s, fan_on) if callable(self.sensor_power) else self.sensor_power
         p_fan = np.asarray(fan_on, dtype=float) * air.fan_power
         return {
             "solar": q_solar, "sky": q_sky, "ground": q_ground, "exterior_convection": q_ext,
@@ -168,6 +169,7 @@ class AtticNetwork:
             "framing_air": q_frame_air, "ceiling_air": q_ceiling_air, "ventilation": q_vent,
             "insulation": q_insulation, "ceiling_gain": q_room, "sensor": q_sensor,
             "fan_electric": p_fan, "house_air_sensible": q_house_s, "house_air_latent": q_house_l,
+            "sensor_self_heating": p_self,
         }
 
     def derivatives(self, temps, forcing, fan_on):
@@ -179,7 +181,7 @@ class AtticNetwork:
         d_fr = -q["framing_air"] / self.c_framing
         d_ct = (q["deck_floor"].sum(axis=0) - q["ceiling_air"] - q["insulation"]) / self.c_ceiling_top
         d_gyp = (q["insulation"] - q["ceiling_gain"]) / self.c_gypsum
-        d_s = (q["sensor"] + self.sensor_power) / self.sensor_capacity
+        d_s = (q["sensor"] + q["sensor_self_heating"]) / self.sensor_capacity
         books = [q["solar"].sum(axis=0), q["sky"].sum(axis=0), q["ground"].sum(axis=0),
                  q["exterior_convection"].sum(axis=0), q["ventilation"], q["ceiling_gain"],
                  q["fan_electric"] * np.ones_like(d_air), q["house_air_sensible"] * np.ones_like(d_air),
@@ -198,6 +200,17 @@ def humidity_ratio_from_rh(temp, relative_humidity, pressure):
     """Humidity ratio [kg/kg] at a temperature [degC] and relative humidity [%] (same source)."""
     p_w = relative_humidity / 100.0 * saturation_vapour_pressure(temp)
     return 0.621945 * p_w / (pressure - p_w)
+
+
+def sensor_power(scenario):
+    """Power heating the sensor: the circuit's divider dissipation at the thermistor's temperature and the
+    comparator's state (exact node solution, atticsim.circuit), or the scenario's constant self_heating."""
+    th = scenario.thermostat
+    if th.kind == "circuit":
+        from atticsim.circuit import thermistor_power_function
+
+        return thermistor_power_function(th.circuit_params())
+    return scenario.sensor.self_heating
 
 
 def build_network(scenario, pressure: float = P_STANDARD) -> AtticNetwork:
@@ -245,5 +258,5 @@ def build_network(scenario, pressure: float = P_STANDARD) -> AtticNetwork:
                                                          scenario.house.indoor_relative_humidity, pressure)),
         airflow=AirflowModel(scenario, pressure),
         sensor_tau=sensor.time_constant, sensor_capacity=sensor.dissipation_constant * sensor.time_constant,
-        sensor_power=sensor.self_heating, pressure=pressure, node_names=names,
+        sensor_power=sensor_power(scenario), pressure=pressure, node_names=names,
     )

@@ -53,10 +53,8 @@ def plot_temperatures(result, path: str | Path, units: str = "si") -> None:
     ax.plot(index, conv(ts["sensor_c"]), color="#ff9896", lw=0.9, ls="--", label="sensor")
     ax.plot(index, conv(ts["ceiling_top_c"]), color="#8c564b", lw=1.0, label="insulation top")
     ax.plot(index, conv(ts["outdoor_air_c"]), color="#2ca02c", lw=1.2, label="outdoor air")
-    th = getattr(getattr(result.scenario, "thermostat", None), "on", None)
-    if th is not None:
-        ax.axhline(conv(result.scenario.thermostat.on), color="k", lw=0.7, ls=":", label="switch-on")
-        ax.axhline(conv(result.scenario.thermostat.off), color="0.4", lw=0.7, ls=":", label="switch-off")
+    ax.axhline(conv(result.summary["switch_on_sensor_c"]), color="k", lw=0.7, ls=":", label="switch-on (sensor)")
+    ax.axhline(conv(result.summary["switch_off_sensor_c"]), color="0.4", lw=0.7, ls=":", label="switch-off (sensor)")
     ax.set_ylabel(f"temperature [{tunit}]")
     s = result.summary
     house = getattr(getattr(result.scenario, "house", None), "name", "")

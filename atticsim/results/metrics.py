@@ -153,6 +153,10 @@ def build_result(scenario, raw) -> SimulationResult:
         "energy_balance_error_no_fan_pct": (energy_balance_error_pct(
             net.capacities, raw.y_start_nofan, nofan.y_end, nofan.y_end[n:], n) if nofan else None),
         "short_cycle_threshold_min": sim.short_cycle / 60.0,
+        "thermostat_kind": scenario.thermostat.kind,
+        "switch_on_sensor_c": raw.controller.on,
+        "switch_off_sensor_c": raw.controller.off,
+        "sensor_self_heating_max_k": float(np.max(temps[idx["sensor"]] - temps[idx["air"]])),
         **airflow_figures(scenario, raw, air, books, books_nf),
     }
     daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n)

@@ -40,7 +40,7 @@ def _format_validation_error(err: ValidationError) -> tuple[str, str]:
     elif kind == "missing":
         reason = "required key is missing"
     elif kind in ("union_tag_invalid", "union_tag_not_found"):
-        reason = "kind must be one of: " + ", ".join(sorted(_THERMOSTAT_KINDS - {"circuit"}))
+        reason = "kind must be one of: " + ", ".join(sorted(_THERMOSTAT_KINDS))
     else:
         reason = msg.removeprefix("Value error, ")
         if "input" in first and kind not in ("value_error",) and not isinstance(first["input"], dict):

@@ -14,6 +14,7 @@ import numpy as np
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, model_validator
 
 from atticsim.materials import MATERIALS
+from atticsim.scenario.thermostat import CircuitThermostat, SetpointThermostat
 from atticsim.units import to_si
 
 
@@ -218,24 +219,7 @@ class Sensor(_Model):
     self_heating: Power = Field(0.0, ge=0.0, le=1.0, description="W dissipated in the sensor")
 
 
-class SetpointThermostat(_Model):
-    """An ideal comparator with hysteresis, given as switch-on and switch-off sensor temperatures."""
-
-    kind: Literal["setpoints"]
-    mode: Literal["heat", "cold"] = "heat"
-    on: Temperature = Field(ge=-40.0, le=120.0)
-    off: Temperature = Field(ge=-40.0, le=120.0)
-
-    @model_validator(mode="after")
-    def _order(self):
-        if self.mode == "heat" and not self.off < self.on:
-            raise ValueError(f"heat mode needs off < on (got on {self.on:g} degC, off {self.off:g} degC)")
-        if self.mode == "cold" and not self.on < self.off:
-            raise ValueError(f"cold mode needs on < off (got on {self.on:g} degC, off {self.off:g} degC)")
-        return self
-
-
-Thermostat = Annotated[Union[SetpointThermostat], Field(discriminator="kind")]
+Thermostat = Annotated[Union[SetpointThermostat, CircuitThermostat], Field(discriminator="kind")]
 
 
 class Simulation(_Model):

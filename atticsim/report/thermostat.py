@@ -1,0 +1,140 @@
+"""The thermostat circuit explained: switching points, self-heating, tolerance bands, mains checks; and
+the design the other way round. Returns plain dicts (for JSON) and text (for the terminal)."""
+
+from __future__ import annotations
+
+from atticsim.report.cautions import MAINS, caution_text
+
+
+def thermostat_report(scenario) -> dict:
+    """Everything the ``thermostat`` command prints about a circuit thermostat.
+
+    Keys (temperatures in degC, K for widths): ``on_c``, ``off_c``, ``hysteresis_k`` (thermistor
+    temperatures at which the fan switches), ``on_air_c``, ``off_air_c`` (air temperatures at those
+    switches with the thermistor's self-heating, using ``sensor.dissipation_constant``), ``on_band_c`` and
+    ``off_band_c`` (Monte-Carlo 5-95 % bands), ``on_worst_c``/``off_worst_c`` (worst-case corners), input
+    voltages, LED current, thermistor power at each threshold, findings, the mains checks when
+    ``[thermostat.mains]`` is given, and the cautions.
+    """
+    from atticsim.circuit import air_temperatures, check_mains, supply_current, tolerance_analysis
+
+    th = scenario.thermostat
+    if th.kind != "circuit":
+        raise ValueError(f"thermostat: kind is {th.kind!r}; this command explains a circuit thermostat "
+                         f"(kind = \"circuit\" with a [thermostat.circuit] table)")
+    params = th.circuit_params()
+    t = th.thresholds()
+    delta = scenario.sensor.dissipation_constant
+    on_air, off_air = air_temperatures(t, params, delta)
+    tol = tolerance_analysis(params, th.tolerance_spec(), samples=th.tolerances.samples, seed=th.tolerances.seed)
+    out = {
+        "mode": th.mode,
+        "feedback_on": params.feedback_on,
+        "thermistor_position": params.position,
+        "on_c": t.on_c, "off_c": t.off_c, "hysteresis_k": t.hysteresis_k,
+        "on_air_c": float(on_air), "off_air_c": float(off_air),
+        "dissipation_constant_w_per_k": delta,
+        "on_band_c": list(tol.on_band_c), "off_band_c": list(tol.off_band_c),
+        "on_worst_c": list(tol.on_worst_c), "off_worst_c": list(tol.off_worst_c),
+        "hysteresis_band_k": list(tol.hysteresis_band_k), "hysteresis_worst_k": list(tol.hysteresis_worst_k),
+        "tolerance_samples": tol.samples, "tolerance_seed": tol.seed, "never_switch": tol.never_switch,
+        "thermistor_r_on_ohm": t.r_on, "thermistor_r_off_ohm": t.r_off,
+        "v_plus_on_v": t.v_plus_on, "v_minus_on_v": t.v_minus_on,
+        "v_plus_off_v": t.v_plus_off, "v_minus_off_v": t.v_minus_off,
+        "v_out_high_v": t.v_out_high,
+        "led_current_on_a": t.led_current_on,
+        "sense_power_on_w": t.sense_power_on_w, "sense_power_off_w": t.sense_power_off_w,
+        "findings": list(t.findings),
+    }
+    if th.mains is not None:
+        load = max(float(supply_current(params, t.on_c, True)), float(supply_current(params, t.off_c, False)))
+        m = check_mains(th.mains.mains_params(), load)
+        out["mains"] = {k: getattr(m, k) for k in (
+            "dropper_current", "dc_available_low", "dc_available_high", "load_current", "supply_margin",
+            "zener_power", "discharge_voltage_1s", "bleed_resistor_max", "triac_loss", "heatsink_rth_needed",
+            "starting_current", "gate_resistor_min", "fuse_suggested")}
+        out["mains"]["findings"] = list(m.findings)
+    out["cautions"] = [MAINS]
+    return out
+
+
+def thermostat_text(report: dict, units: str = "si") -> str:
+    """Terminal text for :func:`thermostat_report`."""
+    from atticsim.units import c_to_f, k_to_delta_f
+
+    ip = units == "ip"
+
+    def t(c):
+        return f"{c_to_f(c):.1f} °F" if ip else f"{c:.2f} °C"
+
+    def dt(k):
+        return f"{k_to_delta_f(k):.1f} °F" if ip else f"{k:.2f} K"
+
+    r = report
+    lines = [
+        f"thermostat circuit ({r['mode']} mode, feedback on the {r['feedback_on']} divider, thermistor in the "
+        f"{r['thermistor_position']} position)",
+        f"  thermistor switches the fan ON at {t(r['on_c'])} and OFF at {t(r['off_c'])} "
+        f"(hysteresis {dt(r['hysteresis_k'])})",
+        f"  with self-heating ({r['dissipation_constant_w_per_k'] * 1e3:.2f} mW/K) the AIR is at {t(r['on_air_c'])} "
+        f"when it switches on and {t(r['off_air_c'])} when it switches off",
+        f"  part tolerances: ON within {t(r['on_band_c'][0])} .. {t(r['on_band_c'][1])} (5-95 %), worst case "
+        f"{t(r['on_worst_c'][0])} .. {t(r['on_worst_c'][1])}",
+        f"                   OFF within {t(r['off_band_c'][0])} .. {t(r['off_band_c'][1])} (5-95 %), worst case "
+        f"{t(r['off_worst_c'][0])} .. {t(r['off_worst_c'][1])}",
+        f"  comparator inputs at switch-on: + {r['v_plus_on_v']:.3f} V, - {r['v_minus_on_v']:.3f} V; "
+        f"at switch-off: + {r['v_plus_off_v']:.3f} V, - {r['v_minus_off_v']:.3f} V",
+        f"  LED current when on {r['led_current_on_a'] * 1e3:.2f} mA; thermistor dissipates "
+        f"{r['sense_power_on_w'] * 1e3:.2f} mW at switch-on, {r['sense_power_off_w'] * 1e3:.2f} mW at switch-off",
+    ]
+    lines += [f"  - {f}" for f in r["findings"]]
+    if "mains" in r:
+        m = r["mains"]
+        lines.append(f"  mains side: dropper {m['dropper_current'] * 1e3:.1f} mA ac; {m['dc_available_low'] * 1e3:.1f} "
+                     f"mA dc at low line for a {m['load_current'] * 1e3:.1f} mA load")
+        lines += [f"  - {f}" for f in m["findings"]]
+    lines.append(caution_text())
+    return "\n".join(lines)
+
+
+def design_report(scenario, on_c: float, off_c: float | None = None, hysteresis_k: float | None = None,
+                  series: str = "E24") -> dict:
+    """Choose the trimmer setting and feedback resistor for wanted switching temperatures.
+
+    The user's other parts (rail, dividers, thermistor, LED) are kept; see
+    :func:`atticsim.circuit.design_circuit` for the rounding rules.
+    """
+    from atticsim.circuit import design_circuit
+
+    th = scenario.thermostat
+    if th.kind != "circuit":
+        raise ValueError("thermostat: --design needs a circuit thermostat (kind = \"circuit\")")
+    d = design_circuit(th.circuit_params(), on_c, off_c=off_c, hysteresis_k=hysteresis_k, series=series)
+    out = {
+        "wanted_on_c": d.wanted_on_c, "wanted_off_c": d.wanted_off_c, "series": d.series,
+        "feedback_exact_ohm": d.feedback_exact, "sense_trim_exact_ohm": d.sense_trim_exact,
+        "feedback_ohm": d.feedback, "sense_trim_ohm": d.sense_trim,
+        "on_c": d.thresholds.on_c, "off_c": d.thresholds.off_c, "hysteresis_k": d.thresholds.hysteresis_k,
+        "sense_trim_fixed_ohm": d.sense_trim_fixed,
+        "fixed_on_c": d.thresholds_fixed.on_c if d.thresholds_fixed else None,
+        "fixed_off_c": d.thresholds_fixed.off_c if d.thresholds_fixed else None,
+        "findings": list(d.findings), "cautions": [MAINS],
+    }
+    return out
+
+
+def design_text(r: dict) -> str:
+    """Terminal text for :func:`design_report`."""
+    lines = [
+        f"design for ON at {r['wanted_on_c']:.2f} °C, OFF at {r['wanted_off_c']:.2f} °C ({r['series']} values):",
+        f"  feedback resistor: {r['feedback_ohm']:,.0f} ohm (exact {r['feedback_exact_ohm']:,.0f} ohm, rounded down: "
+        f"hysteresis at least as wide as asked)",
+        f"  trimmer setting: {r['sense_trim_ohm']:,.0f} ohm -> ON {r['on_c']:.2f} °C, OFF {r['off_c']:.2f} °C "
+        f"(hysteresis {r['hysteresis_k']:.2f} K)",
+    ]
+    if r["sense_trim_fixed_ohm"] is not None:
+        lines.append(f"  or a fixed {r['sense_trim_fixed_ohm']:,.0f} ohm in place of the trimmer -> ON "
+                     f"{r['fixed_on_c']:.2f} °C, OFF {r['fixed_off_c']:.2f} °C")
+    lines += [f"  - {f}" for f in r["findings"]]
+    lines.append(caution_text())
+    return "\n".join(lines)

@@ -1,0 +1,91 @@
+"""The circuit thermostat in scenarios, in the simulation and in the ``thermostat`` command."""
+
+import json
+from pathlib import Path
+
+import numpy as np
+import pytest
+from click.testing import CliRunner
+
+from atticsim.circuit import air_temperatures, switching_temperatures, thermistor_power
+from atticsim.cli.main import cli
+from atticsim.forcing.weather import load_weather
+from atticsim.pipeline import simulate
+from atticsim.scenario import load_scenario
+
+ROOT = Path(__file__).resolve().parent.parent
+CIRCUIT = ROOT / "scenarios" / "heron_lane_circuit.toml"
+
+
+@pytest.fixture(scope="module")
+def run():
+    sc = load_scenario(CIRCUIT, ["weather.start=2025-07-01", "weather.end=2025-07-01", "simulation.spinup_days=1"])
+    return sc, simulate(sc, weather=load_weather(str(ROOT / "weather_demo" / "saltmarsh_point_2025.csv")))
+
+
+def test_run_switches_at_the_circuit_thresholds(run):
+    sc, r = run
+    th = switching_temperatures(sc.thermostat.circuit_params())
+    ev = r.events
+    assert len(ev) >= 2
+    assert np.allclose(ev[ev.fan == "on"].sensor_c, th.on_c, atol=1e-6)
+    assert np.allclose(ev[ev.fan == "off"].sensor_c, th.off_c, atol=1e-6)
+
+
+def test_sensor_is_heated_by_its_divider_power(run):
+    # Steady self-heating: T_thermistor - T_air = P / delta (dissipation constant definition). At night
+    # the air changes slowly, so the sensor node must sit P(T_s)/delta above the air (within 0.05 K).
+    sc, r = run
+    ts = r.timeseries.between_time("01:00", "04:00")
+    p = thermistor_power(sc.thermostat.circuit_params(), ts["sensor_c"].to_numpy(), ts["fan_on"].to_numpy() > 0)
+    rise = ts["sensor_c"] - ts["attic_air_c"]
+    assert np.allclose(rise, p / sc.sensor.dissipation_constant, atol=0.05)
+    assert rise.mean() > 1.0  # about 3 mW into 1.5 mW/K: kelvins, not a rounding error
+
+
+def test_air_temperature_at_switch_on_matches_the_report(run):
+    # The report's steady-state "air temperature at switch-on" and the simulation's attic air at the
+    # switch-on instant agree (the sensor lags the slowly warming air by well under 0.2 K).
+    sc, r = run
+    params = sc.thermostat.circuit_params()
+    on_air, _ = air_temperatures(switching_temperatures(params), params, sc.sensor.dissipation_constant)
+    t_on = r.events[r.events.fan == "on"].time.iloc[0]
+    ts = r.timeseries
+    air_at = np.interp((t_on - ts.index[0]).total_seconds(), (ts.index - ts.index[0]).total_seconds(),
+                       ts["attic_air_c"].to_numpy())
+    assert air_at == pytest.approx(on_air, abs=0.2)
+
+
+def test_thermostat_command_json_keys():
+    r = CliRunner().invoke(cli, ["thermostat", str(CIRCUIT), "--json"])
+    assert r.exit_code == 0, r.output
+    data = json.loads(r.output)
+    for key in ("on_c", "off_c", "hysteresis_k", "on_air_c", "off_air_c", "on_band_c", "off_band_c"):
+        assert key in data
+    assert data["on_band_c"][0] < data["on_c"] < data["on_band_c"][1]
+    assert data["on_air_c"] < data["on_c"]  # a self-heated NTC switches before the air gets there
+    assert any("mains potential" in c for c in data["cautions"])
+
+
+def test_thermostat_design_command():
+    r = CliRunner().invoke(cli, ["thermostat", str(CIRCUIT), "--design", "--on", "42degC", "--off", "36degC",
+                                 "--json"])
+    assert r.exit_code == 0, r.output
+    d = json.loads(r.output)
+    assert d["on_c"] == pytest.approx(42.0, abs=1e-6)
+    assert d["hysteresis_k"] >= 6.0 - 1e-9  # feedback rounded in the safe direction (wider)
+
+
+def test_contradictory_thermistor_position_is_refused(tmp_path):
+    text = CIRCUIT.read_text().replace('feedback_on = "sense"', 'feedback_on = "sense"\nthermistor_position = "upper"')
+    p = tmp_path / "bad.toml"
+    p.write_text(text)
+    r = CliRunner().invoke(cli, ["thermostat", str(p)])
+    assert r.exit_code == 2
+    line = r.output.strip().splitlines()[-1]
+    assert str(p) in line and "thermostat" in line and "upper" in line, line
+
+
+def test_setpoint_scenario_is_refused_by_thermostat_command():
+    r = CliRunner().invoke(cli, ["thermostat"])
+    assert r.exit_code == 2 and "circuit" in r.output
