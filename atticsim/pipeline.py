@@ -68,7 +68,20 @@ def _spin_up(network, forcing, controller, period, y, fan_on, days, rtol, max_st
     return y, fan_on
 
 
-def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True) -> RawRuns:
+def resolve_period(frame, scenario, start=None, end=None, months=None, year=None):
+    """The period's start and end strings: explicit dates win, then a month range or season
+    (``months``, in ``year`` or the weather's first year), then the scenario's own dates."""
+    if months and (start or end):
+        raise ValueError("--months: give either --months or --start/--end, not both")
+    if months:
+        from atticsim.forcing.build import months_period
+
+        return months_period(months, year if year is not None else int(frame.index[0].year))
+    return start or scenario.weather.start, end or scenario.weather.end
+
+
+def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, months=None,
+            year=None) -> RawRuns:
     """Integrate the scenario with the fan under thermostat control and, optionally, with no fan.
 
     Parameters
@@ -83,10 +96,11 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True) -
         Also run the same period with the fan disabled (for the ceiling gain without the fan).
     """
     if weather is None:
-        weather = load_weather(scenario.weather.file)
+        weather = load_weather(scenario.weather.file, year=year)
     frame, meta = weather[0], weather[1]
     source = getattr(meta, "path", None) or scenario.weather.file
-    t0, t1 = period_bounds(frame, start or scenario.weather.start, end or scenario.weather.end, str(source))
+    start, end = resolve_period(frame, scenario, start, end, months, year)
+    t0, t1 = period_bounds(frame, start, end, str(source))
     forcing = build_forcing(frame, meta, scenario, t0, t1, source=str(source))
     base = forcing.times[0]
     period = Period(t0, t1, (t0 - base).total_seconds(), (t1 - base).total_seconds())
@@ -117,12 +131,25 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True) -
         without_fan, y_nofan = one(False)
     else:
         without_fan, y_nofan = None, None
+    notes = list(getattr(meta, "notes", [])) + list(forcing.notes)
     return RawRuns(network, forcing, period, output_times, with_fan, without_fan, y_fan, y_nofan,
-                   controller=controller, notes=list(forcing.notes))
+                   controller=controller, notes=notes)
 
 
-def simulate(scenario, weather=None, start=None, end=None):
-    """Simulate a scenario and compute its results (time series, events, summary, daily figures).
+def simulate(scenario, weather=None, start=None, end=None, months=None, year=None):
+    """Simulate a scenario and compute its results (time series, events, summary, daily and monthly figures).
+
+    Parameters
+    ----------
+    scenario : Scenario
+    weather : (DataFrame, meta), optional
+        Preloaded weather; default the scenario's ``weather.file``.
+    start, end : str, optional
+        ISO dates (end inclusive) overriding the scenario's period.
+    months : str, optional
+        A month range (``"jun-aug"``) or season (``"summer"``) instead of dates.
+    year : int, optional
+        Calendar year to lay a typical-year file on (and the year of ``months``).
 
     Returns
     -------
@@ -130,5 +157,5 @@ def simulate(scenario, weather=None, start=None, end=None):
     """
     from atticsim.results.metrics import build_result
 
-    raw = run_raw(scenario, weather, start, end, include_no_fan=True)
+    raw = run_raw(scenario, weather, start, end, include_no_fan=True, months=months, year=year)
     return build_result(scenario, raw)

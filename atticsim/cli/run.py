@@ -16,13 +16,16 @@ from atticsim.cli.options import (force_option, out_option, period_options, scen
 @weather_option
 @period_options[0]
 @period_options[1]
+@click.option("--months", help="Month range or season instead of dates: jun-aug, 7, summer, cooling, year.")
+@click.option("--year", type=int, help="Calendar year to run a typical-year weather file as (and of --months).")
 @set_option
 @units_option
 @force_option
-def run(scenario, out, weather, start, end, overrides, units, force):
+def run(scenario, out, weather, start, end, months, year, overrides, units, force):
     """Simulate SCENARIO (a TOML file; the built-in demo house if omitted) and write results to --out.
 
-    Writes summary.json, daily.csv, timeseries.csv, events.csv and temperatures.png.
+    Writes summary.json, daily.csv, monthly.csv, timeseries.csv, events.csv, temperatures.png and
+    monthly.png. --weather takes a file, pvlib:FILE (a typical-year file shipped with pvlib) or demo:NAME.
     """
     from atticsim.results.output import check_output_dir
     from atticsim.scenario import load_scenario
@@ -30,7 +33,7 @@ def run(scenario, out, weather, start, end, overrides, units, force):
     check_output_dir(Path(out), force)  # fail before a long run, not after
     overrides = list(overrides)
     if weather:
-        w = weather if weather.startswith("demo:") else str(Path(weather).resolve())
+        w = weather if weather.startswith(("demo:", "pvlib:")) else str(Path(weather).resolve())
         overrides.append(f'weather.file="{w}"')
     sc = load_scenario(scenario, overrides)
 
@@ -40,7 +43,7 @@ def run(scenario, out, weather, start, end, overrides, units, force):
     from atticsim.pipeline import simulate
 
     click.echo(f"simulating {sc.house.name} ...", err=True)
-    result = simulate(sc, start=start, end=end)
+    result = simulate(sc, start=start, end=end, months=months, year=year)
     files = write_outputs(out, result_writers(result, units), force=force)
     click.echo(summary_text(result, units))
     click.echo(f"wrote {len(files)} files to {out}", err=True)

@@ -103,6 +103,38 @@ def period_bounds(frame: pd.DataFrame, start: str | None, end: str | None, sourc
     return t0, t1
 
 
+MONTHS = ("jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep", "oct", "nov", "dec")
+FULL_MONTHS = ("january", "february", "march", "april", "may", "june", "july", "august", "september",
+               "october", "november", "december")
+#: Named seasons (northern-hemisphere meteorological seasons; "cooling" is our May-September).
+SEASONS = {"summer": "jun-aug", "autumn": "sep-nov", "fall": "sep-nov", "winter": "dec-feb",
+           "spring": "mar-may", "cooling": "may-sep", "year": "jan-dec"}
+
+
+def months_period(text: str, year: int, source: str = "--months"):
+    """Start and end dates (ISO, end inclusive) of a month range such as ``"jun-aug"``, ``"7"``,
+    ``"jul"`` or a named season (:data:`SEASONS`). A range that wraps the year end (``dec-feb``) starts
+    in December of ``year - 1``."""
+    spec = SEASONS.get(text.strip().lower(), text.strip().lower())
+
+    def month(m):
+        if m.isdigit() and 1 <= int(m) <= 12:
+            return int(m)
+        if m in MONTHS or m in FULL_MONTHS:
+            return (MONTHS.index(m) if m in MONTHS else FULL_MONTHS.index(m)) + 1
+        raise ValueError(f"{source}: {text!r} is not a month, a month range like jun-aug, or one of "
+                         f"{', '.join(SEASONS)}")
+
+    parts = spec.split("-")
+    if len(parts) > 2 or not all(parts):
+        raise ValueError(f"{source}: {text!r} is not a month range like jun-aug")
+    m0, m1 = month(parts[0]), month(parts[-1])
+    y0 = year - 1 if m1 < m0 else year
+    start = pd.Timestamp(year=y0, month=m0, day=1)
+    end = pd.Timestamp(year=year, month=m1, day=1) + pd.offsets.MonthEnd(0)
+    return start.date().isoformat(), end.date().isoformat()
+
+
 def build_forcing(frame: pd.DataFrame, meta, scenario, start=None, end=None, source="weather") -> Forcing:
     """Forcing for the scenario's roof over [start, end] from a normalised weather frame.
 

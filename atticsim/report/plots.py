@@ -76,3 +76,38 @@ def plot_temperatures(result, path: str | Path, units: str = "si") -> None:
     fig.tight_layout()
     fig.savefig(path, dpi=110)
     plt.close(fig)
+
+
+def plot_monthly(result, path: str | Path, units: str = "si") -> None:
+    """Bar charts per month: fan run hours and starts; ceiling heat gain with and without the fan."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    m = result.monthly
+    ip = units == "ip"
+    x = np.arange(len(m))
+    fig, (ax1, ax2) = plt.subplots(2, 1, figsize=(10, 6.5), sharex=True)
+    ax1.bar(x - 0.2, m["fan_run_hours"], 0.4, color="#1f77b4", label="fan run hours")
+    ax1b = ax1.twinx()
+    ax1b.bar(x + 0.2, m["fan_starts"], 0.4, color="#ff7f0e", label="starts")
+    ax1.set_ylabel("run hours")
+    ax1b.set_ylabel("starts")
+    h1, l1 = ax1.get_legend_handles_labels()
+    h2, l2 = ax1b.get_legend_handles_labels()
+    ax1.legend(h1 + h2, l1 + l2, loc="upper left", fontsize=8)
+    k = 3412.14163 if ip else 1.0
+    unit = "Btu" if ip else "kWh"
+    ax2.bar(x - 0.2, m["ceiling_heat_gain_no_fan_kwh"] * k, 0.4, color="#8c564b", label="ceiling gain, no fan")
+    ax2.bar(x + 0.2, m["ceiling_heat_gain_kwh"] * k, 0.4, color="#17becf", label="ceiling gain, with fan")
+    ax2.set_ylabel(f"ceiling heat gain [{unit}]")
+    ax2.legend(loc="upper left", fontsize=8)
+    ax2.set_xticks(x, m["month"])
+    for a in (ax1, ax2):
+        a.grid(axis="y", alpha=0.3)
+    house = getattr(getattr(result.scenario, "house", None), "name", "")
+    ax1.set_title(f"{house}: by month", fontsize=11)
+    fig.tight_layout()
+    fig.savefig(path, dpi=110)
+    plt.close(fig)

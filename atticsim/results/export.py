@@ -8,7 +8,7 @@ from atticsim.results.output import write_json
 def result_writers(result, units: str = "si") -> dict:
     """file name -> writer(path) for a :class:`SimulationResult`."""
     from atticsim.report.cautions import ALL
-    from atticsim.report.plots import plot_temperatures
+    from atticsim.report.plots import plot_monthly, plot_temperatures
 
     def summary(path):
         write_json(path, {**result.summary, "notes": result.notes, "cautions": list(ALL)})
@@ -26,5 +26,7 @@ def result_writers(result, units: str = "si") -> dict:
         "daily.csv": lambda p: result.daily.to_csv(p, index=False, float_format="%.4f"),
         "timeseries.csv": timeseries,
         "events.csv": events,
+        "monthly.csv": lambda p: result.monthly.to_csv(p, index=False, float_format="%.4f"),
         "temperatures.png": lambda p: plot_temperatures(result, p, units),
+        "monthly.png": lambda p: plot_monthly(result, p, units),
     }

@@ -44,6 +44,7 @@ class SimulationResult:
     events: pd.DataFrame
     notes: list = field(default_factory=list)
     scenario: object = None
+    monthly: pd.DataFrame | None = None
 
 
 def fan_intervals(events, fan_at_start: bool, t_start: float, t_end: float):
@@ -161,7 +162,23 @@ def build_result(scenario, raw) -> SimulationResult:
     }
     daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n)
     notes = list(raw.notes)
-    return SimulationResult(summary, daily, ts, events, notes, scenario)
+    return SimulationResult(summary, daily, ts, events, notes, scenario, monthly_figures(daily))
+
+
+def monthly_figures(daily: pd.DataFrame) -> pd.DataFrame:
+    """Per calendar month: run hours, starts, short cycles, fan kWh, ceiling gain with and without the fan
+    (sums of the days), and the peak attic air temperature (maximum of the days)."""
+    if daily.empty:
+        return daily
+    month = pd.to_datetime(daily["date"]).dt.strftime("%Y-%m")
+    sums = ["fan_run_hours", "fan_starts", "short_cycles", "fan_energy_kwh", "ceiling_heat_gain_kwh",
+            "ceiling_heat_gain_no_fan_kwh"]
+    g = daily.groupby(month)
+    out = g[sums].sum(min_count=1)
+    out["attic_air_max_c"] = g["attic_air_max_c"].max()
+    out["outdoor_air_max_c"] = g["outdoor_air_max_c"].max()
+    out["days"] = g.size()
+    return out.reset_index(names="month")
 
 
 def held_integral(updates, t_end, name, positive=False):

@@ -105,7 +105,7 @@ def scenario_from_dict(data: dict, source: str, base_dir: Path | None = None) ->
         key, reason = _format_validation_error(err)
         raise ScenarioError(source, key, reason) from None
     wfile = scenario.weather.file
-    if base_dir is not None and not wfile.startswith("demo:") and not Path(wfile).is_absolute():
+    if base_dir is not None and not wfile.startswith(("demo:", "pvlib:")) and not Path(wfile).is_absolute():
         weather = scenario.weather.model_copy(update={"file": str((base_dir / wfile).resolve())})
         scenario = scenario.model_copy(update={"weather": weather})
     return scenario
