@@ -159,3 +159,49 @@ def simulate(scenario, weather=None, start=None, end=None, months=None, year=Non
 
     raw = run_raw(scenario, weather, start, end, include_no_fan=True, months=months, year=year)
     return build_result(scenario, raw)
+
+
+def design_day(scenario, date, t_max, daily_range, dew_point=None, wind_speed=3.4, tolerance=0.05,
+               max_days=64):
+    """Simulate a clear design day repeated until the attic's response is periodic.
+
+    The day is repeated as spin-up (2, 4, 8, ... days) until every node temperature at the end of the
+    reported day is within ``tolerance`` [K] of its value at the start; the result is that periodic day.
+    The summary gains ``periodic_residual_k`` and ``spinup_days_used``.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        Its site gives the place.
+    date : str
+        ISO date of the design day.
+    t_max, daily_range : float
+        Design maximum dry-bulb [degC] and daily range [K].
+    dew_point, wind_speed : float, optional
+        Dew point [degC] (default the day's minimum dry-bulb) and wind speed [m/s].
+    """
+    from atticsim.forcing.design_day import design_day_weather
+    from atticsim.results.metrics import build_result
+
+    site = scenario.site
+    weather = design_day_weather(site.latitude, site.longitude, site.altitude, site.utc_offset, date, t_max,
+                                 daily_range, dew_point, wind_speed)
+    days = 2
+    while True:
+        sim = scenario.simulation.model_copy(update={"spinup_days": days})
+        sc = scenario.model_copy(update={"simulation": sim})
+        raw = run_raw(sc, weather, start=date, end=date, include_no_fan=True)
+        n = raw.network.n_nodes
+        residual = float(np.max(np.abs(raw.with_fan.y_end[:n] - raw.y_start_fan[:n])))
+        residual_nf = float(np.max(np.abs(raw.without_fan.y_end[:n] - raw.y_start_nofan[:n])))
+        residual = max(residual, residual_nf)
+        if residual < tolerance or days >= max_days:
+            break
+        days *= 2
+    result = build_result(sc, raw)
+    result.summary["periodic_residual_k"] = residual
+    result.summary["spinup_days_used"] = days
+    if residual >= tolerance:
+        result.notes.append(f"not periodic within {tolerance} K after {days} repeated days "
+                            f"(residual {residual:.3f} K)")
+    return result

@@ -33,10 +33,12 @@ def cli():
 
 
 def _register():
+    from atticsim.cli.designday import designday
     from atticsim.cli.run import run
     from atticsim.cli.thermostat import thermostat
 
     cli.add_command(run)
+    cli.add_command(designday)
     cli.add_command(thermostat)
 
 

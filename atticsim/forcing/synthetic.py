@@ -65,6 +65,35 @@ DEMO_CLIMATES = {
 }
 
 
+def daily_range_fraction(hour):
+    """ASHRAE fraction of the daily range at local standard hour(s) [0-24], linear between the table's
+    hourly values (hour 0 = hour 24)."""
+    table = np.concatenate([[ASHRAE_DAILY_RANGE_FRACTION[-1]], ASHRAE_DAILY_RANGE_FRACTION])
+    return np.interp(hour, np.arange(0, 25), table)
+
+
+def site_tz(utc_offset: float) -> str:
+    """The IANA fixed-offset zone name for a whole-hour UTC offset (Etc/GMT signs are inverted)."""
+    if utc_offset != int(utc_offset):
+        raise ValueError(f"utc_offset: synthetic weather needs a whole-hour UTC offset (got {utc_offset:g})")
+    return f"Etc/GMT{-int(utc_offset):+d}"
+
+
+def clear_sky(times, latitude, longitude, altitude, linke_turbidity=None):
+    """Clear-sky GHI, DNI, DHI [W/m^2] and the sun's position at tz-aware instants.
+
+    Ineichen-Perez clear-sky model (Ineichen & Perez 2002) via pvlib; the Linke turbidity defaults to
+    pvlib's monthly climatology for the site (Remund et al. 2003) when not given.
+    """
+    import pvlib
+
+    loc = pvlib.location.Location(latitude, longitude, tz=str(times.tz), altitude=altitude)
+    solpos = loc.get_solarposition(times)
+    kw = {} if linke_turbidity is None else {"linke_turbidity": linke_turbidity}
+    clear = loc.get_clearsky(times, model="ineichen", solar_position=solpos, **kw)
+    return clear, solpos
+
+
 def synthetic_weather(climate: DemoClimate, start: str, days: int, seed: int = 1, step_minutes: int = 60):
     """Generate invented weather for a demo climate.
 
@@ -92,9 +121,7 @@ def synthetic_weather(climate: DemoClimate, start: str, days: int, seed: int = 1
     import pvlib
 
     rng = np.random.default_rng(seed)
-    tz = f"Etc/GMT{-int(climate.utc_offset):+d}" if climate.utc_offset == int(climate.utc_offset) else None
-    if tz is None:
-        raise ValueError("demo climates need a whole-hour UTC offset")
+    tz = site_tz(climate.utc_offset)
     t0 = pd.Timestamp(start).tz_localize(tz)
     n = int(days * 24 * 60 / step_minutes) + 1
     times = pd.date_range(t0, periods=n, freq=f"{step_minutes}min")
@@ -119,18 +146,13 @@ def synthetic_weather(climate: DemoClimate, start: str, days: int, seed: int = 1
     t_max = t_max - 3.0 * c + t_anom[day_index]
     drange = climate.daily_range * (1.0 - 0.5 * c)
     hour = times.hour.to_numpy() + times.minute.to_numpy() / 60.0
-    # Fraction-of-range table is for hours 1..24; hour 0 is hour 24 of the previous day.
-    f = np.interp(hour, np.arange(0, 25), np.concatenate([[ASHRAE_DAILY_RANGE_FRACTION[-1]],
-                                                          ASHRAE_DAILY_RANGE_FRACTION]))
-    temp_air = t_max - f * drange
+    temp_air = t_max - daily_range_fraction(hour) * drange
     dew = 0.5 * (climate.dew_summer + climate.dew_winter) + 0.5 * (
         climate.dew_summer - climate.dew_winter) * season + dew_anom[day_index]
     temp_dew = np.minimum(dew, temp_air - 0.5)
 
-    loc = pvlib.location.Location(climate.latitude, climate.longitude, tz=tz, altitude=climate.altitude)
-    solpos = loc.get_solarposition(times)
-    clear = loc.get_clearsky(times, model="ineichen", solar_position=solpos,
-                             linke_turbidity=climate.linke_turbidity)
+    clear, solpos = clear_sky(times, climate.latitude, climate.longitude, climate.altitude,
+                              climate.linke_turbidity)
     ghi = clear["ghi"].to_numpy() * (1.0 - 0.75 * c**3.4)  # Kasten & Czeplak (1980)
     split = pvlib.irradiance.erbs(ghi, solpos["zenith"].to_numpy(), times)
     dni = np.nan_to_num(np.asarray(split["dni"], float))
