@@ -33,6 +33,7 @@ KINDS: dict[str, tuple[str, str]] = {
     "specific_heat": ("J/(kg*K)", "a specific heat capacity"),
     "r_value": ("m**2*K/W", "a thermal resistance per area (R-value)"),
     "conductance": ("W/K", "a thermal conductance"),
+    "heat_capacity": ("J/K", "a heat capacity"),
     "velocity": ("m/s", "a speed"),
     "voltage": ("V", "a voltage"),
     "resistance": ("ohm", "a resistance"),
@@ -153,7 +154,7 @@ def _example(kind: str) -> str:
         "power": "180 W", "energy": "1.5 kWh", "temperature": "38 degC", "temperature_difference": "4 K",
         "time": "5 min", "angle": "6/12", "pressure": "0.1 in_wc", "mass": "900 kg",
         "density": "500 kg/m3", "conductivity": "0.12 W/(m*K)", "specific_heat": "1880 J/(kg*K)",
-        "r_value": "R-38", "conductance": "0.0015 W/K", "velocity": "3 m/s", "voltage": "12 V",
+        "r_value": "R-38", "conductance": "0.0015 W/K", "heat_capacity": "400 J/K", "velocity": "3 m/s", "voltage": "12 V",
         "resistance": "10 kohm", "current": "10 mA", "capacitance": "0.47 uF", "frequency": "60 Hz",
         "dimensionless": "0.9",
     }[kind]

@@ -40,6 +40,11 @@ class AirflowState:
     pressure_attic, pressure_house : gauge pressures at the attic floor relative to outdoors [Pa]
     depressurisation : fall of the house pressure caused by the running fan [Pa] (NaN when not solved)
     residual : relative mass residual of the attic balance [-]
+    in_lower, in_upper : outdoor air mass entering the lower / upper air layer [kg/s]
+    out_lower, out_upper : attic air mass leaving the lower / upper layer to outdoors [kg/s]
+        (openings below the layer interface belong to the lower layer; with one well-mixed layer
+        everything is "lower"... and "upper" is the same node)
+    path_flows : per-path volume flows, + into the attic [m^3/s] (names in AirflowModel.path_names)
     """
 
     outdoor_in: float
@@ -53,6 +58,10 @@ class AirflowState:
     pressure_house: float = 0.0
     depressurisation: float = math.nan
     residual: float = 0.0
+    in_lower: float = 0.0
+    in_upper: float = 0.0
+    out_lower: float = 0.0
+    out_upper: float = 0.0
     path_flows: tuple = ()
 
 
@@ -81,6 +90,7 @@ class AirflowModel:
 
     def __init__(self, scenario, pressure: float = P_STANDARD):
         self.pressure = pressure
+        self.layer_height = scenario.attic.layer_height
         self.enabled = scenario.fan.enabled
         self.room_temperature = scenario.ceiling.room_temperature
         vents = scenario.vents
@@ -97,6 +107,8 @@ class AirflowModel:
             self.update_interval = scenario.simulation.airflow_step
             self.paths = build_paths(scenario)
             self.speed_ratio = fan.speed_ratio
+        self.path_heights = {} if self.paths is None else (
+            {(v.name or v.kind): v.height for v in self.paths.vents} | {"fan": self.paths.fan.height})
         self.path_names = [] if self.paths is None else (
             [v.name or v.kind for v in self.paths.vents] + ["fan"]
             + [c.name for c in self.paths.ceiling_leaks] + (["house envelope"] if self.paths.house else []))
@@ -118,11 +130,13 @@ class AirflowModel:
         """
         running = bool(fan_on) and self.enabled
         if self.kind == "simple":
+            # Simple form: outdoor air enters low (soffits) and leaves high (ridge, fan).
             q = self.passive + (self.rated_flow if running else 0.0)
-            rho = float(air_density(temp_outdoor, self.pressure))
-            return AirflowState(outdoor_in=rho * q, house_in=0.0, attic_to_house=0.0, outdoor_flow=q,
+            m = float(air_density(temp_outdoor, self.pressure)) * q
+            return AirflowState(outdoor_in=m, house_in=0.0, attic_to_house=0.0, outdoor_flow=q,
                                 fan_flow=self.rated_flow if running else 0.0,
-                                fan_power=self.rated_power if running else 0.0)
+                                fan_power=self.rated_power if running else 0.0,
+                                in_lower=m, out_upper=m)
         from atticsim.airflow.balance import solve_attic_balance
 
         kw = dict(temp_house=self.room_temperature, wind_speed=max(float(wind_speed), 0.0),
@@ -135,12 +149,20 @@ class AirflowModel:
         outside = [p for p in b.paths if p.kind in ("vent", "fan")]
         outdoor_in = sum(p.mass_flow for p in outside if p.mass_flow > 0.0)
         outdoor_vol = sum(p.volume_flow for p in outside if p.volume_flow > 0.0)
+        layer = {name: ("upper" if z >= self.layer_height else "lower") for name, z in self.path_heights.items()}
+        flows = {"in_lower": 0.0, "in_upper": 0.0, "out_lower": 0.0, "out_upper": 0.0}
+        for p in outside:
+            side = layer.get(p.name, "upper")
+            if p.mass_flow > 0.0:
+                flows[f"in_{side}"] += p.mass_flow
+            else:
+                flows[f"out_{side}"] -= p.mass_flow
         return AirflowState(
             outdoor_in=outdoor_in, house_in=max(b.ceiling_mass_flow, 0.0),
             attic_to_house=max(-b.ceiling_mass_flow, 0.0), outdoor_flow=outdoor_vol,
             fan_flow=b.fan_flow if running else 0.0, fan_power=b.fan_power if running else 0.0,
             ceiling_flow=b.ceiling_flow, pressure_attic=b.pressure_attic, pressure_house=b.pressure_house,
-            depressurisation=depress, residual=b.residual,
+            depressurisation=depress, residual=b.residual, **flows,
             path_flows=tuple(self._path_flow(b, name) for name in self.path_names))
 
     @staticmethod

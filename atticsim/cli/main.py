@@ -34,12 +34,13 @@ def cli():
 
 def _register():
     from atticsim.cli.designday import designday
+    from atticsim.cli.placements import placements
     from atticsim.cli.run import run
+    from atticsim.cli.sweep import sweep
     from atticsim.cli.thermostat import thermostat
 
-    cli.add_command(run)
-    cli.add_command(designday)
-    cli.add_command(thermostat)
+    for command in (run, designday, thermostat, placements, sweep):
+        cli.add_command(command)
 
 
 _register()

@@ -81,7 +81,7 @@ def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_t
         Largest integrator step [s]; bounds how fast a crossing-and-recrossing could hide.
     """
     n_nodes = network.n_nodes
-    i_sensor, i_air = network.index["sensor"], network.index.get("air")
+    i_sensor = network.index["sensor"]
     airflow = getattr(network, "airflow", None)
     update = airflow.update_interval if airflow is not None else math.inf
     # Absolute tolerances: 1e-5 K on temperatures, 1e-2 J on the books (their scale is MJ).
@@ -99,7 +99,7 @@ def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_t
     while t < t_end:
         if airflow is not None:
             f = forcing.at(t)
-            network.air = airflow.solve(y[i_air], f[0], f[2], state["fan"], with_depressurisation=True)
+            network.air = airflow.solve(float(network.mean_air(y)), f[0], f[2], state["fan"], with_depressurisation=True)
             updates.append((t, network.air))
         seg_end = min(t_end, (math.floor(t / update) + 1) * update) if math.isfinite(update) else t_end
         evs = None

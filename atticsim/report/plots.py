@@ -111,3 +111,53 @@ def plot_monthly(result, path: str | Path, units: str = "si") -> None:
     fig.tight_layout()
     fig.savefig(path, dpi=110)
     plt.close(fig)
+
+
+def plot_placements(results: dict, path: str | Path, units: str = "si") -> None:
+    """One day's sensor traces per placement over the attic air, and fan-state strips per placement.
+
+    The day shown is the one with the highest outdoor temperature in the period.
+    """
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.dates as mdates
+    import matplotlib.pyplot as plt
+
+    ip = units == "ip"
+    conv = (lambda c: c * 9.0 / 5.0 + 32.0) if ip else (lambda c: c)
+    first = next(iter(results.values())).timeseries
+    day = first["outdoor_air_c"].resample("1D").max().idxmax()
+    sel = lambda ts: ts[(ts.index >= day) & (ts.index < day + np.timedelta64(1, "D"))]  # noqa: E731
+    names = list(results)
+    fig, (ax, ax2) = plt.subplots(2, 1, figsize=(12, 7.5), sharex=True,
+                                  gridspec_kw={"height_ratios": [3, 0.35 * len(names) + 0.6]})
+    ref = sel(first)
+    t = ref.index.tz_localize(None)
+    upper = ref["air_upper_c"] if "air_upper_c" in ref else ref["attic_air_c"]
+    ax.plot(t, conv(upper), color="k", lw=2.0, alpha=0.35, label=f"upper attic air ({names[0]} run)")
+    ax.plot(t, conv(ref["outdoor_air_c"]), color="0.2", lw=1.0, ls="--", label="outdoor air")
+    colors = plt.rcParams["axes.prop_cycle"].by_key()["color"]
+    for k, name in enumerate(names):
+        ts = sel(results[name].timeseries)
+        ax.plot(ts.index.tz_localize(None), conv(ts["sensor_c"]), lw=1.1, color=colors[k % len(colors)],
+                label=f"sensor: {name}")
+        on = ts["fan_on"].to_numpy() > 0
+        ax2.fill_between(ts.index.tz_localize(None), k - 0.4, k + 0.4, where=on, step="post",
+                         color=colors[k % len(colors)], lw=0)
+    s = next(iter(results.values())).summary
+    ax.axhline(conv(s["switch_on_sensor_c"]), color="k", lw=0.7, ls=":", label="switch-on")
+    ax.axhline(conv(s["switch_off_sensor_c"]), color="0.4", lw=0.7, ls=":", label="switch-off")
+    ax.set_ylabel(f"temperature [{'°F' if ip else '°C'}]")
+    ax.set_title(f"Sensor placements on {day.date()} (hottest day of the period)", fontsize=11)
+    ax.grid(alpha=0.3)
+    ax.legend(loc="upper left", fontsize=8, ncol=3, framealpha=0.85)
+    ax2.set_yticks(range(len(names)), names)
+    ax2.set_ylim(-0.6, len(names) - 0.4)
+    ax2.invert_yaxis()
+    ax2.set_xlabel("local standard time  (bars: fan on)")
+    ax2.xaxis.set_major_formatter(mdates.DateFormatter("%H:%M"))
+    ax2.grid(axis="x", alpha=0.3)
+    fig.tight_layout()
+    fig.savefig(path, dpi=110)
+    plt.close(fig)

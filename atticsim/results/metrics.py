@@ -66,12 +66,13 @@ def energy_balance_error_pct(capacities, y_start, y_end, books_end, n_nodes) -> 
     """Closure of the building's energy books [% of gross exchange].
 
     stored = sum C_i (T_i,end - T_i,start) over the building nodes; in = solar + sky + ground + exterior
-    convection + ventilation - ceiling gain; error = (in - stored) / (sum of |book|) * 100.
+    convection + ventilation - ceiling gain + triac heat; error = (in - stored) / (sum of |book|) * 100.
     """
     caps = capacities[:n_nodes - 1]  # the sensor (last node) is outside the building books
     stored = float(np.sum(caps * (y_end[:n_nodes - 1] - y_start[:n_nodes - 1])))
     b = dict(zip(BOOKS, books_end))
-    inflow = b["solar"] + b["sky"] + b["ground"] + b["exterior_convection"] + b["ventilation"] - b["ceiling_gain"]
+    inflow = (b["solar"] + b["sky"] + b["ground"] + b["exterior_convection"] + b["ventilation"] - b["ceiling_gain"]
+              + b["triac_heat"])
     gross = sum(abs(b[k]) for k in ATTIC_BOOKS)
     return 100.0 * (inflow - stored) / gross if gross > 0 else 0.0
 
@@ -99,8 +100,12 @@ def build_result(scenario, raw) -> SimulationResult:
     cols = {"outdoor_air_c": f[0], "sky_c": f[1] - KELVIN, "wind_speed_m_s": f[2]}
     for i, p in enumerate(net.plane_names):
         cols[f"poa_{p}_w_m2"] = f[4 + i]
+    attic_air = net.mean_air(temps)
+    cols["attic_air_c"] = attic_air
     for name, i in idx.items():
-        cols[("attic_air" if name == "air" else name) + "_c"] = temps[i]
+        if name != "air":
+            cols[name + "_c"] = temps[i]
+    cols["sensor_local_air_c"] = q["sensor_local_air"] * np.ones(run.t.size)
     cols["fan_on"] = run.fan.astype(int)
     cols["outdoor_air_flow_m3_s"] = air["outdoor_flow"]
     cols["fan_flow_m3_s"] = air["fan_flow"]
@@ -140,8 +145,9 @@ def build_result(scenario, raw) -> SimulationResult:
         "fan_starts": int(sum(1 for e in run.events if e[1])),
         "fan_energy_kwh": books["fan_electric"] / J_PER_KWH,
         **_cycle_figures(intervals, sim.short_cycle),
-        "attic_air_max_c": float(np.max(temps[idx["air"]])),
-        "attic_air_mean_c": float(np.mean(temps[idx["air"]])),
+        "attic_air_max_c": float(np.max(attic_air)),
+        "attic_air_mean_c": float(np.mean(attic_air)),
+        "attic_upper_air_max_c": float(np.max(temps[net.i_upper])),
         "outdoor_air_max_c": float(np.max(f[0])),
         "deck_max_c": float(np.max(temps[net.n_planes:2 * net.n_planes])),
         "sensor_max_c": float(np.max(temps[idx["sensor"]])),
@@ -157,7 +163,8 @@ def build_result(scenario, raw) -> SimulationResult:
         "thermostat_kind": scenario.thermostat.kind,
         "switch_on_sensor_c": raw.controller.on,
         "switch_off_sensor_c": raw.controller.off,
-        "sensor_self_heating_max_k": float(np.max(temps[idx["sensor"]] - temps[idx["air"]])),
+        "sensor_above_local_air_max_k": float(np.max(temps[idx["sensor"]] - q["sensor_local_air"])),
+        "sensor_placement": scenario.sensor.placement,
         **airflow_figures(scenario, raw, air, books, books_nf),
     }
     daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n)

@@ -140,6 +140,24 @@ class Attic(_Model):
     framing_area: Area = Field(gt=0.0, description="m2 of framing surface exposed to attic air")
     floor_emittance: Fraction = Field(0.90, gt=0.0, le=1.0,
                                       description="thermal emittance of the insulation top")
+    ridge_height: Length | None = Field(None, gt=0.0, description="m above the attic floor; default 2 V / A")
+    air_layers: Literal[1, 2] = Field(2, description="1 = well-mixed attic air, 2 = upper and lower layers")
+    upper_volume_fraction: Fraction = Field(
+        0.25, gt=0.0, lt=1.0, description="share of the air above mid-height (gable: 1/4)")
+    layer_mixing_ach: float = Field(
+        1.0, ge=0.0, le=10000.0, description="1/h, exchange between layers in stable stratification")
+    fan_mixing_ratio: float = Field(
+        1.0, ge=0.0, le=100.0, description="extra exchange between layers while the fan runs, x fan flow")
+
+    @property
+    def height(self) -> float:
+        """Ridge height above the attic floor [m] (default 2 V / A, a gable attic's triangle)."""
+        return self.ridge_height if self.ridge_height else 2.0 * self.volume / self.floor_area
+
+    @property
+    def layer_height(self) -> float:
+        """Height of the interface between the lower and upper air layers [m] (mid-height)."""
+        return 0.5 * self.height if self.air_layers == 2 else 0.0
 
 
 class Ceiling(_Model):
@@ -191,6 +209,7 @@ class Fan(_Model):
     height: Length = Field(2.0, ge=0.0, description="m above the attic floor")
     kind: Literal["gable", "roof-vent", "ridge"] = "gable"
     idle_area: Area = Field(0.0, ge=0.0, description="m2 free area through the stopped fan")
+    diameter: Length = Field(0.36, gt=0.0, description="m, fan opening (sets the exhaust stream speed)")
 
     @model_validator(mode="after")
     def _curve(self):
@@ -212,11 +231,22 @@ class Fan(_Model):
 
 
 class Sensor(_Model):
-    """The thermistor's thermal behaviour: a small mass coupled to attic air."""
+    """The thermistor: where it is, and its thermal behaviour.
 
-    time_constant: Duration = Field(20.0, gt=0.0, le=3600.0, description="s, in attic air")
-    dissipation_constant: Conductance = Field(0.0015, gt=0.0, description="W/K, to attic air")
-    self_heating: Power = Field(0.0, ge=0.0, le=1.0, description="W dissipated in the sensor")
+    Without ``body`` it is a first-order mass with a fixed time constant and dissipation constant; with a
+    ``body`` preset its coupling follows the local air speed (sphere/cylinder convection correlations).
+    """
+
+    placement: Literal["ridge", "mid", "exhaust", "intake", "deck", "board"] = "mid"
+    body: Literal["epoxy-bead-2mm", "glass-bead-1mm", "disc-5mm", "probe-6mm"] | None = None
+    time_constant: Duration = Field(20.0, gt=0.0, le=3600.0, description="s, in attic air (without body)")
+    dissipation_constant: Conductance = Field(0.0015, gt=0.0, description="W/K, to attic air (without body)")
+    self_heating: Power = Field(0.0, ge=0.0, le=1.0, description="W dissipated in the sensor (setpoints)")
+    contact_conductance: Conductance = Field(0.005, gt=0.0, description="W/K to the deck (placement deck)")
+    enclosure_conductance: Conductance = Field(0.25, gt=0.0, description="W/K, control box to attic air")
+    enclosure_capacity: Annotated[float, _q("heat_capacity")] = Field(
+        400.0, gt=0.0, description="J/K of the control box")
+    triac_loss: Power | None = Field(None, ge=0.0, description="W heating the box while the fan runs")
 
 
 Thermostat = Annotated[Union[SetpointThermostat, CircuitThermostat], Field(discriminator="kind")]

@@ -1,0 +1,88 @@
+"""``atticsim sweep``: run a tuning study (vary scenario keys, run every point, recommend one)."""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+import click
+
+from atticsim.cli.options import (force_option, out_option, period_options, scenario_argument, set_option,
+                                  weather_option)
+
+
+@click.command()
+@scenario_argument
+@click.option("--vary", "vary", multiple=True, metavar="KEY=START:STOP:STEP[unit]",
+              help="Vary a scenario key over a range (STOP included when on the grid) or a list a,b,c[unit]; "
+                   "repeatable. thermostat.hysteresis=1:5:1K sets off = on - width (heat mode).")
+@out_option
+@click.option("--study", "study_file", type=click.Path(dir_okay=False),
+              help="Study TOML file (scenario, period, [[vary]], sampling, limits); options given here win.")
+@click.option("--sample", type=click.Choice(["grid", "lhs"]), help="Full grid (default) or Latin hypercube.")
+@click.option("--points", type=int, help="Number of Latin-hypercube points.")
+@click.option("--seed", type=int, help="Seed of the Latin-hypercube sample (recorded in study.json).")
+@period_options[0]
+@period_options[1]
+@weather_option
+@set_option
+@click.option("--workers", type=click.IntRange(min=1), help="Local worker processes [default: all cores].")
+@click.option("--scheduler", metavar="tcp://HOST:PORT", help="Run the points on a Dask scheduler.")
+@click.option("--resume", is_flag=True, help="Continue a study in --out, keeping its finished points.")
+@force_option
+@click.option("--starts-limit", metavar="N/h",
+              help="Fan starts allowed in any hour [default: 6/h, common practice for small motors].")
+@click.option("--comfort-limit", metavar="TEMP", help="Attic air limit for the degree-hours [default: 38 degC].")
+@click.option("--heat-metric", type=click.Choice(["degree-hours", "ceiling-gain"]),
+              help="Heat figure the recommendation minimises [default: degree-hours].")
+def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, weather, overrides, workers,
+          scheduler, resume, force, starts_limit, comfort_limit, heat_metric):
+    """Run SCENARIO (the built-in demo house if omitted) at every point of a study and write the results to --out.
+
+    Writes points.csv/points.parquet (every varied value and figure per point), study.json (versions, seed,
+    inputs), journal.jsonl (one line per finished point; --resume continues from it), pareto.csv,
+    recommendation.json and short_cycling_map.png.
+
+    Example: atticsim sweep --vary thermostat.on=36:44:2degC --vary thermostat.hysteresis=1:5:1K
+    --start 2025-07-01 --end 2025-07-07 --out hysteresis_study
+    """
+    from atticsim.study.spec import Study, load_study_file, parse_comfort_limit, parse_starts_limit, parse_vary
+
+    study = load_study_file(study_file) if study_file else Study()
+    if scenario:
+        study.scenario = str(Path(scenario).resolve())
+    study.base_overrides = list(study.base_overrides) + list(overrides)
+    if weather:
+        w = weather if weather.startswith("demo:") else str(Path(weather).resolve())
+        study.base_overrides.append(f'weather.file="{w}"')
+    for text in vary:
+        axis = parse_vary(text)
+        study.axes = [a for a in study.axes if a.key != axis.key] + [axis]
+    if sample:
+        study.sample = sample
+    if points is not None:
+        study.points = points
+    if seed is not None:
+        study.seed = seed
+    if start:
+        study.start = start
+    if end:
+        study.end = end
+    if starts_limit is not None:
+        study.starts_limit = parse_starts_limit(starts_limit)
+    if comfort_limit is not None:
+        study.comfort_limit_c = parse_comfort_limit(comfort_limit)
+    if heat_metric:
+        study.heat_metric = heat_metric
+    study.check()
+
+    from atticsim.study.analysis import recommendation_text
+    from atticsim.study.runner import run_study
+
+    outcome = run_study(study, out, workers=workers, scheduler=scheduler, resume=resume, force=force,
+                        progress=sys.stderr, command={"sweep": click.get_current_context().params})
+    for note in outcome.notes:
+        click.echo(f"note: {note}", err=True)
+    click.echo(recommendation_text(outcome.recommendation, outcome.table, [a.key for a in study.axes]))
+    click.echo(f"{len(outcome.table)} points ({outcome.computed} computed, {outcome.reused} reused) on "
+               f"{outcome.backend} in {outcome.wall_s:.1f} s; wrote {len(outcome.files)} files to {out}", err=True)

@@ -1,0 +1,126 @@
+"""The short-cycling map: heatmaps of a study over a one- or two-key grid (e.g. switch-on temperature x
+hysteresis) with the cells that break the starts-per-hour limit hatched (matplotlib, drawn off-screen)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+
+#: Panels of the map: (column, title, colour map). Titles carry the units.
+PANELS = [
+    ("starts_per_day", "fan starts per day", "viridis"),
+    ("short_cycles", "short cycles (runs < short-cycle time)", "viridis"),
+    ("fan_run_hours", "fan run time [h]", "viridis"),
+    ("attic_air_max_c", "attic air peak [°C]", "inferno"),
+    ("degree_hours_above_limit", "attic degree-hours above {comfort:g} °C [K·h]", "inferno"),
+    ("net_benefit_kwh", "net benefit [kWh] (+ = fan saves)", "RdBu"),
+]
+
+
+def map_axes(study) -> tuple[list[str] | None, str]:
+    """The keys a map can be drawn over (x first), or None and the reason it cannot."""
+    if study.sample != "grid":
+        return None, "heatmaps need --sample grid"
+    keys = [ax.key for ax in study.axes if len(ax.values) > 1]
+    if not keys:
+        return None, "no key takes more than one value"
+    if len(keys) > 2:
+        return None, f"{len(keys)} keys take several values; a map shows one or two"
+    return keys, ""
+
+
+def _grid(table, keys):
+    """Category order of each key's given values (order of first appearance) and each row's cell."""
+    import pandas as pd
+
+    xs = list(pd.unique(table[f"{keys[0]}_given"]))
+    ys = list(pd.unique(table[f"{keys[1]}_given"])) if len(keys) > 1 else [""]
+    col = [xs.index(v) for v in table[f"{keys[0]}_given"]]
+    row = [ys.index(v) for v in table[f"{keys[1]}_given"]] if len(keys) > 1 else [0] * len(table)
+    return xs, ys, np.array(row), np.array(col)
+
+
+def short_cycling_map(table, keys: list[str], path: str | Path, starts_limit: float, recommended=None,
+                      comfort_limit_c: float = 38.0) -> None:
+    """Draw the heatmaps of a study grid to a PNG.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The points table (``<key>_given`` columns, the panel columns, ``max_starts_per_hour``, ``status``).
+    keys : list of str
+        One or two varied keys: x, then y.
+    path : str or Path
+        PNG file to write.
+    starts_limit : float
+        Starts in any hour above which a cell is hatched [1/h].
+    recommended : int, optional
+        Point number to outline.
+    comfort_limit_c : float
+        Comfort limit in the degree-hour panel's title [degC].
+    """
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from matplotlib.colors import Normalize
+    from matplotlib.figure import Figure
+    from matplotlib.patches import Patch, Rectangle
+
+    xs, ys, rows, cols = _grid(table, keys)
+    ok = (table["status"] == "ok").to_numpy()
+    starts_h = np.asarray(table["max_starts_per_hour"], dtype=float) if "max_starts_per_hour" in table \
+        else np.full(len(table), np.nan)
+    violates = np.zeros((len(ys), len(xs)), bool)
+    violates[rows, cols] = ok & (starts_h > starts_limit)
+    panels = [p for p in PANELS if p[0] in table]
+    ncol = 3
+    nrow = -(-len(panels) // ncol)
+    w = max(4.2, 0.55 * len(xs) + 2.2)
+    h = max(2.6, 0.45 * len(ys) + 1.9)
+    fig = Figure(figsize=(ncol * w, nrow * h + 0.9), layout="constrained")
+    axes = fig.subplots(nrow, ncol, squeeze=False).ravel()
+    annotate = len(xs) * len(ys) <= 120
+    for ax, (column, title, cmap) in zip(axes, panels):
+        z = np.full((len(ys), len(xs)), np.nan)
+        vals = np.asarray(table[column], dtype=float)
+        z[rows[ok], cols[ok]] = vals[ok]
+        norm = None
+        finite = z[np.isfinite(z)]
+        if column == "net_benefit_kwh" and finite.size:
+            # symmetric about zero so that the colour tells the sign (blue: the fan saves energy)
+            span = float(np.max(np.abs(finite))) or 1.0
+            norm = Normalize(-span, span)
+        im = ax.imshow(z, origin="lower", aspect="auto", cmap=cmap, norm=norm, interpolation="nearest")
+        fig.colorbar(im, ax=ax, shrink=0.9)
+        if annotate and finite.size:
+            lo, hi = float(finite.min()), float(finite.max())
+            for i in range(len(ys)):
+                for j in range(len(xs)):
+                    if np.isfinite(z[i, j]):
+                        frac = float(im.norm(z[i, j])) if hi > lo else 0.5
+                        # dark cells (low end of viridis/inferno, both ends of RdBu) get white text
+                        dark = (frac < 0.2 or frac > 0.8) if cmap == "RdBu" else frac < 0.5
+                        colour = "white" if dark else "black"
+                        ax.text(j, i, f"{z[i, j]:.4g}", ha="center", va="center", fontsize=7, color=colour)
+        for i, j in zip(*np.nonzero(violates)):
+            ax.add_patch(Rectangle((j - 0.5, i - 0.5), 1, 1, fill=False, hatch="///", edgecolor="0.55", lw=0))
+        if recommended is not None and recommended in set(table["point"]):
+            k = int(np.flatnonzero(table["point"].to_numpy() == recommended)[0])
+            ax.add_patch(Rectangle((cols[k] - 0.5, rows[k] - 0.5), 1, 1, fill=False, edgecolor="#00c000", lw=2.5))
+        ax.set_title(title.format(comfort=comfort_limit_c), fontsize=9)
+        ax.set_xticks(range(len(xs)), [str(x) for x in xs], rotation=45 if len(xs) > 6 else 0, fontsize=7)
+        ax.set_xlabel(keys[0], fontsize=8)
+        if len(keys) > 1:
+            ax.set_yticks(range(len(ys)), [str(y) for y in ys], fontsize=7)
+            ax.set_ylabel(keys[1], fontsize=8)
+        else:
+            ax.set_yticks([])
+    for ax in axes[len(panels):]:
+        ax.set_visible(False)
+    handles = [Patch(facecolor="white", edgecolor="0.55", hatch="///",
+                     label=f"more than {starts_limit:g} fan starts in some hour"),
+               Patch(facecolor="white", edgecolor="#00c000", lw=2.5, label="recommended point")]
+    fig.legend(handles=handles, loc="outside lower center", ncol=2, fontsize=8, frameon=False)
+    fig.suptitle("Short-cycling map", fontsize=11)
+    fig.savefig(path, dpi=110)

@@ -1,0 +1,654 @@
+"""Run a study: plan the points, execute them (in this process, on local processes, or on any
+``concurrent.futures.Executor`` such as a Dask cluster's), journal each finished point, resume, and write the
+tables, the recommendation and the maps.
+
+Files in the study folder ``DIR``:
+
+``study.json``          what was run: versions, seed, the scenario's full content, the vary spec, the period,
+                        every point's overrides, and a log of runs (backend, workers, wall time)
+``journal.jsonl``       one JSON line per finished point, appended and flushed as each point finishes
+``points.csv``, ``points.parquet``   the table: varied values (SI and as given), every summary figure and
+                        the study figures (starts_per_day, max_starts_per_hour, degree_hours_above_limit,
+                        net_benefit_kwh, hysteresis_k)
+``pareto.csv``          the Pareto-optimal points
+``recommendation.json`` the recommended point and the rule
+``short_cycling_map.png``   heatmaps over a one- or two-key grid, limit violations hatched
+"""
+
+from __future__ import annotations
+
+import concurrent.futures as cf
+import datetime as _dt
+import hashlib
+import json
+import math
+import os
+import platform
+import sys
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from atticsim.study.analysis import (DEFAULT_COOLING_COP, degree_hours_above, max_starts_in_window,
+                                     net_benefit_kwh)
+from atticsim.study.spec import DERIVED, HEAT_METRICS, Study, StudyError, point_overrides
+
+FORMAT = 1
+JOURNAL = "journal.jsonl"
+STUDY_JSON = "study.json"
+#: Every file a study writes into DIR (``--force`` removes these and nothing else).
+STUDY_FILES = (STUDY_JSON, JOURNAL, "points.csv", "points.parquet", "pareto.csv", "recommendation.json",
+               "short_cycling_map.png")
+NET_BENEFIT_BASIS = ("summary net_benefit_kwh when the model gives it, else (ceiling_heat_gain_no_fan_kwh - "
+                     "ceiling_heat_gain_kwh) / COP - fan_energy_kwh with COP = house.cooling_cop or "
+                     f"{DEFAULT_COOLING_COP:g} (common practice, no source)")
+
+
+# --- one point (runs in a worker) ---------------------------------------------------------------------
+
+_WEATHER: dict = {}
+
+
+def _weather(spec: str):
+    """The weather for a spec, loaded once per worker process (or thread pool)."""
+    if spec not in _WEATHER:
+        from atticsim.forcing.weather import load_weather
+
+        _WEATHER[spec] = load_weather(spec)
+    return _WEATHER[spec]
+
+
+def point_metrics(result, scenario, comfort_limit_c: float) -> dict:
+    """Study figures of one simulation result.
+
+    Parameters
+    ----------
+    result : SimulationResult
+        A finished run (``summary``, ``timeseries`` with ``attic_air_c``, ``events``).
+    scenario : Scenario
+        The point's scenario (for the thermostat and the cooling COP).
+    comfort_limit_c : float
+        Attic air limit for the degree-hours [degC].
+
+    Returns
+    -------
+    dict
+        ``starts_per_day`` [1/d], ``max_starts_per_hour`` [starts in any 60 min], ``degree_hours_above_limit``
+        [K*h], ``net_benefit_kwh`` [kWh], ``hysteresis_k`` [K] (None without on/off setpoints).
+    """
+    s = result.summary
+    days = s.get("days")
+    starts = s.get("fan_starts")
+    ts = result.timeseries
+    t0 = ts.index[0]
+    hours = (ts.index - t0).total_seconds().to_numpy() / 3600.0
+    dh = degree_hours_above(ts["attic_air_c"].to_numpy(), hours, comfort_limit_c)
+    ev = result.events
+    on = ev[ev["fan"] == "on"]
+    start_s = [(t - t0).total_seconds() for t in on["time"]]
+    th = scenario.thermostat
+    hyst = abs(float(th.on) - float(th.off)) if hasattr(th, "on") and hasattr(th, "off") else None
+    cop = float(getattr(getattr(scenario, "house", None), "cooling_cop", DEFAULT_COOLING_COP))
+    return {
+        "starts_per_day": float(starts) / float(days) if days else None,
+        "max_starts_per_hour": max_starts_in_window(start_s, 3600.0),
+        "degree_hours_above_limit": dh,
+        "net_benefit_kwh": net_benefit_kwh(s, cop),
+        "hysteresis_k": hyst,
+    }
+
+
+def _plain(value):
+    """numpy scalars -> Python numbers, non-finite floats -> None (JSON-safe)."""
+    if hasattr(value, "item") and not isinstance(value, (str, bytes)):
+        value = value.item()
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    if isinstance(value, (str, int, float, bool)) or value is None:
+        return value
+    return str(value)
+
+
+def run_point(task: dict) -> dict:
+    """Simulate one study point (top-level and picklable: this is what workers run).
+
+    Parameters
+    ----------
+    task : dict
+        ``index``, ``key``, ``scenario`` (a validated Scenario), ``start``, ``end``, ``comfort_limit_c``.
+
+    Returns
+    -------
+    dict
+        ``index``, ``key``, ``status`` ("ok" or "error"), ``error``, ``summary``, ``metrics``, ``elapsed_s``.
+    """
+    t = time.perf_counter()
+    out = {"index": task["index"], "key": task["key"], "status": "ok", "error": None, "summary": {}, "metrics": {}}
+    try:
+        from atticsim.pipeline import simulate
+
+        sc = task["scenario"]
+        result = simulate(sc, weather=_weather(sc.weather.file), start=task["start"], end=task["end"])
+        out["summary"] = {k: _plain(v) for k, v in result.summary.items()
+                          if not isinstance(v, (list, dict, tuple))}
+        out["metrics"] = {k: _plain(v) for k, v in point_metrics(result, sc, task["comfort_limit_c"]).items()}
+    except Exception as exc:  # a failed point is recorded, the study goes on
+        out["status"] = "error"
+        out["error"] = f"{type(exc).__name__}: {str(exc).splitlines()[0] if str(exc) else ''}"
+    out["elapsed_s"] = time.perf_counter() - t
+    return out
+
+
+# --- planning -----------------------------------------------------------------------------------------
+
+@dataclass
+class PlannedPoint:
+    """One point of a study, validated."""
+
+    index: int
+    key: str
+    overrides: list[str]
+    given: dict
+    si: dict
+    scenario: object
+
+    def task(self, study: Study) -> dict:
+        return {"index": self.index, "key": self.key, "scenario": self.scenario, "start": study.start,
+                "end": study.end, "comfort_limit_c": study.comfort_limit_c}
+
+
+@dataclass
+class Plan:
+    """A study's validated points and its base scenario."""
+
+    study: Study
+    base: object
+    points: list[PlannedPoint]
+    fingerprint: str
+
+
+def _dump_value(dump, key: str):
+    node = dump
+    for part in key.split("."):
+        if isinstance(node, list):
+            try:
+                node = node[int(part)]
+            except (ValueError, IndexError):
+                return None
+        elif isinstance(node, dict) and part in node:
+            node = node[part]
+        else:
+            return None
+    return node if not isinstance(node, (dict, list)) else json.dumps(node)
+
+
+def _hash(obj) -> str:
+    return hashlib.sha256(json.dumps(obj, sort_keys=True, default=str).encode()).hexdigest()[:16]
+
+
+def plan_study(study: Study) -> Plan:
+    """Sample the study's points and validate each point's scenario before anything runs.
+
+    Raises
+    ------
+    StudyError
+        One line naming the point's values and the scenario's complaint.
+    """
+    from atticsim.scenario import ScenarioError, load_scenario
+    from atticsim.units import to_si
+
+    base_overrides = list(study.base_overrides)
+    try:
+        base = load_scenario(study.scenario, base_overrides)
+    except ScenarioError as exc:
+        raise StudyError(str(exc)) from None
+    points = []
+    for i, p in enumerate(study.sample_points()):
+        label = ", ".join(f"{k}={v.display}" for k, v in p.items())
+        try:
+            overrides = point_overrides(p, base)
+            sc = load_scenario(study.scenario, base_overrides + overrides)
+        except ScenarioError as exc:
+            raise StudyError(f"--vary: point {i} ({label}): {exc.key + ': ' if exc.key else ''}{exc.reason}") from None
+        except StudyError as exc:
+            raise StudyError(f"--vary: point {i} ({label}): {exc}") from None
+        dump = sc.model_dump(mode="json")
+        si = {}
+        for k, v in p.items():
+            si[k] = to_si(v.display, DERIVED[k][2]) if k in DERIVED else _dump_value(dump, k)
+        key = _hash({"scenario": dump, "start": study.start, "end": study.end, "comfort_c": study.comfort_limit_c})
+        points.append(PlannedPoint(i, key, overrides, {k: v.display for k, v in p.items()}, si, sc))
+    for spec in sorted({pt.scenario.weather.file for pt in points}):
+        if not spec.startswith("demo:") and not Path(spec).is_file():
+            raise StudyError(f"weather.file: {spec}: file not found")
+    return Plan(study, base, points, _hash([pt.key for pt in points]))
+
+
+# --- journal ------------------------------------------------------------------------------------------
+
+def read_journal(path: Path) -> list[dict]:
+    """Records of a journal; an incomplete last line (a write cut off by a crash) is dropped from the file."""
+    if not path.exists():
+        return []
+    raw = path.read_bytes()
+    records, good_end, pos = [], 0, 0
+    for line in raw.splitlines(keepends=True):
+        pos += len(line)
+        text = line.strip()
+        if not text:
+            good_end = pos
+            continue
+        try:
+            rec = json.loads(text)
+        except json.JSONDecodeError:
+            if pos == len(raw):
+                break  # torn last write
+            raise StudyError(f"{path}: damaged line {len(records) + 1}; remove it or start over with --force") from None
+        if not line.endswith(b"\n"):
+            break
+        records.append(rec)
+        good_end = pos
+    if good_end < len(raw):
+        with open(path, "r+b") as fh:
+            fh.truncate(good_end)
+    return records
+
+
+class Journal:
+    """Append-only JSON-lines record of finished points, flushed to disk after every line."""
+
+    def __init__(self, path: Path):
+        self.path = path
+        self._fh = open(path, "a", encoding="utf-8")
+
+    def append(self, record: dict) -> None:
+        self._fh.write(json.dumps(record, allow_nan=False) + "\n")
+        self._fh.flush()
+        os.fsync(self._fh.fileno())
+
+    def close(self) -> None:
+        self._fh.close()
+
+
+# --- progress -----------------------------------------------------------------------------------------
+
+def _hms(seconds: float) -> str:
+    seconds = max(0, int(round(seconds)))
+    return f"{seconds // 3600}:{seconds // 60 % 60:02d}:{seconds % 60:02d}"
+
+
+class Progress:
+    """Progress with an ETA on a text stream (stderr): updated in place on a terminal, else a line every ~5 %."""
+
+    def __init__(self, total: int, reused: int, stream=None, label: str = "sweep"):
+        self.total, self.reused, self.done, self.failed = total, reused, reused, 0
+        self.stream, self.label = stream, label
+        self.t0 = time.perf_counter()
+        self.tty = bool(stream is not None and getattr(stream, "isatty", lambda: False)())
+        self.every = max(1, (total - reused) // 20)
+
+    def line(self) -> str:
+        computed = self.done - self.reused
+        elapsed = time.perf_counter() - self.t0
+        left = self.total - self.done
+        eta = _hms(elapsed / computed * left) if computed else "?"
+        pct = 100.0 * self.done / self.total if self.total else 100.0
+        extra = f" ({self.reused} reused{f', {self.failed} failed' if self.failed else ''})" \
+            if self.reused or self.failed else ""
+        return f"{self.label}: {self.done}/{self.total} points{extra} {pct:3.0f}%  elapsed {_hms(elapsed)}  ETA {eta}"
+
+    def start(self) -> None:
+        if self.stream is not None:
+            self._emit()
+
+    def update(self, record: dict) -> None:
+        self.done += 1
+        self.failed += record.get("status") != "ok"
+        if self.stream is not None and (self.tty or (self.done - self.reused) % self.every == 0
+                                        or self.done == self.total):
+            self._emit()
+
+    def _emit(self) -> None:
+        if self.tty:
+            self.stream.write("\r" + self.line().ljust(79))
+        else:
+            self.stream.write(self.line() + "\n")
+        self.stream.flush()
+
+    def close(self) -> None:
+        if self.stream is not None and self.tty:
+            self.stream.write("\n")
+            self.stream.flush()
+
+
+# --- execution ----------------------------------------------------------------------------------------
+
+def versions() -> dict:
+    """Versions of Python, atticsim and the libraries that shape the numbers."""
+    from importlib import metadata
+
+    import atticsim
+
+    out = {"python": sys.version.split()[0], "platform": platform.platform(), "atticsim": atticsim.__version__}
+    for name in ("numpy", "scipy", "pandas", "pvlib", "pydantic", "pint", "matplotlib", "pyarrow", "dask",
+                 "distributed"):
+        try:
+            out[name] = metadata.version(name)
+        except metadata.PackageNotFoundError:
+            pass
+    return out
+
+
+def dask_executor(address: str):
+    """A ``concurrent.futures`` executor on a Dask scheduler (``tcp://host:port``) and its closing function.
+
+    Needs the ``dask`` extra (``pip install 'atticsim[dask]'``). Tasks are submitted with ``pure=False`` so that
+    Dask never answers a point from its cache.
+    """
+    try:
+        from distributed import Client
+    except ImportError:
+        raise StudyError("--scheduler: needs Dask distributed: pip install 'dask[distributed]'") from None
+    try:
+        client = Client(address, timeout="10s")
+    except (OSError, TimeoutError, ValueError) as exc:
+        raise StudyError(f"--scheduler {address}: cannot connect ({str(exc).splitlines()[0]})") from None
+    return client.get_executor(pure=False), client.close
+
+
+def process_executor(workers: int):
+    """A local process pool.
+
+    On Linux, when this process runs no other thread, workers are forked (fast: they inherit the loaded
+    modules and never re-import the calling script). Otherwise (other threads running, other platforms)
+    they start from a fresh interpreter ("forkserver" or "spawn"), which imports the calling script again:
+    a Python script that calls :func:`run_study` with several workers then needs the usual
+    ``if __name__ == "__main__":`` guard.
+    """
+    import multiprocessing
+    import threading
+
+    methods = multiprocessing.get_all_start_methods()
+    if sys.platform.startswith("linux") and "fork" in methods and threading.active_count() == 1:
+        method = "fork"
+    else:
+        method = "forkserver" if "forkserver" in methods else "spawn"
+    return cf.ProcessPoolExecutor(max_workers=workers, mp_context=multiprocessing.get_context(method))
+
+
+@dataclass
+class StudyOutcome:
+    """What :func:`run_study` did."""
+
+    out: Path
+    table: object
+    recommendation: dict
+    files: list[Path]
+    computed: int
+    reused: int
+    failed: int
+    wall_s: float
+    backend: str
+    notes: list[str] = field(default_factory=list)
+
+
+def _check_dir(out: Path, plan: Plan, resume: bool, force: bool) -> dict | None:
+    """Check DIR without changing it; return the earlier study.json on resume."""
+    if resume and force:
+        raise StudyError("--resume and --force: choose one (continue the study, or start it over)")
+    if out.exists() and not out.is_dir():
+        raise StudyError(f"{out}: exists and is not a folder")
+    previous = None
+    if resume and (out / STUDY_JSON).exists():
+        try:
+            previous = json.loads((out / STUDY_JSON).read_text())
+        except json.JSONDecodeError:
+            raise StudyError(f"{out / STUDY_JSON}: not valid JSON; start over with --force") from None
+        if previous.get("fingerprint") != plan.fingerprint:
+            raise StudyError(f"--resume: {out} holds a different study (scenario, points, period or comfort "
+                             f"limit differ); use a new --out, or --force to start over")
+    elif resume and (out / JOURNAL).exists():
+        raise StudyError(f"--resume: {out} has a journal but no {STUDY_JSON}; use --force to start over")
+    elif not resume and out.exists() and any(out.iterdir()) and not force:
+        raise StudyError(f"{out}: folder already holds files; pass --resume to continue a study there "
+                         f"or --force to start over")
+    return previous
+
+
+def _prepare_dir(out: Path, resume: bool) -> None:
+    """Create DIR; when not resuming, remove an earlier study's files (and only those)."""
+    out.mkdir(parents=True, exist_ok=True)
+    if not resume:
+        for name in STUDY_FILES:
+            (out / name).unlink(missing_ok=True)
+
+
+def _write_atomic(path: Path, write) -> None:
+    tmp = path.with_name(f".tmp-{path.name}")
+    write(tmp)
+    os.replace(tmp, path)
+
+
+def _study_record(plan: Plan, previous: dict | None, command) -> dict:
+    study = plan.study
+    now = _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds")
+    return {
+        "format": FORMAT,
+        "fingerprint": plan.fingerprint,
+        "created": (previous or {}).get("created", now),
+        "command": command if command is not None else (previous or {}).get("command"),
+        "versions": versions(),
+        "study": study.describe(),
+        "scenario_source": study.scenario or "<built-in demo house>",
+        "scenario": plan.base.model_dump(mode="json"),
+        "net_benefit_basis": NET_BENEFIT_BASIS,
+        "points": [{"point": p.index, "key": p.key, "given": p.given, "overrides": p.overrides}
+                   for p in plan.points],
+        "runs": list((previous or {}).get("runs", [])),
+    }
+
+
+def build_table(plan: Plan, records: dict):
+    """The points table in point order from the plan and the journal's records (key -> record)."""
+    import pandas as pd
+
+    rows = []
+    for p in plan.points:
+        rec = records.get(p.key, {"status": "missing", "error": "not computed", "summary": {}, "metrics": {}})
+        row = {"point": p.index, "status": rec["status"]}
+        for k in p.given:
+            row[k] = p.si[k]
+            row[f"{k}_given"] = p.given[k]
+        row.update(rec.get("summary") or {})
+        row.update(rec.get("metrics") or {})
+        row["error"] = rec.get("error")
+        row["overrides"] = json.dumps(p.overrides)
+        rows.append(row)
+    table = pd.DataFrame(rows)
+    for col in ("starts_per_day", "max_starts_per_hour", "degree_hours_above_limit", "net_benefit_kwh",
+                "hysteresis_k", "fan_starts", "fan_energy_kwh", "fan_run_hours", "short_cycles", "attic_air_max_c",
+                "ceiling_heat_gain_kwh"):
+        if col in table:
+            table[col] = pd.to_numeric(table[col], errors="coerce")
+    return table
+
+
+def run_study(study: Study, out, *, workers: int | None = None, scheduler: str | None = None,
+              executor: cf.Executor | None = None, resume: bool = False, force: bool = False, progress=None,
+              on_point=None, command=None, plots: bool = True) -> StudyOutcome:
+    """Run every point of a study not already in the journal, then write the table, analysis and maps.
+
+    Parameters
+    ----------
+    study : Study
+        What to vary and how.
+    out : str or Path
+        Study folder. A folder with files needs ``resume`` (continue) or ``force`` (start over).
+    workers : int, optional
+        Local worker processes; default all cores; 1 runs the points in this process.
+    scheduler : str, optional
+        Dask scheduler address (``tcp://host:port``); the points run on its workers.
+    executor : concurrent.futures.Executor, optional
+        Any executor to run the points on (the caller owns it); overrides ``workers`` and ``scheduler``.
+    resume : bool
+        Keep the points already in DIR's journal and compute only the others.
+    force : bool
+        Remove an earlier study's files from DIR first.
+    progress : text stream, optional
+        Where the progress line goes (stderr in the CLI); None for silence.
+    on_point : callable, optional
+        Called as ``on_point(record, done, total)`` after each point is journaled.
+    command : JSON-friendly object, optional
+        The command and its options, recorded in study.json.
+    plots : bool
+        Draw the short-cycling map.
+
+    Returns
+    -------
+    StudyOutcome
+    """
+    import importlib.util
+
+    if importlib.util.find_spec("pyarrow") is None:
+        raise StudyError("points.parquet needs pyarrow: pip install pyarrow")
+    out = Path(out)
+    if resume and study.seed is None and study.sample == "lhs" and (out / STUDY_JSON).exists():
+        try:  # an interrupted Latin-hypercube study resumes with the seed it drew
+            study.seed = json.loads((out / STUDY_JSON).read_text())["study"]["seed"]
+        except (json.JSONDecodeError, KeyError, TypeError):
+            pass
+    plan = plan_study(study)
+    previous = _check_dir(out, plan, resume, force)
+    wanted = {p.key for p in plan.points}
+    done = {}
+    if resume:
+        for rec in read_journal(out / JOURNAL):
+            if rec.get("key") in wanted and rec.get("status") == "ok":
+                done[rec["key"]] = rec
+    todo = [p for p in plan.points if p.key not in done]
+    reused = len(plan.points) - len(todo)
+
+    close = None
+    if executor is not None:
+        backend = f"executor {type(executor).__name__}"
+    elif scheduler:
+        executor, close = dask_executor(scheduler)
+        backend = f"dask {scheduler}"
+    else:
+        if workers is not None and workers < 1:
+            raise StudyError(f"--workers: must be at least 1 (got {workers})")
+        n = min(workers or os.cpu_count() or 1, max(1, len(todo)))
+        if n > 1:
+            executor = process_executor(n)
+            close = lambda: executor.shutdown(wait=True)  # noqa: E731
+            backend = f"local processes x{n}"
+        else:
+            backend = "this process"
+    try:
+        _prepare_dir(out, resume)
+        record = _study_record(plan, previous, command)
+        _write_atomic(out / STUDY_JSON, lambda p: p.write_text(json.dumps(record, indent=2, default=str) + "\n"))
+    except BaseException:
+        if close is not None:
+            close()
+        raise
+
+    bar = Progress(len(plan.points), reused, progress)
+    bar.start()
+    journal = Journal(out / JOURNAL)
+    t_start = time.perf_counter()
+    started = _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds")
+    by_key = {p.key: p for p in plan.points}
+    computed = failed = 0
+
+    def finish(rec):
+        nonlocal computed, failed
+        p = by_key[rec["key"]]
+        rec = {**rec, "point": p.index, "given": p.given, "overrides": p.overrides}
+        journal.append(rec)
+        computed += 1
+        failed += rec["status"] != "ok"
+        done[rec["key"]] = rec
+        bar.update(rec)
+        if on_point is not None:
+            on_point(rec, bar.done, bar.total)
+
+    futures = []
+    try:
+        if executor is None:
+            for p in todo:
+                finish(run_point(p.task(study)))
+        else:
+            futures = [executor.submit(run_point, p.task(study)) for p in todo]
+            for fut in cf.as_completed(futures):
+                try:
+                    result = fut.result()
+                except cf.process.BrokenProcessPool:
+                    raise StudyError(f"a worker process died; the {computed + reused} finished points are kept "
+                                     f"in {out / JOURNAL}: rerun with --resume") from None
+                finish(result)
+    except BaseException:
+        for fut in futures:
+            fut.cancel()
+        if close is not None and scheduler is None:
+            executor.shutdown(wait=False, cancel_futures=True)
+            close = None
+        raise
+    finally:
+        journal.close()
+        bar.close()
+        if close is not None:
+            close()
+    wall = time.perf_counter() - t_start
+
+    from atticsim.study.analysis import pareto_columns, pareto_mask, recommend
+
+    table = build_table(plan, done)
+    files = []
+
+    def put(name, write):
+        _write_atomic(out / name, write)
+        files.append(out / name)
+
+    put("points.csv", lambda p: table.to_csv(p, index=False))
+    put("points.parquet", lambda p: table.to_parquet(p, index=False))
+    heat_col = HEAT_METRICS[study.heat_metric]
+    ok = (table["status"] == "ok").to_numpy()
+    cols = pareto_columns(heat_col)
+    mask = pareto_mask(table[cols].to_numpy(dtype=float)) & ok if all(c in table for c in cols) else ok & False
+    put("pareto.csv", lambda p: table[mask].to_csv(p, index=False))
+    rec = recommend(table, study.starts_limit, heat_col)
+    rec["pareto_points"] = [int(i) for i in table.loc[mask, "point"]]
+    rec["pareto_objectives"] = cols
+    if rec.get("point") is not None:
+        row = table[table["point"] == rec["point"]].iloc[0]
+        rec["values"] = {k: _plain(row[k]) for k in plan.points[0].given}
+        rec["given"] = {k: row[f"{k}_given"] for k in plan.points[0].given}
+        rec["figures"] = {k: _plain(row[k]) for k in (
+            "starts_per_day", "max_starts_per_hour", "short_cycles", "fan_run_hours", "fan_energy_kwh",
+            "attic_air_max_c", "degree_hours_above_limit", "ceiling_heat_gain_kwh", "net_benefit_kwh",
+            "hysteresis_k") if k in row}
+        rec["overrides"] = plan.points[rec["point"]].overrides
+    rec["comfort_limit_c"] = study.comfort_limit_c
+    put("recommendation.json", lambda p: p.write_text(json.dumps(rec, indent=2, default=_plain) + "\n"))
+    notes = []
+    if plots:
+        from atticsim.study.plots import map_axes, short_cycling_map
+
+        keys, why = map_axes(study)
+        if keys:
+            put("short_cycling_map.png", lambda p: short_cycling_map(
+                table, keys, p, study.starts_limit, rec.get("point"), study.comfort_limit_c))
+        else:
+            notes.append(f"no short-cycling map: {why}")
+    if failed or (table["status"] != "ok").any():
+        bad = table[table["status"] != "ok"]
+        notes.append(f"{len(bad)} point(s) failed, e.g. point {int(bad['point'].iloc[0])}: {bad['error'].iloc[0]}"
+                     " (rerun with --resume to retry them)")
+
+    record["runs"].append({"started": started, "backend": backend, "computed": computed, "reused": reused,
+                           "failed": failed, "wall_s": round(wall, 3)})
+    _write_atomic(out / STUDY_JSON, lambda p: p.write_text(json.dumps(record, indent=2, default=str) + "\n"))
+    files.insert(0, out / STUDY_JSON)
+    files.insert(1, out / JOURNAL)
+    return StudyOutcome(out, table, rec, files, computed, reused, failed, wall, backend, notes)

@@ -1,0 +1,596 @@
+"""What a study varies and which points it runs: ``--vary`` texts, study TOML files, grid and Latin-hypercube
+sampling, and the per-point scenario overrides (including derived parameters such as a hysteresis width).
+
+A varied *axis* is one scenario key and its values::
+
+    thermostat.on=36:44:2degC        range START:STOP:STEP, STOP included when it falls on the grid
+    fan.flow=1000,1200,1500cfm       comma list, the unit written once at the end
+    weather.sky_model=berdahl-martin,swinbank       text values (TOML syntax if it parses, else plain text)
+    thermostat.hysteresis=1:6:1K     derived: off = on - width (heat mode) or on + width (cold mode)
+
+Any scenario key can vary: a point is a list of ``"dotted.key=value"`` overrides handed to
+:func:`atticsim.scenario.load_scenario`, which validates it like ``--set``.
+
+Every error here is a :class:`StudyError` (a ``ValueError``) whose text is one line naming the option or
+file key and the reason.
+"""
+
+from __future__ import annotations
+
+import itertools
+import json
+import math
+import re
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+#: Default starts-per-hour limit for small fan motors. Common practice, from memory: motor makers' guidance
+#: for small single-phase induction motors allows roughly 6 starts per hour (a start draws several times the
+#: running current and heats the winding; frequent starts shorten insulation and capacitor life). Not taken
+#: from a standard; set your motor maker's figure with --starts-limit.
+DEFAULT_STARTS_PER_HOUR = 6.0
+
+#: Default comfort limit of attic air for the degree-hour figure [degC]. 38 degC (100 degF) is a round
+#: figure chosen for this project (common practice, no source); set it with --comfort-limit.
+DEFAULT_COMFORT_LIMIT_C = 38.0
+
+#: Heat figures the recommendation can minimise: name -> column of the points table.
+HEAT_METRICS = {"degree-hours": "degree_hours_above_limit", "ceiling-gain": "ceiling_heat_gain_kwh"}
+
+#: Largest number of values one range may produce (a guard against a mistyped STEP).
+MAX_AXIS_VALUES = 10000
+
+_NUM = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
+_NUMERIC = re.compile(rf"^\s*({_NUM})((?:\s*[:,]\s*{_NUM})*)\s*(.*?)\s*$")
+_KEY = re.compile(r"^[A-Za-z_][\w-]*(?:\.[\w-]+)*$")
+
+
+class StudyError(ValueError):
+    """Bad study input; ``str(err)`` is one line naming the option (or file and key) and the reason."""
+
+
+# --- axes ---------------------------------------------------------------------------------------------
+
+@dataclass(frozen=True)
+class Value:
+    """One value of an axis.
+
+    Attributes
+    ----------
+    display : str
+        The value as the user gave it, with its unit ("36 degC", "1200 cfm", "swinbank").
+    literal : str
+        The value as TOML text for an override (``'"36 degC"'``, ``'3'``, ``'true'``).
+    number : float or None
+        The number in the given unit (None for text or true/false values).
+    """
+
+    display: str
+    literal: str
+    number: float | None = None
+
+
+@dataclass(frozen=True)
+class Axis:
+    """A varied key and its values.
+
+    Attributes
+    ----------
+    key : str
+        Dotted scenario key (or a derived key from :data:`DERIVED`).
+    values : tuple of Value
+        Grid values (for a range: START, START+STEP, ... up to STOP).
+    unit : str
+        Unit appended to every numeric value ("" for none).
+    start, stop, step : float or None
+        The range as given (None for a list); Latin-hypercube sampling draws from [start, stop].
+    text : str
+        The axis as written (for messages and the study record).
+    """
+
+    key: str
+    values: tuple[Value, ...]
+    unit: str = ""
+    start: float | None = None
+    stop: float | None = None
+    step: float | None = None
+    text: str = ""
+
+    @property
+    def is_range(self) -> bool:
+        return self.start is not None
+
+    def describe(self) -> dict:
+        """The axis as a JSON-friendly dict (for study.json)."""
+        d = {"key": self.key, "text": self.text, "unit": self.unit}
+        if self.is_range:
+            d.update(start=self.start, stop=self.stop, step=self.step)
+        d["values"] = [v.display for v in self.values]
+        return d
+
+
+def _fmt(x: float) -> str:
+    """A float as short text that round-trips at 10 significant digits (36.0 -> "36", 0.1*3 -> "0.3")."""
+    text = f"{x:.10g}"
+    return "0" if text in ("-0", "+0") else text
+
+
+def _numeric_value(number: float, unit: str) -> Value:
+    text = _fmt(number)
+    if unit:
+        display = f"{text} {unit}"
+        return Value(display, json.dumps(display), float(text))
+    return Value(text, text, float(text))
+
+
+def range_values(start: float, stop: float, step: float, where: str) -> list[float]:
+    """Values START, START+STEP, ... up to STOP, STOP included when it falls on the grid.
+
+    Parameters
+    ----------
+    start, stop, step : float
+        Range ends and step in one unit; the step's sign must point from start to stop.
+    where : str
+        Name of the option or key, for error messages.
+    """
+    if not all(math.isfinite(v) for v in (start, stop, step)):
+        raise StudyError(f"{where}: START, STOP and STEP must be finite numbers")
+    if step == 0.0:
+        raise StudyError(f"{where}: STEP must not be zero")
+    if start == stop:
+        return [start]
+    if (stop - start) * step < 0:
+        raise StudyError(f"{where}: STEP {_fmt(step)} goes away from STOP {_fmt(stop)} "
+                         f"(START {_fmt(start)}); flip its sign")
+    # A relative allowance so that 0.1:0.5:0.1 includes 0.5 despite binary rounding.
+    n = int(math.floor((stop - start) / step * (1.0 + 1e-12) + 1e-9)) + 1
+    if n > MAX_AXIS_VALUES:
+        raise StudyError(f"{where}: the range makes {n} values (more than {MAX_AXIS_VALUES}); check STEP")
+    return [float(_fmt(start + i * step)) for i in range(n)]
+
+
+class _NotToml(Exception):
+    pass
+
+
+def _text_values(raw: str, where: str, strict: bool = False) -> list[Value]:
+    """Comma-separated non-numeric values: a TOML array if it parses (text, true/false, dates), else plain
+    words (``strict``: raise _NotToml instead)."""
+    try:
+        items = tomllib.loads(f"v = [{raw}]")["v"]
+    except tomllib.TOMLDecodeError:
+        if strict:
+            raise _NotToml from None
+        items = [part.strip() for part in raw.split(",")]
+        if any(not part for part in items):
+            raise StudyError(f"{where}: empty value in the list {raw!r}") from None
+    out = []
+    for item in items:
+        if isinstance(item, bool):
+            out.append(Value("true" if item else "false", "true" if item else "false"))
+        elif isinstance(item, (int, float)):
+            out.append(_numeric_value(float(item), ""))
+        elif isinstance(item, str):
+            out.append(Value(item, json.dumps(item)))
+        elif hasattr(item, "isoformat"):  # TOML date or date-time, e.g. weather.start=2025-07-01,2025-08-01
+            out.append(Value(item.isoformat(), item.isoformat()))
+        else:
+            raise StudyError(f"{where}: unsupported value {item!r} (use numbers, text, dates or true/false)")
+    return out
+
+
+def parse_vary(text: str, option: str = "--vary") -> Axis:
+    """Parse one ``KEY=START:STOP:STEP[unit]`` or ``KEY=a,b,c[unit]`` text into an :class:`Axis`.
+
+    Parameters
+    ----------
+    text : str
+        The option's value, e.g. ``"thermostat.on=36:44:2degC"``.
+    option : str
+        Option name used in error messages.
+
+    Returns
+    -------
+    Axis
+
+    Raises
+    ------
+    StudyError
+        One line naming the option, the text and the reason.
+    """
+    where = f"{option} {text}"
+    if "=" not in text:
+        raise StudyError(f"{where}: expected KEY=START:STOP:STEP[unit] or KEY=a,b,c[unit]")
+    key, raw = (s.strip() for s in text.split("=", 1))
+    if not key or not _KEY.match(key):
+        raise StudyError(f"{where}: {key!r} is not a dotted scenario key such as thermostat.on")
+    if not raw:
+        raise StudyError(f"{where}: no values after '='")
+    m = _NUMERIC.match(raw)
+    if m and (not m.group(3) or not re.search(r"[:,]", m.group(3))):
+        first, rest, unit = m.group(1), m.group(2), m.group(3)
+        numbers = [float(first)] + [float(x) for x in re.findall(_NUM, rest)]
+        seps = set(re.findall(r"[:,]", rest))
+        if seps == {":", ","}:
+            raise StudyError(f"{where}: mix of ':' and ','; use START:STOP:STEP or a,b,c")
+        if ":" in seps:
+            if len(numbers) == 2:
+                return Axis(key, (), unit, numbers[0], numbers[1], None, text)
+            if len(numbers) != 3:
+                raise StudyError(f"{where}: a range is START:STOP:STEP (got {len(numbers)} numbers)")
+            values = range_values(*numbers, where=where)
+            return Axis(key, tuple(_numeric_value(v, unit) for v in values), unit, numbers[0], numbers[1],
+                        numbers[2], text)
+        return Axis(key, tuple(_numeric_value(v, unit) for v in numbers), unit, text=text)
+    try:
+        values = _text_values(raw, where, strict=m is not None)
+    except _NotToml:
+        raise StudyError(f"{where}: write the unit once, at the end (e.g. {key}=1000,1200,1500cfm)") from None
+    return Axis(key, tuple(values), "", text=text)
+
+
+def axis_from_table(table: dict, where: str) -> Axis:
+    """Build an :class:`Axis` from a study file's ``[[vary]]`` table.
+
+    The table holds ``key``, then either ``start``/``stop``/``step`` or ``values``, and an optional
+    ``unit`` appended to every number.
+    """
+    allowed = {"key", "start", "stop", "step", "values", "unit"}
+    unknown = sorted(set(table) - allowed)
+    if unknown:
+        raise StudyError(f"{where}.{unknown[0]}: unknown key (allowed: {', '.join(sorted(allowed))})")
+    key = table.get("key")
+    if not isinstance(key, str) or not _KEY.match(key):
+        raise StudyError(f"{where}.key: required, a dotted scenario key such as \"thermostat.on\"")
+    unit = table.get("unit", "")
+    if not isinstance(unit, str):
+        raise StudyError(f"{where}.unit: must be text such as \"degC\"")
+    unit = unit.strip()
+    has_range = any(k in table for k in ("start", "stop", "step"))
+    if has_range == ("values" in table):
+        raise StudyError(f"{where}: give either start/stop/step or values")
+    text = f"{key}=" + (f"{table.get('start')}:{table.get('stop')}:{table.get('step')}" if has_range
+                        else ",".join(str(v) for v in table["values"] or [])) + unit
+    if has_range:
+        nums = []
+        for name in ("start", "stop"):
+            v = table.get(name)
+            if isinstance(v, bool) or not isinstance(v, (int, float)):
+                raise StudyError(f"{where}.{name}: required, a number (the unit goes in 'unit')")
+            nums.append(float(v))
+        step = table.get("step")
+        if step is None:
+            return Axis(key, (), unit, nums[0], nums[1], None, text)
+        if isinstance(step, bool) or not isinstance(step, (int, float)):
+            raise StudyError(f"{where}.step: must be a number")
+        values = range_values(nums[0], nums[1], float(step), where)
+        return Axis(key, tuple(_numeric_value(v, unit) for v in values), unit, nums[0], nums[1], float(step),
+                    text)
+    values = table["values"]
+    if not isinstance(values, list) or not values:
+        raise StudyError(f"{where}.values: must be a non-empty list")
+    out = []
+    for v in values:
+        if isinstance(v, bool):
+            if unit:
+                raise StudyError(f"{where}.values: true/false values take no unit")
+            out.append(Value("true" if v else "false", "true" if v else "false"))
+        elif isinstance(v, (int, float)):
+            out.append(_numeric_value(float(v), unit))
+        elif isinstance(v, str):
+            if unit:
+                raise StudyError(f"{where}.values: give numbers when a unit is set (got {v!r})")
+            out.append(Value(v, json.dumps(v)))
+        else:
+            raise StudyError(f"{where}.values: unsupported value {v!r}")
+    return Axis(key, tuple(out), unit, text=text)
+
+
+# --- sampling -----------------------------------------------------------------------------------------
+
+def latin_hypercube(n_points: int, n_dims: int, seed: int) -> np.ndarray:
+    """A Latin-hypercube sample of the unit cube.
+
+    Each dimension is cut into ``n_points`` equal strata and each stratum holds exactly one point, at a
+    uniformly random place inside it; strata are paired across dimensions by independent random
+    permutations (McKay, Beckman & Conover, Technometrics 21(2), 1979).
+
+    Parameters
+    ----------
+    n_points : int
+        Number of points (and of strata per dimension), >= 1.
+    n_dims : int
+        Number of dimensions, >= 1.
+    seed : int
+        Seed of numpy's default generator; the same seed gives the same sample.
+
+    Returns
+    -------
+    numpy.ndarray
+        Shape (n_points, n_dims), values in [0, 1).
+    """
+    if n_points < 1:
+        raise StudyError(f"--points: must be at least 1 (got {n_points})")
+    if n_dims < 1:
+        raise StudyError("--vary: Latin-hypercube sampling needs at least one varied key")
+    rng = np.random.default_rng(seed)
+    u = np.empty((n_points, n_dims))
+    for d in range(n_dims):
+        u[:, d] = (rng.permutation(n_points) + rng.random(n_points)) / n_points
+    return u
+
+
+def grid_points(axes: list[Axis]) -> list[dict[str, Value]]:
+    """Every combination of the axes' values (the first axis varies slowest)."""
+    for ax in axes:
+        if not ax.values:
+            raise StudyError(f"--vary {ax.text}: a grid needs START:STOP:STEP or a list of values")
+    return [dict(zip((ax.key for ax in axes), combo)) for combo in itertools.product(*(ax.values for ax in axes))]
+
+
+def lhs_points(axes: list[Axis], n_points: int, seed: int) -> list[dict[str, Value]]:
+    """A Latin-hypercube sample of the axes.
+
+    A range axis draws continuous values in [START, STOP] (its STEP is not used; values are rounded to 6
+    significant digits); a list axis maps its
+    stratum to a list position, floor(u * len(values)), so each value is used n/len times (+-1).
+    """
+    u = latin_hypercube(n_points, len(axes), seed)
+    points = []
+    for row in u:
+        p = {}
+        for ax, x in zip(axes, row):
+            if ax.is_range:
+                # 6 significant digits: ample for any physical setting, and short to read
+                p[ax.key] = _numeric_value(float(f"{ax.start + x * (ax.stop - ax.start):.6g}"), ax.unit)
+            else:
+                p[ax.key] = ax.values[min(int(x * len(ax.values)), len(ax.values) - 1)]
+        points.append(p)
+    return points
+
+
+# --- derived parameters -------------------------------------------------------------------------------
+
+def _hysteresis_overrides(width: Value, point: dict[str, Value], base) -> list[str]:
+    """thermostat.hysteresis -> thermostat.off = on - width (heat mode) or on + width (cold mode).
+
+    ``on`` and ``mode`` come from the same point when they vary, else from the base scenario.
+    """
+    from atticsim.units import UnitError, to_si
+
+    where = "thermostat.hysteresis"
+    th = base.thermostat
+    if getattr(th, "kind", None) != "setpoints":
+        raise StudyError(f"{where}: needs thermostat kind 'setpoints' (the scenario has "
+                         f"{getattr(th, 'kind', None)!r})")
+    try:
+        w = to_si(width.display, "temperature_difference")
+        on = to_si(point["thermostat.on"].display, "temperature") if "thermostat.on" in point else th.on
+    except UnitError as exc:
+        raise StudyError(f"{where}: {exc}") from None
+    if not w > 0.0:
+        raise StudyError(f"{where}: the width must be greater than 0 K")
+    mode = point["thermostat.mode"].display if "thermostat.mode" in point else th.mode
+    off = on - w if mode == "heat" else on + w
+    return [f"thermostat.off={off!r}"]
+
+
+#: Derived keys: name -> (function(value, point, base_scenario) -> overrides, keys it sets, SI kind).
+DERIVED = {
+    "thermostat.hysteresis": (_hysteresis_overrides, ("thermostat.off",), "temperature_difference"),
+}
+
+
+def point_overrides(point: dict[str, Value], base) -> list[str]:
+    """The ``dotted.key=value`` overrides for one point (derived keys resolved against ``base``)."""
+    out = []
+    for key, value in point.items():
+        if key in DERIVED:
+            out.extend(DERIVED[key][0](value, point, base))
+        else:
+            out.append(f"{key}={value.literal}")
+    return out
+
+
+# --- the study ----------------------------------------------------------------------------------------
+
+@dataclass
+class Study:
+    """Everything that defines a study (what the CLI options or a study TOML file say).
+
+    Attributes
+    ----------
+    axes : list of Axis
+        The varied keys.
+    scenario : str or None
+        Scenario TOML path (None: the built-in demo house).
+    base_overrides : list of str
+        ``--set`` overrides applied to every point before the varied values.
+    sample : {"grid", "lhs"}
+        Full grid or Latin-hypercube sample.
+    points : int or None
+        Number of Latin-hypercube points.
+    seed : int or None
+        Seed of the Latin-hypercube sample (drawn and recorded when not given).
+    start, end : str or None
+        Period (ISO dates, local standard time); None: the scenario's own.
+    starts_limit : float
+        Starts per hour a motor may make [1/h].
+    comfort_limit_c : float
+        Attic air temperature above which degree-hours are counted [degC].
+    heat_metric : str
+        Key of :data:`HEAT_METRICS` minimised by the recommendation.
+    source : str
+        Where the study came from (file name or "command line").
+    """
+
+    axes: list[Axis] = field(default_factory=list)
+    scenario: str | None = None
+    base_overrides: list[str] = field(default_factory=list)
+    sample: str = "grid"
+    points: int | None = None
+    seed: int | None = None
+    start: str | None = None
+    end: str | None = None
+    starts_limit: float = DEFAULT_STARTS_PER_HOUR
+    comfort_limit_c: float = DEFAULT_COMFORT_LIMIT_C
+    heat_metric: str = "degree-hours"
+    source: str = "command line"
+
+    def check(self) -> None:
+        """Raise StudyError for an inconsistent study (no axes, duplicate keys, bad sampling)."""
+        if not self.axes:
+            raise StudyError("--vary: give at least one KEY=START:STOP:STEP[unit] (or [[vary]] in --study)")
+        keys = [ax.key for ax in self.axes]
+        dup = sorted({k for k in keys if keys.count(k) > 1})
+        if dup:
+            raise StudyError(f"--vary {dup[0]}: the key is varied twice")
+        for name, (_, sets, _) in DERIVED.items():
+            clash = [k for k in sets if name in keys and k in keys]
+            if clash:
+                raise StudyError(f"--vary {name}: cannot vary together with {clash[0]} (it sets {clash[0]})")
+        if self.sample not in ("grid", "lhs"):
+            raise StudyError(f"--sample: must be grid or lhs (got {self.sample!r})")
+        if self.sample == "lhs":
+            if self.points is None or self.points < 1:
+                raise StudyError("--points: Latin-hypercube sampling needs --points N (N >= 1)")
+        elif self.points is not None:
+            raise StudyError("--points: only used with --sample lhs (a grid has one point per combination)")
+        if not (math.isfinite(self.starts_limit) and self.starts_limit > 0):
+            raise StudyError(f"--starts-limit: must be a positive number of starts per hour "
+                             f"(got {self.starts_limit!r})")
+        if self.heat_metric not in HEAT_METRICS:
+            raise StudyError(f"--heat-metric: must be one of {', '.join(HEAT_METRICS)} (got {self.heat_metric!r})")
+
+    def sample_points(self) -> list[dict[str, Value]]:
+        """The study's points, each a dict key -> Value in a fixed order."""
+        self.check()
+        if self.sample == "grid":
+            return grid_points(self.axes)
+        if self.seed is None:
+            self.seed = int(np.random.SeedSequence().entropy % (2**31))
+        return lhs_points(self.axes, self.points, self.seed)
+
+    def describe(self) -> dict:
+        """The study as a JSON-friendly dict (recorded in study.json)."""
+        return {
+            "source": self.source, "scenario": self.scenario, "set": list(self.base_overrides),
+            "sample": self.sample, "points": self.points, "seed": self.seed,
+            "period": {"start": self.start, "end": self.end},
+            "limits": {"starts_per_hour": self.starts_limit, "comfort_c": self.comfort_limit_c},
+            "heat_metric": self.heat_metric,
+            "vary": [ax.describe() for ax in self.axes],
+        }
+
+
+def parse_starts_limit(text, option: str = "--starts-limit") -> float:
+    """Parse a starts-per-hour limit: ``6``, ``"6/h"``, ``"6 per hour"``, ``"0.1/min"`` -> starts per hour."""
+    if isinstance(text, bool):
+        raise StudyError(f"{option}: expected a number of starts per hour such as 6/h, got {text!r}")
+    if isinstance(text, (int, float)):
+        value = float(text)
+    else:
+        m = re.match(rf"^\s*({_NUM})\s*(?:(/|per)\s*(h|hr|hour|min|minute))?\s*$", str(text), re.IGNORECASE)
+        if not m:
+            raise StudyError(f"{option}: expected a number of starts per hour such as 6/h, got {text!r}")
+        value = float(m.group(1)) * (60.0 if (m.group(3) or "h").lower().startswith("min") else 1.0)
+    if not (math.isfinite(value) and value > 0):
+        raise StudyError(f"{option}: must be greater than 0 starts per hour (got {text!r})")
+    return value
+
+
+def parse_comfort_limit(text, option: str = "--comfort-limit") -> float:
+    """Parse a comfort limit temperature (``38``, ``"38 degC"``, ``"100 degF"``) -> [degC]."""
+    from atticsim.units import UnitError, to_si
+
+    try:
+        value = to_si(text, "temperature")
+    except UnitError as exc:
+        raise StudyError(f"{option}: {exc}") from None
+    if not (math.isfinite(value) and -40.0 <= value <= 120.0):
+        raise StudyError(f"{option}: must be between -40 and 120 degC (got {text!r})")
+    return value
+
+
+_FILE_KEYS = {"scenario", "set", "period", "sampling", "limits", "recommend", "vary"}
+
+
+def load_study_file(path: str | Path) -> Study:
+    """Read a study TOML file.
+
+    Layout::
+
+        scenario = "../scenarios/house.toml"   # optional, relative to this file; omitted: demo house
+        set = ["simulation.spinup_days=1"]      # optional overrides applied to every point
+        [period]    start = "2025-07-01"  end = "2025-07-07"
+        [sampling]  method = "grid" | "lhs"  points = 50  seed = 1
+        [limits]    starts_per_hour = 6  comfort = "38 degC"
+        [recommend] heat = "degree-hours" | "ceiling-gain"
+        [[vary]]    key = "thermostat.on"  start = 36  stop = 44  step = 2  unit = "degC"
+        [[vary]]    key = "thermostat.hysteresis"  values = [1, 2, 4]  unit = "K"
+
+    Returns
+    -------
+    Study
+    """
+    path = Path(path)
+    try:
+        with open(path, "rb") as fh:
+            data = tomllib.load(fh)
+    except FileNotFoundError:
+        raise StudyError(f"{path}: file not found") from None
+    except tomllib.TOMLDecodeError as exc:
+        raise StudyError(f"{path}: TOML syntax error: {exc}") from None
+    except OSError as exc:
+        raise StudyError(f"{path}: cannot read: {exc.strerror}") from None
+
+    def table(name, allowed):
+        t = data.get(name, {})
+        if not isinstance(t, dict):
+            raise StudyError(f"{path}: {name}: must be a table")
+        unknown = sorted(set(t) - allowed)
+        if unknown:
+            raise StudyError(f"{path}: {name}.{unknown[0]}: unknown key (allowed: {', '.join(sorted(allowed))})")
+        return t
+
+    unknown = sorted(set(data) - _FILE_KEYS)
+    if unknown:
+        raise StudyError(f"{path}: {unknown[0]}: unknown key (allowed: {', '.join(sorted(_FILE_KEYS))})")
+    study = Study(source=str(path))
+    if "scenario" in data:
+        if not isinstance(data["scenario"], str):
+            raise StudyError(f"{path}: scenario: must be a file path (text)")
+        sc = Path(data["scenario"])
+        study.scenario = str(sc if sc.is_absolute() else (path.parent / sc).resolve())
+    overrides = data.get("set", [])
+    if not isinstance(overrides, list) or not all(isinstance(s, str) for s in overrides):
+        raise StudyError(f"{path}: set: must be a list of \"dotted.key=value\" texts")
+    study.base_overrides = list(overrides)
+    period = table("period", {"start", "end"})
+    for name in ("start", "end"):
+        v = period.get(name)
+        if v is not None:
+            setattr(study, name, v.isoformat() if hasattr(v, "isoformat") else str(v))
+    sampling = table("sampling", {"method", "points", "seed"})
+    study.sample = sampling.get("method", "grid")
+    for name in ("points", "seed"):
+        v = sampling.get(name)
+        if v is not None and (isinstance(v, bool) or not isinstance(v, int)):
+            raise StudyError(f"{path}: sampling.{name}: must be a whole number")
+        setattr(study, name, v)
+    limits = table("limits", {"starts_per_hour", "comfort"})
+    if "starts_per_hour" in limits:
+        study.starts_limit = parse_starts_limit(limits["starts_per_hour"], f"{path}: limits.starts_per_hour")
+    if "comfort" in limits:
+        study.comfort_limit_c = parse_comfort_limit(limits["comfort"], f"{path}: limits.comfort")
+    rec = table("recommend", {"heat"})
+    study.heat_metric = rec.get("heat", study.heat_metric)
+    vary = data.get("vary", [])
+    if not isinstance(vary, list):
+        raise StudyError(f"{path}: vary: must be an array of tables ([[vary]])")
+    study.axes = [axis_from_table(t if isinstance(t, dict) else {}, f"{path}: vary.{i}")
+                  for i, t in enumerate(vary)]
+    return study

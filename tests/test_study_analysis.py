@@ -1,0 +1,113 @@
+"""Study analysis: degree-hours, starts in any hour, net benefit, Pareto set and the recommendation rule."""
+
+import math
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from atticsim.study.analysis import (degree_hours_above, max_starts_in_window, net_benefit_kwh, pareto_mask,
+                                     recommend)
+
+
+# --- degree-hours -------------------------------------------------------------------------------------
+
+def test_degree_hours_of_a_sine_day_match_the_integral():
+    # T(t) = L + A sin(2 pi t / 24 h): the positive half-wave integrates to A * 24 / pi K*h
+    # (elementary calculus: integral_0^12 A sin(pi t / 12) dt = 24 A / pi).
+    t = np.arange(0, 24 * 60 + 1) / 60.0  # 1-min samples, h
+    A, L = 8.0, 38.0
+    dh = degree_hours_above(L + A * np.sin(2 * np.pi * t / 24.0), t, L)
+    assert dh == pytest.approx(A * 24.0 / math.pi, rel=1e-5)  # 61.115 K*h
+
+
+def test_degree_hours_count_only_the_part_above_the_limit_between_samples():
+    # Straight line from 30 degC at 0 h to 50 degC at 2 h, limit 40 degC: the triangle above the limit
+    # is 1 h wide and 10 K high -> 5 K*h (geometry). A plain trapezoid of max(T - 40, 0) would give 10.
+    assert degree_hours_above([30.0, 50.0], [0.0, 2.0], 40.0) == pytest.approx(5.0, rel=1e-12)
+    # and falling through the limit: 46 -> 36 degC over 1 h, limit 40: 0.6 h x 6 K / 2 = 1.8 K*h
+    assert degree_hours_above([46.0, 36.0], [0.0, 1.0], 40.0) == pytest.approx(1.8, rel=1e-12)
+    # entirely above: a plain trapezoid, (2 + 4) / 2 K x 3 h = 9 K*h; entirely below: 0
+    assert degree_hours_above([42.0, 44.0], [0.0, 3.0], 40.0) == pytest.approx(9.0, rel=1e-12)
+    assert degree_hours_above([20.0, 39.0], [0.0, 3.0], 40.0) == 0.0
+
+
+def test_degree_hours_reject_bad_input():
+    with pytest.raises(ValueError, match="increase"):
+        degree_hours_above([40, 41, 42], [0, 2, 1], 38)
+    with pytest.raises(ValueError, match="same length"):
+        degree_hours_above([40, 41], [0, 1, 2], 38)
+
+
+# --- starts in any hour -------------------------------------------------------------------------------
+
+def test_starts_every_ten_minutes_make_six_in_any_hour():
+    # Starts at 0, 10, ..., 120 min: any 60-min window [t, t + 60 min) holds 6 of them (counting by hand).
+    assert max_starts_in_window(np.arange(0, 121, 10) * 60.0, 3600.0) == 6
+
+
+def test_sliding_hour_catches_a_burst_across_a_clock_hour():
+    # 4 starts at 0:50-0:58 and 4 at 1:02-1:10: clock hours hold 4 each, the window from 0:50 holds all 8.
+    starts = np.array([50, 53, 56, 58, 62, 65, 68, 70]) * 60.0
+    assert max_starts_in_window(starts, 3600.0) == 8
+    assert max_starts_in_window([], 3600.0) == 0
+    assert max_starts_in_window([0.0, 3600.0], 3600.0) == 1  # the window is half-open: [t, t + 1 h)
+
+
+# --- net benefit --------------------------------------------------------------------------------------
+
+def test_net_benefit_from_avoided_ceiling_gain():
+    # (10 - 7) kWh of heat avoided / COP 3 = 1 kWh electric saved, minus 0.5 kWh of fan energy = 0.5 kWh.
+    s = {"ceiling_heat_gain_kwh": 7.0, "ceiling_heat_gain_no_fan_kwh": 10.0, "fan_energy_kwh": 0.5}
+    assert net_benefit_kwh(s, 3.0) == pytest.approx(0.5)
+    assert net_benefit_kwh({**s, "net_benefit_kwh": -1.25}) == -1.25  # the model's own figure wins
+    assert math.isnan(net_benefit_kwh({"fan_energy_kwh": 1.0}))
+
+
+# --- Pareto set ---------------------------------------------------------------------------------------
+
+def test_pareto_mask_on_a_hand_made_table():
+    # Minimise both columns. By the definition of dominance (Deb 2001, sec. 2.4):
+    f = np.array([
+        [1.0, 5.0],     # 0 optimal (fewest starts)
+        [2.0, 3.0],     # 1 optimal
+        [3.0, 4.0],     # 2 dominated by 1
+        [4.0, 1.0],     # 3 optimal (least heat)
+        [2.0, 3.0],     # 4 optimal (ties with 1: neither is strictly better)
+        [2.0, 3.5],     # 5 dominated by 1 (equal starts, more heat)
+        [np.nan, 0.0],  # 6 incomplete: never optimal
+        [5.0, 5.0],     # 7 dominated by everything
+    ])
+    assert pareto_mask(f).tolist() == [True, True, False, True, True, False, False, False]
+
+
+def test_pareto_mask_three_objectives():
+    f = np.array([[1, 1, 9], [1, 1, 8], [0, 5, 9], [2, 2, 2]], float)
+    # row 0 is dominated by row 1 (better in the third objective, equal elsewhere)
+    assert pareto_mask(f).tolist() == [False, True, True, True]
+
+
+# --- recommendation -----------------------------------------------------------------------------------
+
+def table(rows):
+    cols = ["point", "status", "max_starts_per_hour", "degree_hours_above_limit", "hysteresis_k", "fan_starts",
+            "fan_energy_kwh"]
+    return pd.DataFrame(rows, columns=cols)
+
+
+def test_recommendation_respects_the_limit_then_heat_then_narrowest_hysteresis():
+    t = table([
+        (0, "ok", 9, 10.0, 0.5, 30, 1.0),   # lowest heat but too many starts per hour
+        (1, "ok", 4, 12.0, 3.0, 5, 1.2),    # tied lowest heat within the limit, wide hysteresis
+        (2, "ok", 5, 12.05, 2.0, 8, 1.1),   # within 1 % of 12.0: tied, narrower -> chosen
+        (3, "ok", 2, 15.0, 1.0, 4, 1.0),    # narrowest, but more heat
+        (4, "error", None, None, 1.0, None, None),
+    ])
+    rec = recommend(t, starts_limit=6, heat_column="degree_hours_above_limit")
+    assert rec["point"] == 2 and rec["candidates"] == 3
+
+
+def test_recommendation_when_no_point_respects_the_limit():
+    t = table([(0, "ok", 9, 10.0, 0.5, 30, 1.0), (1, "ok", 7, 12.0, 1.0, 20, 1.2)])
+    rec = recommend(t, starts_limit=6, heat_column="degree_hours_above_limit")
+    assert rec["point"] is None and "point 1 with 7" in rec["reason"]
