@@ -19,8 +19,8 @@ def _forcing(scenario, frame, meta):
 def test_sensor_step_response_is_first_order():
     # First-order RC step response (analytic): T_s(t) = T_a + (T_s0 - T_a) exp(-t / tau).
     # The attic air node is made enormous (and unventilated) so it holds its temperature.
-    sc = demo_scenario(["attic.volume=1e9", "vents.passive_ach=0", "fan.enabled=false",
-                        'sensor.time_constant="25 s"'])
+    sc = demo_scenario(["attic.volume=1e9", "attic.ridge_height=2.5", "attic.air_layers=1", "vents.passive_ach=0",
+                        "fan.enabled=false", 'sensor.time_constant="25 s"'])
     net = build_network(sc)
     frame, meta = make_weather(np.full(4, 30.0))
     forcing = _forcing(sc, frame, meta)
@@ -28,6 +28,7 @@ def test_sensor_step_response_is_first_order():
     y0[:net.n_nodes] = 30.0
     y0[net.index["air"]] = 40.0
     y0[net.index["sensor"]] = 20.0
+    net.air = net.airflow.solve(40.0, 30.0, 3.0, False)
     t_out = np.arange(0.0, 201.0, 5.0)
     run = integrate(net, forcing, None, 0.0, 200.0, y0, False, t_out, rtol=1e-9)
     expected = 40.0 - 20.0 * np.exp(-t_out / 25.0)
@@ -39,6 +40,7 @@ class _DrivenRC:
 
     n_nodes = 1
     index = {"sensor": 0}
+    airflow = None
 
     def __init__(self, tau):
         self.tau = tau
