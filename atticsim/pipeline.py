@@ -50,7 +50,17 @@ class RawRuns:
     notes: list = field(default_factory=list)
 
 
-def _spin_up(network, forcing, controller, period, y, fan_on, days, rtol, max_step):
+def integrator(sim):
+    """The integration function the scenario's ``simulation.solver`` asks for, with its settings bound:
+    f(network, forcing, controller, t_start, t_end, y0, fan_on, output_times) -> HybridRun."""
+    if sim.solver == "fast":
+        from atticsim.hybrid.fast import integrate_fast
+
+        return lambda *a: integrate_fast(*a, max_step=min(60.0, sim.max_step))
+    return lambda *a: integrate(*a, rtol=sim.rtol, max_step=sim.max_step)
+
+
+def _spin_up(network, forcing, controller, period, y, fan_on, days, step):
     """Repeat the period's first day ``days`` times to approach a periodic start state.
 
     The books are reset after each repetition; the returned state is the start state of the run.
@@ -59,8 +69,7 @@ def _spin_up(network, forcing, controller, period, y, fan_on, days, rtol, max_st
     n_nodes = network.n_nodes
     for _ in range(days):
         t1 = period.t_start + span
-        run = integrate(network, forcing, controller, period.t_start, t1, y, fan_on, np.array([t1]),
-                        rtol=rtol, max_step=max_step)
+        run = step(network, forcing, controller, period.t_start, t1, y, fan_on, np.array([t1]))
         y = run.y_end.copy()
         y[n_nodes:] = 0.0
         if controller is not None:
@@ -120,10 +129,9 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
             pressure=pressure)
         ctl = controller if enabled else None
         fan0 = ctl.initial_state(y0[net.index["sensor"]]) if ctl else False
-        y_start, fan0 = _spin_up(net, forcing, ctl, period, y0.copy(), fan0, sim.spinup_days, sim.rtol,
-                                 sim.max_step)
-        run = integrate(net, forcing, ctl, period.t_start, period.t_end, y_start, fan0, output_times,
-                        rtol=sim.rtol, max_step=sim.max_step)
+        step = integrator(sim)
+        y_start, fan0 = _spin_up(net, forcing, ctl, period, y0.copy(), fan0, sim.spinup_days, step)
+        run = step(net, forcing, ctl, period.t_start, period.t_end, y_start, fan0, output_times)
         return run, y_start
 
     with_fan, y_fan = one(scenario.fan.enabled)

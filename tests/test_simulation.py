@@ -56,7 +56,7 @@ def test_run_hours_match_events(two_days):
 def test_events_located_within_one_second(clear_week):
     # Compare the default tolerances with a much finer run (rtol 1e-10, 20 s steps): the switching
     # instants must agree within 1 s (the acceptance figure).
-    base = ["simulation.spinup_days=1"]
+    base = ["simulation.spinup_days=1", 'simulation.solver="reference"']
     coarse = run_raw(demo_scenario(base), clear_week, "2025-07-15", "2025-07-16", include_no_fan=False)
     fine = run_raw(demo_scenario(base + ["simulation.rtol=1e-10", 'simulation.max_step="20 s"']),
                    clear_week, "2025-07-15", "2025-07-16", include_no_fan=False)

@@ -18,10 +18,12 @@ from atticsim.cli.options import (force_option, out_option, period_options, scen
 @period_options[1]
 @click.option("--months", help="Month range or season instead of dates: jun-aug, 7, summer, cooling, year.")
 @click.option("--year", type=int, help="Calendar year to run a typical-year weather file as (and of --months).")
+@click.option("--solver", type=click.Choice(["fast", "reference"]),
+              help="fast: exact discretisation (default); reference: scipy LSODA with event functions.")
 @set_option
 @units_option
 @force_option
-def run(scenario, out, weather, start, end, months, year, overrides, units, force):
+def run(scenario, out, weather, start, end, months, year, solver, overrides, units, force):
     """Simulate SCENARIO (a TOML file; the built-in demo house if omitted) and write results to --out.
 
     Writes summary.json, daily.csv, monthly.csv, timeseries.csv, events.csv, temperatures.png and
@@ -32,6 +34,8 @@ def run(scenario, out, weather, start, end, months, year, overrides, units, forc
 
     check_output_dir(Path(out), force)  # fail before a long run, not after
     overrides = list(overrides)
+    if solver:
+        overrides.append(f'simulation.solver="{solver}"')
     if weather:
         w = weather if weather.startswith(("demo:", "pvlib:")) else str(Path(weather).resolve())
         overrides.append(f'weather.file="{w}"')

@@ -202,7 +202,8 @@ class AtticNetwork:
             # Exchange between the layers: a stable base rate, the fan's stirring, and buoyant overturning
             # when the lower layer is warmer: Q = 0.055 A sqrt(g' sqrt(A)) (Epstein 1988, exchange flow
             # through a horizontal opening, J. Fluid Mech. 189; from memory).
-            unstable = np.maximum(t_lo - t_up, 0.0)
+            # (the onset is smoothed over ~0.1 K, softplus, so the right-hand side stays differentiable)
+            unstable = 0.1 * np.logaddexp(0.0, (t_lo - t_up) / 0.1)
             a_i = self.interface_area
             q_b = 0.055 * a_i * np.sqrt(GRAVITY * unstable / (0.5 * (t_lo + t_up) + KELVIN) * np.sqrt(a_i))
             q_mix_flow = self.layer_mixing + self.fan_mixing_ratio * fan * air.fan_flow + q_b

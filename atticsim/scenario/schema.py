@@ -262,6 +262,8 @@ class Simulation(_Model):
     max_step: Duration = Field(300.0, gt=0.0, le=3600.0, description="s, largest integrator step")
     airflow_step: Duration = Field(300.0, ge=10.0, le=3600.0,
                                    description="s between re-solves of the vent/fan pressure balance")
+    solver: Literal["fast", "reference"] = Field(
+        "fast", description="fast: exact discretisation of the linearised network; reference: LSODA")
 
 
 class Scenario(_Model):
