@@ -1,52 +1,122 @@
-"""Wall-time figures for atticsim (printed, never asserted).
+"""Performance figures for atticsim, measured in one run on one machine (printed, never asserted).
 
-    python benchmarks/run.py            # 7-day and 92-day demo runs
-    python benchmarks/run.py --json     # the same as JSON
+    python benchmarks/run.py                  # everything at full size (an hour or more on 2 cores)
+    python benchmarks/run.py --quick          # smaller sweep, to see the figures in minutes
+    python benchmarks/run.py --json           # the same figures as JSON
 
-Each run is the full `simulate` (with-fan and no-fan simulations, each with its spin-up days).
+Figures:
+- a full-year run of the demo house at 1-minute output with exact events, fast and reference solver
+  (solver time = the hybrid integrations only; wall time = the whole simulate() call), and their ratio;
+- a 92-day summer run (fast);
+- a summer sweep of N points (thermostat on/off grid) on all cores: points per second;
+- ``atticsim --help`` start-up time;
+- peak memory of this process (resident set).
+JSON keys: annual_fast_s, annual_reference_s, speedup, summer_92d_s, sweep_points, sweep_days,
+sweep_points_per_s, help_s, peak_mb, plus the machine.
 """
 
 from __future__ import annotations
 
 import argparse
 import json
+import os
 import platform
 import resource
+import subprocess
+import sys
 import time
 
 
-def timed_run(days: int) -> dict:
-    import pandas as pd
-
+def timed_simulate(solver: str, start: str, end: str) -> dict:
+    """Wall time of simulate() and of its integrations alone, for the demo house."""
     import atticsim
+    import atticsim.pipeline as pipeline
 
-    sc = atticsim.demo_scenario()
-    start = pd.Timestamp("2025-06-01")
-    end = start + pd.Timedelta(days=days - 1)
-    t0 = time.perf_counter()
-    result = atticsim.simulate(sc, start=start.date().isoformat(), end=end.date().isoformat())
-    wall = time.perf_counter() - t0
-    return {"days": days, "wall_s": round(wall, 2), "s_per_simulated_day": round(wall / days, 3),
-            "fan_starts": result.summary["fan_starts"],
+    spent = {"solver": 0.0}
+    original = pipeline.integrator
+
+    def timing_integrator(sim):
+        step = original(sim)
+
+        def timed(*args):
+            t0 = time.perf_counter()
+            try:
+                return step(*args)
+            finally:
+                spent["solver"] += time.perf_counter() - t0
+
+        return timed
+
+    pipeline.integrator = timing_integrator
+    try:
+        sc = atticsim.demo_scenario([f'simulation.solver="{solver}"'])
+        t0 = time.perf_counter()
+        result = atticsim.simulate(sc, start=start, end=end)
+        wall = time.perf_counter() - t0
+    finally:
+        pipeline.integrator = original
+    return {"wall_s": wall, "solver_s": spent["solver"], "fan_starts": result.summary["fan_starts"],
             "energy_balance_error_pct": result.summary["energy_balance_error_pct"]}
 
 
+def sweep(points: int, days: int, workers: int) -> dict:
+    """A thermostat on/off grid of about ``points`` points over ``days`` summer days, on all cores."""
+    import math
+    import tempfile
+
+    from atticsim.study.runner import run_study
+    from atticsim.study.spec import Study, parse_vary
+
+    side = max(1, int(math.sqrt(points)))
+    other = max(1, points // side)
+    vary = [parse_vary(f"thermostat.on=36:{36 + 0.1 * (side - 1):.4f}:0.1degC"),
+            parse_vary(f"thermostat.hysteresis=1:{1 + 0.05 * (other - 1):.4f}:0.05K")]
+    end_day = 1 + days - 1
+    month, day = (6, end_day) if end_day <= 30 else ((7, end_day - 30) if end_day <= 61 else (8, end_day - 61))
+    study = Study(axes=vary, start="2025-06-01", end=f"2025-{month:02d}-{day:02d}")
+    with tempfile.TemporaryDirectory() as out:
+        t0 = time.perf_counter()
+        run_study(study, os.path.join(out, "study"), workers=workers, plots=False)
+        wall = time.perf_counter() - t0
+    n = side * other
+    return {"sweep_points": n, "sweep_days": days, "sweep_s": wall, "sweep_points_per_s": n / wall}
+
+
+def help_time() -> float:
+    t0 = time.perf_counter()
+    subprocess.run([sys.executable, "-m", "atticsim.cli.main", "--help"], check=True, capture_output=True)
+    return time.perf_counter() - t0
+
+
 def main():
-    ap = argparse.ArgumentParser(description=__doc__)
+    ap = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
     ap.add_argument("--json", action="store_true", help="print JSON")
-    ap.add_argument("--days", type=int, nargs="*", default=[7, 92])
+    ap.add_argument("--quick", action="store_true", help="a 20-point, 7-day sweep instead of 1000 x 92 days")
+    ap.add_argument("--sweep-points", type=int, default=None)
+    ap.add_argument("--sweep-days", type=int, default=None)
+    ap.add_argument("--skip-reference", action="store_true", help="skip the (slow) reference annual run")
     args = ap.parse_args()
-    runs = [timed_run(d) for d in args.days]
-    peak_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
-    figures = {"machine": f"{platform.machine()} {platform.processor() or ''}".strip(),
-               "python": platform.python_version(), "runs": runs, "peak_mb": round(peak_mb, 1)}
+    points = args.sweep_points or (20 if args.quick else 1000)
+    days = args.sweep_days or (7 if args.quick else 92)
+    workers = os.cpu_count() or 1
+
+    fig = {"machine": f"{platform.machine()}, {workers} cores, Python {platform.python_version()}"}
+    fast = timed_simulate("fast", "2025-01-01", "2025-12-31")
+    fig.update(annual_fast_s=fast["wall_s"], annual_fast_solver_s=fast["solver_s"])
+    if not args.skip_reference:
+        ref = timed_simulate("reference", "2025-01-01", "2025-12-31")
+        fig.update(annual_reference_s=ref["wall_s"], annual_reference_solver_s=ref["solver_s"],
+                   speedup=ref["solver_s"] / fast["solver_s"])
+    summer = timed_simulate("fast", "2025-06-01", "2025-08-31")
+    fig.update(summer_92d_s=summer["wall_s"])
+    fig.update(sweep(points, days, workers))
+    fig["help_s"] = help_time()
+    fig["peak_mb"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
     if args.json:
-        print(json.dumps(figures, indent=2))
+        print(json.dumps(fig, indent=2))
     else:
-        for r in runs:
-            print(f"{r['days']:4d}-day demo run: {r['wall_s']:8.2f} s  ({r['s_per_simulated_day']:.3f} s per day, "
-                  f"{r['fan_starts']} starts)")
-        print(f"peak memory: {peak_mb:.0f} MB")
+        for k, v in fig.items():
+            print(f"{k:28s} {v:.3f}" if isinstance(v, float) else f"{k:28s} {v}")
 
 
 if __name__ == "__main__":

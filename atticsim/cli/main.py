@@ -44,3 +44,7 @@ def _register():
 
 
 _register()
+
+
+if __name__ == "__main__":
+    cli()
