@@ -1,7 +1,9 @@
 """The ``sweep`` command: one-line errors for bad options, and a small study end to end."""
 
 import json
+from pathlib import Path
 
+import numpy as np
 import pytest
 from click.testing import CliRunner
 
@@ -59,3 +61,21 @@ def test_small_sweep_end_to_end(tmp_path):
     assert r2.exit_code == 2 and "--resume" in r2.output.strip().splitlines()[-1]
     r3 = invoke("--vary", "thermostat.hysteresis=1,4K", "--out", out, "--workers", "1", "--resume", *FAST)
     assert r3.exit_code == 0 and "0 computed, 2 reused" in r3.output
+
+
+def test_circuit_study_recommends_standard_value_parts(tmp_path):
+    # A study on the circuit thermostat: the recommended point comes with E24 parts that realise it
+    # (design by the exact node equations; IEC 60063 E24 values).
+    from atticsim.circuit import E24
+
+    scenario = Path(__file__).resolve().parent.parent / "scenarios" / "heron_lane_circuit.toml"
+    out = tmp_path / "c"
+    r = invoke(scenario, "--vary", "thermostat.circuit.feedback=39,47kohm", "--out", out, "--workers", "1",
+               "--start", "2025-07-01", "--end", "2025-07-01", "--set", "simulation.spinup_days=0")
+    assert r.exit_code == 0, r.output
+    rec = json.loads((out / "recommendation.json").read_text())
+    parts = rec["circuit_parts"]
+    mantissa = parts["feedback_ohm"] / 10 ** np.floor(np.log10(parts["feedback_ohm"]))
+    assert any(abs(mantissa - v) < 1e-9 for v in E24)
+    assert parts["realised_on_c"] == pytest.approx(parts["on_c"], abs=1e-6)
+    assert "standard parts (E24)" in r.output

@@ -221,6 +221,13 @@ def recommendation_text(rec: dict, table, axes_keys: list[str]) -> str:
     row = table[table["point"] == rec["point"]].iloc[0]
     given = ", ".join(f"{k} = {row.get(k + '_given', row.get(k))}" for k in axes_keys)
     lines.append(f"recommended point {rec['point']}: {given}")
+    parts = rec.get("circuit_parts")
+    if parts:
+        fixed = (f"; or a fixed {parts['sense_trim_fixed_ohm']:,.0f} ohm -> ON {parts['fixed_on_c']:.2f} degC"
+                 if parts.get("sense_trim_fixed_ohm") else "")
+        lines.append(f"  standard parts ({parts['series']}): feedback {parts['feedback_ohm']:,.0f} ohm, trimmer set "
+                     f"to {parts['sense_trim_ohm']:,.0f} ohm -> ON {parts['realised_on_c']:.2f} degC, OFF "
+                     f"{parts['realised_off_c']:.2f} degC{fixed}")
 
     def f(name, fmt, unit):
         v = row.get(name)
@@ -236,3 +243,27 @@ def recommendation_text(rec: dict, table, axes_keys: list[str]) -> str:
                  f"comfort limit; net benefit {f('net_benefit_kwh', '.2f', 'kWh')}")
     lines.append(f"  why: {rec['reason']}")
     return "\n".join(lines)
+
+
+def circuit_parts(scenario, series: str = "E24") -> dict | None:
+    """Standard-value parts that realise a circuit thermostat's switching points.
+
+    For a scenario whose ``[thermostat]`` is a circuit, the recommended point's thresholds (thermistor
+    temperatures from the exact node equations) are re-designed with
+    :func:`atticsim.circuit.design_circuit`: feedback resistor rounded down to the series (hysteresis at
+    least as wide), the trimmer setting for the exact switch-on point, and a series value in its place.
+    Returns None for setpoint thermostats.
+    """
+    th = scenario.thermostat
+    if th.kind != "circuit":
+        return None
+    from atticsim.circuit import design_circuit
+
+    t = th.thresholds()
+    d = design_circuit(th.circuit_params(), t.on_c, off_c=t.off_c, series=series)
+    return {"series": series, "on_c": t.on_c, "off_c": t.off_c, "feedback_ohm": d.feedback,
+            "sense_trim_ohm": d.sense_trim, "sense_trim_fixed_ohm": d.sense_trim_fixed,
+            "realised_on_c": d.thresholds.on_c, "realised_off_c": d.thresholds.off_c,
+            "fixed_on_c": d.thresholds_fixed.on_c if d.thresholds_fixed else None,
+            "fixed_off_c": d.thresholds_fixed.off_c if d.thresholds_fixed else None,
+            "findings": list(d.findings)}

@@ -601,7 +601,7 @@ def run_study(study: Study, out, *, workers: int | None = None, scheduler: str |
             close()
     wall = time.perf_counter() - t_start
 
-    from atticsim.study.analysis import pareto_columns, pareto_mask, recommend
+    from atticsim.study.analysis import circuit_parts, pareto_columns, pareto_mask, recommend
 
     table = build_table(plan, done)
     files = []
@@ -629,6 +629,9 @@ def run_study(study: Study, out, *, workers: int | None = None, scheduler: str |
             "attic_air_max_c", "degree_hours_above_limit", "ceiling_heat_gain_kwh", "net_benefit_kwh",
             "hysteresis_k") if k in row}
         rec["overrides"] = plan.points[rec["point"]].overrides
+        parts = circuit_parts(plan.points[rec["point"]].scenario)
+        if parts is not None:
+            rec["circuit_parts"] = parts
     rec["comfort_limit_c"] = study.comfort_limit_c
     put("recommendation.json", lambda p: p.write_text(json.dumps(rec, indent=2, default=_plain) + "\n"))
     notes = []
