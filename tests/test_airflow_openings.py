@@ -1,6 +1,5 @@
 """Tests of atticsim.airflow.openings against handbook formulas and hand-worked examples."""
 
-import math
 
 import numpy as np
 import pytest

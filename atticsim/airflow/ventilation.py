@@ -1,13 +1,7 @@
-"""Attic ventilation flow used by the thermal network.
-
-Baseline model: passive vents give a constant air-change rate; the fan adds its rated flow while it
-runs. (The fan-curve / vent-orifice balance lives beside this module and replaces it where a scenario
-describes openings.)
-"""
+"""Passive ventilation as an air-change rate, for the simple airflow form of :mod:`atticsim.airflow.model`
+(used where a scenario describes no openings)."""
 
 from __future__ import annotations
-
-import numpy as np
 
 from atticsim.constants import HOUR
 
@@ -23,18 +17,3 @@ def passive_flow(ach, attic_volume):
         Attic air volume [m^3].
     """
     return ach * attic_volume / HOUR
-
-
-def ventilation_flow(fan_on, passive, fan_flow):
-    """Total outdoor air flow through the attic [m^3/s]: passive baseline plus the fan's rated flow.
-
-    Parameters
-    ----------
-    fan_on : bool or array_like of bool
-        Fan state.
-    passive : float
-        Passive flow [m^3/s].
-    fan_flow : float
-        Fan flow when running [m^3/s].
-    """
-    return passive + np.asarray(fan_on, dtype=float) * fan_flow

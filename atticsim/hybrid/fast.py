@@ -115,7 +115,7 @@ def integrate_fast(network, forcing, controller, t_start, t_end, y0, fan_on, out
     out = np.asarray(output_times, dtype=float)
     k = 0
     ts, ys, fans, airs, events, updates = [], [], [], [], [], []
-    jac = b_mat = None
+    jac = b_mat = y_jac = None
     t_jac, calls = -math.inf, 0
     need_air = airflow is not None
     next_air = t

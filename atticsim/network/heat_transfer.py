@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from atticsim.constants import SIGMA
 
 #: Surface roughness multipliers R_f for the forced-convection term (Sparrow et al. as tabulated in the
 #: TARP reference manual, Walton 1983, NBSIR 83-2655; from memory).
@@ -85,15 +84,6 @@ def forced_convection_sparrow(wind_speed, perimeter, area, roughness, windward_f
     """
     v = np.maximum(np.asarray(wind_speed, dtype=float), 0.0)
     return 2.537 * windward_factor * roughness * np.sqrt(perimeter * v / area)
-
-
-def radiative_coefficient(emittance, temp_mean_k):
-    """Linearised radiation coefficient h_r = 4 eps sigma T_m^3 [W/(m^2 K)].
-
-    ASHRAE Handbook Fundamentals, heat transfer chapter (linearised radiation; check value
-    5.51 W/m^2K at eps = 0.9, 300 K).
-    """
-    return 4.0 * emittance * SIGMA * np.asarray(temp_mean_k, dtype=float) ** 3
 
 
 def gray_two_surface_factor(area_1, emittance_1, area_2, emittance_2, view_12=1.0):

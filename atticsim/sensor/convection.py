@@ -28,7 +28,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from atticsim.constants import GRAVITY, KELVIN, P_STANDARD
+from atticsim.constants import GRAVITY, P_STANDARD
 from atticsim.sensor import air
 
 #: Geometry words :func:`h_sensor` accepts.
