@@ -10,6 +10,7 @@ This is the Python API the CLI wraps::
 
 from __future__ import annotations
 
+import copy
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -89,8 +90,34 @@ def resolve_period(frame, scenario, start=None, end=None, months=None, year=None
     return start or scenario.weather.start, end or scenario.weather.end
 
 
+#: Finished no-fan runs kept for reuse (key -> (HybridRun, start state)); see ``run_raw(reuse_no_fan=True)``.
+_NO_FAN_RUNS: dict = {}
+_NO_FAN_KEEP = 4
+
+
+def _no_fan_key(no_fan_scenario, frame, period, pressure):
+    """What the no-fan run depends on: the scenario with the fan disabled (less the thermostat when it is a
+    set-point pair, which then affects neither the network nor the disabled fan), the weather's content and
+    the period. A circuit thermostat stays in the key: its divider heats the sensor node."""
+    import hashlib
+
+    dump = no_fan_scenario.model_dump(mode="json")
+    if dump.get("thermostat", {}).get("kind") == "setpoints":
+        dump.pop("thermostat")
+    weather_hash = int(pd.util.hash_pandas_object(frame, index=True).sum())
+    text = repr((sorted(_flat(dump)), weather_hash, period.t_start, period.t_end, pressure))
+    return hashlib.sha256(text.encode()).hexdigest()
+
+
+def _flat(obj, prefix=""):
+    """(dotted key, value) pairs of a nested dump (stable order for hashing)."""
+    if isinstance(obj, dict):
+        return [kv for k, v in obj.items() for kv in _flat(v, f"{prefix}{k}.")]
+    return [(prefix, repr(obj))]
+
+
 def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, months=None,
-            year=None) -> RawRuns:
+            year=None, reuse_no_fan=False) -> RawRuns:
     """Integrate the scenario with the fan under thermostat control and, optionally, with no fan.
 
     Parameters
@@ -103,6 +130,9 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         Period overrides (ISO date or instant, local standard time; a date-only end is inclusive).
     include_no_fan : bool
         Also run the same period with the fan disabled (for the ceiling gain without the fan).
+    reuse_no_fan : bool
+        Reuse the no-fan run of an earlier call in this process when nothing it depends on differs
+        (studies that vary only the thermostat run it once per worker instead of once per point).
     """
     if weather is None:
         weather = load_weather(scenario.weather.file, year=year)
@@ -123,10 +153,10 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
     y0 = np.zeros(network.n_nodes + len(BOOKS))
     y0[:network.n_nodes] = forcing.at(period.t_start)[0]
 
+    no_fan_scenario = scenario.model_copy(update={"fan": scenario.fan.model_copy(update={"enabled": False})})
+
     def one(enabled: bool):
-        net = network if enabled else build_network(
-            scenario.model_copy(update={"fan": scenario.fan.model_copy(update={"enabled": False})}),
-            pressure=pressure)
+        net = network if enabled else build_network(no_fan_scenario, pressure=pressure)
         ctl = controller if enabled else None
         fan0 = ctl.initial_state(y0[net.index["sensor"]]) if ctl else False
         step = integrator(sim)
@@ -135,7 +165,14 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         return run, y_start
 
     with_fan, y_fan = one(scenario.fan.enabled)
-    if include_no_fan:
+    if include_no_fan and reuse_no_fan:
+        key = _no_fan_key(no_fan_scenario, frame, period, pressure)
+        if key not in _NO_FAN_RUNS:
+            while len(_NO_FAN_RUNS) >= _NO_FAN_KEEP:
+                _NO_FAN_RUNS.pop(next(iter(_NO_FAN_RUNS)))
+            _NO_FAN_RUNS[key] = one(False)
+        without_fan, y_nofan = copy.deepcopy(_NO_FAN_RUNS[key])
+    elif include_no_fan:
         without_fan, y_nofan = one(False)
     else:
         without_fan, y_nofan = None, None
@@ -144,7 +181,7 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
                    controller=controller, notes=notes)
 
 
-def simulate(scenario, weather=None, start=None, end=None, months=None, year=None):
+def simulate(scenario, weather=None, start=None, end=None, months=None, year=None, reuse_no_fan=False):
     """Simulate a scenario and compute its results (time series, events, summary, daily and monthly figures).
 
     Parameters
@@ -158,6 +195,8 @@ def simulate(scenario, weather=None, start=None, end=None, months=None, year=Non
         A month range (``"jun-aug"``) or season (``"summer"``) instead of dates.
     year : int, optional
         Calendar year to lay a typical-year file on (and the year of ``months``).
+    reuse_no_fan : bool
+        See :func:`run_raw`.
 
     Returns
     -------
@@ -165,7 +204,8 @@ def simulate(scenario, weather=None, start=None, end=None, months=None, year=Non
     """
     from atticsim.results.metrics import build_result
 
-    raw = run_raw(scenario, weather, start, end, include_no_fan=True, months=months, year=year)
+    raw = run_raw(scenario, weather, start, end, include_no_fan=True, months=months, year=year,
+                  reuse_no_fan=reuse_no_fan)
     return build_result(scenario, raw)
 
 

@@ -85,3 +85,26 @@ def test_fan_keeps_attic_cooler_and_cuts_ceiling_gain(two_days):
     s = two_days.summary
     assert s["ceiling_heat_gain_kwh"] < s["ceiling_heat_gain_no_fan_kwh"]
     assert s["fan_energy_kwh"] == pytest.approx(s["fan_run_hours"] * 0.180, rel=1e-6)  # 180 W fan
+
+
+def test_reused_no_fan_run_equals_a_fresh_one(clear_week):
+    # A study that varies only the set points reuses the no-fan run: the reused figures must be the ones a
+    # fresh run gives, and a change that does affect the no-fan run (vent area) must not hit the cache.
+    import atticsim.pipeline as pipeline
+
+    pipeline._NO_FAN_RUNS.clear()
+    fresh = simulate(demo_scenario(["simulation.spinup_days=1", "thermostat.on=41 degC"]),
+                     weather=clear_week, start="2025-07-15", end="2025-07-15")
+    simulate(demo_scenario(["simulation.spinup_days=1", "thermostat.on=37 degC"]), weather=clear_week,
+             start="2025-07-15", end="2025-07-15", reuse_no_fan=True)
+    assert len(pipeline._NO_FAN_RUNS) == 1
+    reused = simulate(demo_scenario(["simulation.spinup_days=1", "thermostat.on=41 degC"]), weather=clear_week,
+                      start="2025-07-15", end="2025-07-15", reuse_no_fan=True)
+    assert len(pipeline._NO_FAN_RUNS) == 1
+    for key in ("ceiling_heat_gain_no_fan_kwh", "energy_balance_error_no_fan_pct", "ceiling_heat_gain_kwh",
+                "fan_starts"):
+        assert reused.summary[key] == fresh.summary[key], key
+    other = demo_scenario(["simulation.spinup_days=1", "thermostat.on=41 degC", "vents.passive_ach=3"])
+    changed = simulate(other, weather=clear_week, start="2025-07-15", end="2025-07-15", reuse_no_fan=True)
+    assert len(pipeline._NO_FAN_RUNS) == 2
+    assert changed.summary["ceiling_heat_gain_no_fan_kwh"] != fresh.summary["ceiling_heat_gain_no_fan_kwh"]

@@ -18,6 +18,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.integrate import solve_ivp
 
+from atticsim.hybrid.threads import one_blas_thread
 from atticsim.network.model import BOOKS
 
 
@@ -55,6 +56,7 @@ class HybridRun:
     air_updates: list
 
 
+@one_blas_thread
 def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_times,
               rtol=1e-6, max_step=300.0) -> HybridRun:
     """Integrate the hybrid system from t_start to t_end.

@@ -33,6 +33,7 @@ from scipy.linalg import expm
 from scipy.optimize import brentq
 
 from atticsim.hybrid.events import HybridRun
+from atticsim.hybrid.threads import one_blas_thread
 
 #: Relative finite-difference step for the Jacobians (numerical choice, ours).
 FD_STEP = 1e-4
@@ -85,6 +86,7 @@ def _linearise(network, forcing, t, y, fan, n_nodes):
     return f0, jac, b
 
 
+@one_blas_thread
 def integrate_fast(network, forcing, controller, t_start, t_end, y0, fan_on, output_times,
                    segment=600.0, jacobian_every=600.0, max_step=60.0, jacobian_drift=1.0, near_band=0.5) -> HybridRun:
     """Integrate the hybrid system like :func:`atticsim.hybrid.events.integrate`, faster.
