@@ -89,3 +89,8 @@ def test_contradictory_thermistor_position_is_refused(tmp_path):
 def test_setpoint_scenario_is_refused_by_thermostat_command():
     r = CliRunner().invoke(cli, ["thermostat"])
     assert r.exit_code == 2 and "circuit" in r.output
+    assert "<built-in demo house>: thermostat.kind:" in r.output
+    setpoints = Path(__file__).resolve().parent.parent / "scenarios" / "heron_lane_bungalow.toml"
+    r = CliRunner().invoke(cli, ["thermostat", str(setpoints)])
+    assert r.exit_code == 2
+    assert f"{setpoints}: thermostat.kind: is 'setpoints'" in r.output.strip().splitlines()[-1]

@@ -29,6 +29,12 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, serie
     from atticsim.units import to_si
 
     sc = load_scenario(scenario, list(overrides))
+    if sc.thermostat.kind != "circuit":
+        from atticsim.scenario.load import ScenarioError
+
+        raise ScenarioError(scenario or "<built-in demo house>", "thermostat.kind",
+                            f"is {sc.thermostat.kind!r}; this command needs a circuit thermostat "
+                            '(kind = "circuit" with a [thermostat.circuit] table)')
     if design:
         if on_ is None or (off is None) == (hysteresis is None):
             raise click.UsageError("--design needs --on and one of --off or --hysteresis")
