@@ -76,3 +76,134 @@ def test_fast_agrees_with_reference(name):
     books_a, books_b = a.y_end[n:], b.y_end[n:]
     big = np.abs(books_a) > 1e5  # books of more than 0.03 kWh
     assert np.all(np.abs(books_b[big] - books_a[big]) <= 1e-3 * np.abs(books_a[big]))  # 0.1 %
+
+
+def test_block_exponential_gives_the_integrals_it_claims():
+    # _Blocks: G_k(h) = int_0^h e^{J (h - tau)} tau^k / k! dtau (k = 0, 1, 2), checked against adaptive
+    # quadrature of those definitions with scipy.linalg.expm inside (independent of the block trick).
+    from scipy.integrate import quad_vec
+
+    from atticsim.hybrid.fast import _Blocks
+
+    rng = np.random.default_rng(1)
+    jn = -np.diag(rng.uniform(0.001, 0.02, 3)) + 0.002 * rng.standard_normal((3, 3))
+    h = 600.0
+    phi, g0, g1, g2 = _Blocks(jn).get(h)
+    assert np.allclose(phi, expm(jn * h), rtol=1e-8, atol=1e-10)  # to round-off relative to the norm
+    for k, g in enumerate((g0, g1, g2)):
+        want, _ = quad_vec(lambda tau, k=k: expm(jn * (h - tau)) * tau**k / [1, 1, 2][k], 0.0, h,
+                           epsabs=1e-10, epsrel=1e-10)
+        assert np.allclose(g, want, rtol=1e-8, atol=1e-8 * np.abs(want).max()), k
+    # evenly spaced instants come from powers of one exponential: same as direct exponentials
+    offsets = np.array([60.0, 120.0, 180.0, 600.0])
+    st = _Blocks(jn).stacks(offsets)
+    for i, off in enumerate(offsets):
+        direct = _Blocks(jn).get(off)
+        for a, b in zip(st, direct[1:]):
+            assert np.allclose(a[i], b, rtol=1e-8, atol=1e-9 * np.abs(b).max())
+
+
+class _LinearNetwork:
+    """dx/dt = A x + c0 + C u(t) for the window tests (books: the integral of x[0], a 'heat' channel)."""
+
+    def __init__(self, a, c0, cu):
+        self.a, self.c0, self.cu = a, c0, cu
+
+    def derivatives(self, temps, forcing, fan_on):
+        d_nodes = self.a @ temps + self.c0[:, None] + self.cu @ forcing
+        return np.vstack([d_nodes, temps[:1]])
+
+
+class _RampForcing:
+    step = 3600.0
+
+    def __init__(self, values):
+        self.values = values
+
+    def at(self, t):
+        x = t / self.step
+        i = min(int(x), self.values.shape[1] - 2)
+        return self.values[:, i] + (x - i) * (self.values[:, i + 1] - self.values[:, i])
+
+
+def test_window_is_exact_on_a_linear_network():
+    # On a linear network with forcing linear between samples, the window scheme is the exact solution:
+    # compare with a fine RK4 integration of the same ODE (independent reference), outputs and books.
+    from atticsim.hybrid.fast import _Blocks, _window
+
+    rng = np.random.default_rng(2)
+    a = -np.diag([1 / 900.0, 1 / 4000.0, 1 / 150.0]) + 1e-4 * rng.standard_normal((3, 3))
+    c0, cu = rng.standard_normal(3) * 1e-3, rng.standard_normal((3, 2)) * 1e-3
+    net = _LinearNetwork(a, c0, cu)
+    forcing = _RampForcing(rng.standard_normal((2, 6)) * 5.0)
+    y0 = np.array([20.0, 25.0, 30.0, 0.0])
+    jac = np.vstack([a, [[1.0, 0.0, 0.0]]])
+    bounds = np.concatenate([[0.0], np.arange(600.0, 3 * 3600.0, 600.0), [3 * 3600.0]])
+    out = np.arange(0.0, 3 * 3600.0 + 1.0, 60.0)
+    f0 = net.derivatives(y0[:3, None], forcing.at(0.0)[:, None], False)[:, 0]
+    res = _window(net, forcing, False, 0.0, bounds[-1], y0, f0, jac, np.vstack([cu, [[0.0, 0.0]]]),
+                  _Blocks(a), bounds, 60.0, out, 1, None)
+    t_stop, y_end, times, states, k, n_iter, crossed = res
+    assert t_stop == bounds[-1] and not crossed and n_iter <= 2 and k == out.size
+    # RK4 at 1 s steps
+    x, t, dt = y0.copy(), 0.0, 1.0
+    rk = {}
+    for step in range(int(bounds[-1])):
+        def f(t_, x_):
+            return net.derivatives(x_[:3, None], forcing.at(t_)[:, None], False)[:, 0]
+        k1 = f(t, x)
+        k2 = f(t + dt / 2, x + dt / 2 * k1)
+        k3 = f(t + dt / 2, x + dt / 2 * k2)
+        k4 = f(t + dt, x + dt * k3)
+        x, t = x + dt / 6 * (k1 + 2 * k2 + 2 * k3 + k4), t + dt
+        if step % 60 == 59:
+            rk[round(t)] = x.copy()
+    for tt, st in zip(times, states):
+        assert np.allclose(st, rk[round(tt)], rtol=1e-8, atol=1e-7)
+    assert np.allclose(y_end, rk[round(bounds[-1])], rtol=1e-8, atol=1e-7)
+
+
+def test_window_stops_at_a_located_crossing():
+    # A single cooling node crossing a level: the located time is the analytic one,
+    # x(t) = x_inf + (x0 - x_inf) e^{-t/tau}  =>  t* = tau ln((x0 - x_inf) / (level - x_inf)).
+    from atticsim.hybrid.fast import _Blocks, _window
+
+    tau, x_inf, x0, level = 300.0, 20.0, 40.0, 30.0
+    a = np.array([[-1.0 / tau]])
+    net = _LinearNetwork(a, np.array([x_inf / tau]), np.zeros((1, 1)))
+    forcing = _RampForcing(np.zeros((1, 3)))
+    jac = np.array([[-1.0 / tau], [1.0]])
+    bounds = np.arange(0.0, 1801.0, 60.0)
+    out = np.arange(0.0, 1801.0, 60.0)
+    y0 = np.array([x0, 0.0])
+    f0 = net.derivatives(y0[:1, None], forcing.at(0.0)[:, None], False)[:, 0]
+    res = _window(net, forcing, False, 0.0, 1800.0, y0, f0, jac, np.zeros((2, 1)), _Blocks(a), bounds, 60.0,
+                  out, 1, (0, level, -1), locate=True)
+    t_stop, y_end, times, states, k, n_iter, crossed = res
+    t_star = tau * np.log((x0 - x_inf) / (level - x_inf))
+    assert crossed and abs(t_stop - t_star) < 1e-2
+    assert y_end[0] == pytest.approx(level, abs=1e-4)
+    assert max(times) < t_stop and len(times) == int(t_star // 60)
+
+
+def test_sequential_fallback_agrees_with_reference():
+    # windows=False is the fallback a non-converging window uses: it must meet the same agreement.
+    import atticsim.pipeline as pipeline
+    from atticsim.hybrid.fast import integrate_fast
+
+    path = ROOT / "scenarios" / "heron_lane_bungalow.toml"
+    base = ["simulation.spinup_days=1"]
+    sc_ref = load_scenario(path, base + ['simulation.solver="reference"'])
+    start = sc_ref.weather.start
+    ref = run_raw(sc_ref, start=start, end=start, include_no_fan=False)
+    original = pipeline.integrator
+    pipeline.integrator = lambda sim: (lambda *a: integrate_fast(*a, windows=False))
+    try:
+        seq = run_raw(load_scenario(path, base), start=start, end=start, include_no_fan=False)
+    finally:
+        pipeline.integrator = original
+    n = ref.network.n_nodes
+    assert np.max(np.abs(ref.with_fan.y[:n] - seq.with_fan.y[:n])) < 0.05
+    ea = np.array([e[0] for e in ref.with_fan.events])
+    eb = np.array([e[0] for e in seq.with_fan.events])
+    assert ea.size == eb.size and np.max(np.abs(ea - eb), initial=0.0) < 5.0
