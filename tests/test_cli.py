@@ -42,7 +42,7 @@ def test_run_writes_results_for_one_day(tmp_path):
                 "attic_air_max_c", "attic_air_mean_c", "ceiling_heat_gain_kwh", "ceiling_heat_gain_no_fan_kwh",
                 "energy_balance_error_pct", "period_start", "period_end"):
         assert key in s
-    assert "°F" in r.output and "Mains voltage" in r.output
+    assert "°F" in r.output and "mains potential" in r.output
     # existing output is not overwritten without --force, and is left as it was
     before = (out / "summary.json").read_text()
     r2 = invoke("run", "--out", out, "--start", "2025-07-01", "--end", "2025-07-01")

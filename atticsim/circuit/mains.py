@@ -27,8 +27,8 @@ MAINS_CAUTION = (
     "CAUTION: the thermostat's fan side runs at mains potential, and a capacitive-dropper supply gives NO "
     "isolation: every part of the low-voltage circuit, the thermistor and its wiring included, is at mains "
     "potential and can kill. Build, install and test it only if you are a qualified person, in an insulated, "
-    "earthed enclosure with the sensor insulated for mains voltage, and follow your local electrical codes; "
-    "these figures are a design check, not a safety approval.")
+    "earthed enclosure with the sensor insulated for mains voltage, follow your local electrical codes and have "
+    "the work checked by a licensed electrician; these figures are a design check, not a safety approval.")
 
 #: Usual mains supplies (nominal rms voltage [V], frequency [Hz]).
 MAINS_120V_60HZ = (120.0, 60.0)

@@ -1,8 +1,9 @@
 """Safety cautions shown in the README, in reports and wherever the tool checks a circuit."""
 
-MAINS = ("Mains voltage: the thermostat circuit, its capacitive-dropper supply (which gives NO isolation), "
-         "the triac and the fan motor are all at mains potential. Build, fit and test them only if you are "
-         "qualified; follow local electrical codes and have the work checked by a licensed electrician.")
+from atticsim.circuit.mains import MAINS_CAUTION
+
+#: One mains caution for the whole tool (the circuit checks print the same text).
+MAINS = MAINS_CAUTION
 DEPRESSURISATION = ("House depressurisation: a powered attic fan can pull conditioned air and flue gases "
                     "from the house through ceiling leaks and backdraft atmospherically vented combustion "
                     "appliances (water heaters, furnaces). Provide ample intake vent area and have a "
