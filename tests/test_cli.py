@@ -43,6 +43,13 @@ def test_run_writes_results_for_one_day(tmp_path):
                 "energy_balance_error_pct", "period_start", "period_end"):
         assert key in s
     assert "°F" in r.output and "mains potential" in r.output
+    # times in ISO 8601 extended form throughout: the offset as +hh:mm beside hh:mm:ss (ISO 8601; from memory)
+    import re
+
+    first_row = (out / "timeseries.csv").read_text().splitlines()[1]
+    assert re.match(r"^2025-07-01T00:00:00[+-]\d\d:\d\d,", first_row), first_row
+    events = (out / "events.csv").read_text().splitlines()
+    assert all(re.match(r"^2025-07-\d\dT\d\d:\d\d:\d\d\.\d{6}[+-]\d\d:\d\d,", row) for row in events[1:]), events
     # existing output is not overwritten without --force, and is left as it was
     before = (out / "summary.json").read_text()
     r2 = invoke("run", "--out", out, "--start", "2025-07-01", "--end", "2025-07-01")

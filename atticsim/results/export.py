@@ -5,6 +5,13 @@ from __future__ import annotations
 from atticsim.results.output import write_json
 
 
+def iso_times(times, fmt):
+    """ISO 8601 extended text of tz-aware times: ``fmt`` then the offset as +hh:mm (strftime's %z gives
+    +hhmm, the basic form, which does not belong with an extended date)."""
+    text = times.dt.strftime(fmt + "%z")
+    return text.str[:-2] + ":" + text.str[-2:]
+
+
 def result_writers(result, units: str = "si") -> dict:
     """file name -> writer(path) for a :class:`SimulationResult`."""
     from atticsim.report.cautions import ALL
@@ -14,11 +21,14 @@ def result_writers(result, units: str = "si") -> dict:
         write_json(path, {**result.summary, "notes": result.notes, "cautions": list(ALL)})
 
     def timeseries(path):
-        result.timeseries.to_csv(path, float_format="%.4f", date_format="%Y-%m-%dT%H:%M:%S%z")
+        ts = result.timeseries.copy()
+        ts.index = iso_times(ts.index.to_series(), "%Y-%m-%dT%H:%M:%S").to_numpy()
+        ts.index.name = result.timeseries.index.name
+        ts.to_csv(path, float_format="%.4f")
 
     def events(path):
         ev = result.events.copy()
-        ev["time"] = ev["time"].dt.strftime("%Y-%m-%dT%H:%M:%S.%f%z")
+        ev["time"] = iso_times(ev["time"], "%Y-%m-%dT%H:%M:%S.%f")
         ev.to_csv(path, index=False, float_format="%.4f")
 
     return {
