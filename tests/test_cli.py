@@ -48,6 +48,9 @@ def test_run_writes_results_for_one_day(tmp_path):
 
     first_row = (out / "timeseries.csv").read_text().splitlines()[1]
     assert re.match(r"^2025-07-01T00:00:00[+-]\d\d:\d\d,", first_row), first_row
+    from PIL import Image
+
+    assert "Software" not in Image.open(out / "temperatures.png").info  # no tool names in the file's metadata
     events = (out / "events.csv").read_text().splitlines()
     assert all(re.match(r"^2025-07-\d\dT\d\d:\d\d:\d\d\.\d{6}[+-]\d\d:\d\d,", row) for row in events[1:]), events
     # existing output is not overwritten without --force, and is left as it was

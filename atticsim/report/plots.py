@@ -7,6 +7,11 @@ from pathlib import Path
 import numpy as np
 
 
+def save_figure(fig, path) -> None:
+    """Write a figure as PNG at 110 dpi, without the plotting library's name in the file's metadata."""
+    fig.savefig(path, dpi=110, metadata={"Software": None})
+
+
 def _intervals(index, fan_on):
     """Contiguous on-intervals of a sampled fan state as (start, end) index labels."""
     on = np.asarray(fan_on, dtype=bool)
@@ -74,7 +79,7 @@ def plot_temperatures(result, path: str | Path, units: str = "si") -> None:
     ax2.xaxis.set_major_formatter(mdates.DateFormatter("%m-%d\n%H:%M"))
     ax2.set_xlabel(f"local standard time (UTC{ts.index[0].strftime('%z')[:3]})")
     fig.tight_layout()
-    fig.savefig(path, dpi=110)
+    save_figure(fig, path)
     plt.close(fig)
 
 
@@ -109,7 +114,7 @@ def plot_monthly(result, path: str | Path, units: str = "si") -> None:
     house = getattr(getattr(result.scenario, "house", None), "name", "")
     ax1.set_title(f"{house}: by month", fontsize=11)
     fig.tight_layout()
-    fig.savefig(path, dpi=110)
+    save_figure(fig, path)
     plt.close(fig)
 
 
@@ -159,5 +164,5 @@ def plot_placements(results: dict, path: str | Path, units: str = "si") -> None:
     ax2.xaxis.set_major_formatter(mdates.DateFormatter("%H:%M"))
     ax2.grid(axis="x", alpha=0.3)
     fig.tight_layout()
-    fig.savefig(path, dpi=110)
+    save_figure(fig, path)
     plt.close(fig)

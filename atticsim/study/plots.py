@@ -123,4 +123,6 @@ def short_cycling_map(table, keys: list[str], path: str | Path, starts_limit: fl
                Patch(facecolor="white", edgecolor="#00c000", lw=2.5, label="recommended point")]
     fig.legend(handles=handles, loc="outside lower center", ncol=2, fontsize=8, frameon=False)
     fig.suptitle("Short-cycling map", fontsize=11)
-    fig.savefig(path, dpi=110)
+    from atticsim.report.plots import save_figure
+
+    save_figure(fig, path)
