@@ -100,20 +100,14 @@ def _no_fan_key(no_fan_scenario, frame, period, pressure):
     set-point pair, which then affects neither the network nor the disabled fan), the weather's content and
     the period. A circuit thermostat stays in the key: its divider heats the sensor node."""
     import hashlib
+    import json
 
     dump = no_fan_scenario.model_dump(mode="json")
     if dump.get("thermostat", {}).get("kind") == "setpoints":
         dump.pop("thermostat")
     weather_hash = int(pd.util.hash_pandas_object(frame, index=True).sum())
-    text = repr((sorted(_flat(dump)), weather_hash, period.t_start, period.t_end, pressure))
+    text = json.dumps([dump, weather_hash, period.t_start, period.t_end, pressure], sort_keys=True, default=str)
     return hashlib.sha256(text.encode()).hexdigest()
-
-
-def _flat(obj, prefix=""):
-    """(dotted key, value) pairs of a nested dump (stable order for hashing)."""
-    if isinstance(obj, dict):
-        return [kv for k, v in obj.items() for kv in _flat(v, f"{prefix}{k}.")]
-    return [(prefix, repr(obj))]
 
 
 def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, months=None,

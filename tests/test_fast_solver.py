@@ -141,7 +141,7 @@ def test_window_is_exact_on_a_linear_network():
     bounds = np.concatenate([[0.0], np.arange(600.0, 3 * 3600.0, 600.0), [3 * 3600.0]])
     out = np.arange(0.0, 3 * 3600.0 + 1.0, 60.0)
     f0 = net.derivatives(y0[:3, None], forcing.at(0.0)[:, None], False)[:, 0]
-    res = _window(net, forcing, False, 0.0, bounds[-1], y0, f0, jac, np.vstack([cu, [[0.0, 0.0]]]),
+    res = _window(net, forcing, False, y0, f0, jac, np.vstack([cu, [[0.0, 0.0]]]),
                   _Blocks(a), bounds, 60.0, out, 1, None)
     t_stop, y_end, times, states, k, n_iter, crossed = res
     assert t_stop == bounds[-1] and not crossed and n_iter <= 2 and k == out.size
@@ -177,7 +177,7 @@ def test_window_stops_at_a_located_crossing():
     out = np.arange(0.0, 1801.0, 60.0)
     y0 = np.array([x0, 0.0])
     f0 = net.derivatives(y0[:1, None], forcing.at(0.0)[:, None], False)[:, 0]
-    res = _window(net, forcing, False, 0.0, 1800.0, y0, f0, jac, np.zeros((2, 1)), _Blocks(a), bounds, 60.0,
+    res = _window(net, forcing, False, y0, f0, jac, np.zeros((2, 1)), _Blocks(a), bounds, 60.0,
                   out, 1, (0, level, -1), locate=True)
     t_stop, y_end, times, states, k, n_iter, crossed = res
     t_star = tau * np.log((x0 - x_inf) / (level - x_inf))

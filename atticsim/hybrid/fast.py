@@ -150,9 +150,10 @@ class _Blocks:
         return st
 
 
-def _window(network, forcing, fan, t, t_end, y, f0, jac, b_u, blocks, bounds, max_step, out, k, check,
+def _window(network, forcing, fan, y, f0, jac, b_u, blocks, bounds, max_step, out, k, check,
             locate=False, tol=1e-3, max_iter=8):
-    """Advance a whole window [t, t_end] (no airflow update inside) at once, Newton's method on the window.
+    """Advance a whole window [bounds[0], bounds[-1]] (no airflow update inside) at once, by Newton's
+    method on the window.
 
     The window is cut into segments at ``bounds`` (the segment grid and the weather samples, so that the
     forcing is linear on each). On each segment the derivative is taken as linear in time between its
@@ -171,14 +172,14 @@ def _window(network, forcing, fan, t, t_end, y, f0, jac, b_u, blocks, bounds, ma
     check : (index, level, direction) or None
         A sensor level: the window stops at the first segment where it is reached.
     locate : bool
-        True: ``check`` is the switching level and the window stops at the crossing itself, found by root
-        finding (Brent) on the segment's exact solution. False: the window stops at the start of the
-        segment where the level is reached.
+        True: ``check`` is the switching level and the window stops at the crossing itself, located on the
+        segment's exact solution (:func:`_crossing`). False: the window stops at the start of the segment
+        where the level is reached.
 
     Returns
     -------
     None when the iteration does not converge; otherwise (t_stop, y_stop, times, states, k, n_iter,
-    crossed): the window is accepted up to t_stop with the output instants inside (t, t_stop]; crossed
+    crossed): the window is accepted up to t_stop with the output instants inside (bounds[0], t_stop]; crossed
     tells that t_stop is a located crossing.
     """
     nn = jac.shape[1]
@@ -233,21 +234,21 @@ def _window(network, forcing, fan, t, t_end, y, f0, jac, b_u, blocks, bounds, ma
     times, states, k, books, j_c = _fill(blocks, bounds, xs, a_s, b_s, y[nn:], jb_t, max_step, out, k, check)
     t_stop, crossed = bounds[-1], False
     x = xs[j_c] if j_c < n_seg else xs[-1]
-    for j in range(j_c, min(j_c + 1, n_seg)):
+    if j_c < n_seg:
+        # the segment where the level is reached: stop at its start, or at the located crossing
+        j = j_c
         lo, hi = bounds[j], bounds[j + 1]
+        if not locate:
+            return lo, np.concatenate([x, books]), times, states, k, n_iter, False
         first, kk = k, k
         while kk < out.size and out[kk] <= hi + 1e-6:
             kk += 1
-        offsets = np.concatenate([out[first:kk] - lo, np.arange(max_step, hi - lo - 1e-6, max_step), [hi - lo]])
-        offsets = np.unique(np.round(offsets, 6))
+        offsets = _offsets(out[first:kk] - lo, hi - lo, max_step)
         g0s, g1s, g2s = blocks.stacks(offsets)
         a, b = a_s[j], b_s[j]
         zs = g0s @ a[:nn] + g1s @ b[:nn]                                       # (p, nn)
         i_s, level, direction = check
         reached = (x[i_s] + zs[:, i_s] - level) * direction >= 0.0
-        if not locate:
-            t_stop = lo
-            break
         p = int(np.argmax(reached))
         tau = _crossing(blocks, a[:nn], b[:nn], x[i_s], i_s, level, direction,
                         offsets[p - 1] if p > 0 else 0.0, offsets[p], zs[p - 1] if p > 0 else np.zeros(nn))
@@ -271,6 +272,12 @@ def _window(network, forcing, fan, t, t_end, y, f0, jac, b_u, blocks, bounds, ma
         k = kk
         x, books = x + zs[-1], book_pts[-1]
     return t_stop, np.concatenate([x, books]), times, states, k, n_iter, crossed
+
+
+def _offsets(out_offsets, h, max_step):
+    """Instants inside a segment of length h where states are evaluated: its output instants, a grid of
+    max_step (for the crossing check) and its end; sorted, rounded to the microsecond."""
+    return np.unique(np.round(np.concatenate([out_offsets, np.arange(max_step, h - 1e-6, max_step), [h]]), 6))
 
 
 def _fill(blocks, bounds, xs, a_s, b_s, books0, jb_t, max_step, out, k, check):
@@ -301,7 +308,7 @@ def _fill(blocks, bounds, xs, a_s, b_s, books0, jb_t, max_step, out, k, check):
         idx = np.asarray(idx)
         j0 = idx[0]
         o_out = np.round(out[ks[j0]:ke[j0]] - bounds[j0], 6)
-        offsets = np.unique(np.round(np.concatenate([o_out, np.arange(max_step, h - 1e-6, max_step), [h]]), 6))
+        offsets = _offsets(o_out, h, max_step)
         rows = np.searchsorted(offsets, o_out)
         g0s, g1s, g2s = blocks.stacks(offsets)
         an, bn = a_s[idx, :nn], b_s[idx, :nn]
@@ -525,8 +532,8 @@ def integrate_fast(network, forcing, controller, t_start, t_end, y0, fan_on, out
             if controller is not None:
                 level, direction = controller.next_switch(fan)
                 check = (i_sensor, level if fine else level - direction * near_band, direction)
-            res = _window(network, forcing, fan, t, win_end, y, f0, jac_w[:, :n_nodes], b_w, blocks, bounds,
-                          max_step, out, k, check, locate=fine)
+            res = _window(network, forcing, fan, y, f0, jac_w[:, :n_nodes], b_w, blocks, bounds, max_step, out,
+                          k, check, locate=fine)
             if res is None:
                 no_window_until = t + fine_window  # no convergence: step through
             else:
