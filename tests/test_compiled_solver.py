@@ -1,0 +1,85 @@
+"""The compiled solver: many switches against the reference solver, exact crossings, its output grid and
+its fallback to the window solver."""
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from atticsim import pipeline
+from atticsim.hybrid import compiled
+from atticsim.pipeline import run_raw
+from atticsim.scenario import load_scenario
+
+ROOT = Path(__file__).resolve().parent.parent
+BUNGALOW = ROOT / "scenarios" / "heron_lane_bungalow.toml"
+# a narrow band (0.5 K) on the demo house: over a hundred switches in two days
+NARROW = ["simulation.spinup_days=1", "thermostat.on=38 degC", "thermostat.off=37.5 degC"]
+
+
+@pytest.fixture(scope="module")
+def narrow_runs():
+    sc_ref = load_scenario(BUNGALOW, NARROW + ['simulation.solver="reference"'])
+    start = sc_ref.weather.start
+    end = (np.datetime64(start) + np.timedelta64(1, "D")).astype(str)
+    ref = run_raw(sc_ref, start=start, end=end, include_no_fan=False)
+    fast = run_raw(load_scenario(BUNGALOW, NARROW + ['simulation.solver="fast"']), start=start, end=end,
+                   include_no_fan=False)
+    return ref, fast
+
+
+def test_many_switches_agree_with_reference(narrow_runs):
+    # the agreement the project promises (0.05 K, 5 s, same starts, books to 0.1 %) where it is hardest
+    ref, fast = narrow_runs
+    n = ref.network.n_nodes
+    a, b = ref.with_fan, fast.with_fan
+    assert len(a.events) > 50 and len(a.events) == len(b.events)
+    assert [e[1] for e in a.events] == [e[1] for e in b.events]
+    assert np.max(np.abs(np.array([e[0] for e in a.events]) - np.array([e[0] for e in b.events]))) < 5.0
+    assert np.max(np.abs(a.y[:n] - b.y[:n])) < 0.05
+    big = np.abs(a.y_end[n:]) > 1e5
+    assert np.all(np.abs(b.y_end[n:][big] - a.y_end[n:][big]) <= 1e-3 * np.abs(a.y_end[n:][big]))
+
+
+def test_switches_happen_exactly_at_the_levels(narrow_runs):
+    _, fast = narrow_runs
+    ctl = fast.controller
+    for _, fan_on, sensor in fast.with_fan.events:
+        assert sensor == pytest.approx(ctl.on if fan_on else ctl.off, abs=1e-6)
+
+
+def test_fan_state_and_outputs_follow_the_events(narrow_runs):
+    _, fast = narrow_runs
+    run = fast.with_fan
+    assert np.allclose(np.diff(run.t[:-1]), 60.0)
+    checked = 0
+    for i, (t_event, fan_on, _) in enumerate(run.events):
+        after = np.searchsorted(run.t, t_event + 1e-6)
+        nxt = run.events[i + 1][0] if i + 1 < len(run.events) else np.inf
+        if after < run.t.size and run.t[after] < nxt:  # (two switches within a minute: the later one shows)
+            assert run.fan[after] == fan_on
+            checked += 1
+    assert checked > len(run.events) // 2
+
+
+def test_grid_steps():
+    t0 = 1000.0
+    assert compiled.grid_steps(np.append(np.arange(t0, t0 + 3600, 60.0), t0 + 3601), t0) == (60.0, 60.0, 600.0)
+    assert compiled.grid_steps(np.append(np.arange(t0, t0 + 7200, 300.0), t0 + 7200), t0) == (300.0, 60.0, 600.0)
+    assert compiled.grid_steps(np.arange(t0, t0 + 7200, 900.0), t0) == (900.0, 60.0, 900.0)
+    assert compiled.grid_steps(np.array([t0 + 86400.0]), t0) == (60.0, 60.0, 600.0)  # spin-up: the end only
+    assert compiled.grid_steps(np.array([t0, t0 + 60, t0 + 100, t0 + 200]), t0) is None
+    assert compiled.grid_steps(np.arange(t0 + 30, t0 + 3600, 60.0), t0) is None  # not from the start
+
+
+def test_outputs_off_the_grid_fall_back_to_the_window_solver(monkeypatch):
+    sc = load_scenario(BUNGALOW, ["simulation.spinup_days=0"])
+    raw = run_raw(sc, start=sc.weather.start, end=sc.weather.start, include_no_fan=False)
+    net, forcing, ctl = raw.network, raw.forcing, raw.controller
+    t0 = raw.period.t_start
+    y0 = raw.y_start_fan
+    times = t0 + np.array([0.0, 60.0, 100.0, 3600.0])
+    assert compiled.integrate_compiled(net, forcing, ctl, t0, t0 + 3600.0, y0, False, times) is None
+    step = pipeline.integrator(sc.simulation)
+    run = step(net, forcing, ctl, t0, t0 + 3600.0, y0, False, times)
+    assert np.allclose(run.t, times)
