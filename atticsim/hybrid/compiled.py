@@ -42,7 +42,7 @@ import math
 import numba as nb
 import numpy as np
 
-from atticsim.hybrid.blocks import blocks_for, chain, matvec, matvec_add, taylor
+from atticsim.hybrid.blocks import BLOCKS, blocks_for, chain_into, matmul, matvec, matvec_add, taylor
 from atticsim.hybrid.events import HybridRun
 from atticsim.network import kernel
 
@@ -119,24 +119,27 @@ def _cubic_root(g_lo, d_lo, g_hi, d_hi, h):
 
 
 @nb.njit(cache=True)
-def _taylor_state(jac, z, c, b, delta, z_out, int_out):
-    """z(delta) and int_0^delta z of dz/ds = J z + c + b s from z(0) = z, by the Taylor series
-    (delta under the chain's base step, ||J delta|| <= 1/4: 20 terms are far below rounding)."""
+def _taylor_state(jac, z, v0, v1, c, delta, z_out, int_out):
+    """z(delta) and int_0^delta z of dz/ds = J z + v0 + v1 s + c s^2 from z(0) = z, by the Taylor series
+    (delta under the chain's base step, ||J delta|| <= 1/4: 24 terms are far below rounding)."""
     n = z.size
     term = np.empty(n)
     nxt = np.empty(n)
     matvec(jac, z, term)
     for i in range(n):
-        term[i] += c[i]                      # z'(0)
+        term[i] += v0[i]                     # z'(0)
         z_out[i] = z[i] + delta * term[i]
         int_out[i] = delta * z[i] + 0.5 * delta * delta * term[i]
     coef_z = delta                           # delta^m / m!
     coef_i = 0.5 * delta * delta             # delta^(m+1) / (m+1)!
-    for m in range(2, 22):
+    for m in range(2, 26):
         matvec(jac, term, nxt)
         if m == 2:
             for i in range(n):
-                nxt[i] += b[i]
+                nxt[i] += v1[i]              # z'' = J z' + v1
+        elif m == 3:
+            for i in range(n):
+                nxt[i] += 2.0 * c[i]         # z''' = J z'' + 2 c
         term[:] = nxt
         coef_z *= delta / m
         coef_i *= delta / (m + 1)
@@ -146,63 +149,53 @@ def _taylor_state(jac, z, c, b, delta, z_out, int_out):
 
 
 @nb.njit(cache=True)
-def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, ints, heat,
-            f_values, f_step, out_t, k, out_y, i_sensor, level, direction, tol, tol_iter, drift, age,
-            unit_halvings):
-    """Advance from t to t_end (fan state and air flows fixed) or to the first switching crossing.
+def _from_start(blk, a, b, c, out):
+    """z over a step from z = 0 with remainder a + b s + c s^2: G0 a + G1 b + 2 G2 c."""
+    matvec(blk[1], a, out)
+    matvec_add(blk[2], b, 1.0, out)
+    matvec_add(blk[3], c, 2.0, out)
 
-    x (nodes) and books are updated in place; output rows are written into out_y[:, k...].
-    Returns (status, t, k, n_rhs, n_jacobians, n_rejected, n_segments): status DONE at t_end, SWITCH at a located
-    crossing (t its instant), OFF_GRID when an output instant does not fall on the check grid, FAILED when
-    a segment's end does not converge even at half a second.
-    """
+
+@nb.njit(cache=True)
+def _step_on(blk, z, acc, v0, v1, c, z_out, acc_out):
+    """One step on from (z, int z) with the remainder v0 + v1 s + c s^2 from the step's start:
+    z' = Phi z + G0 v0 + G1 v1 + 2 G2 c and int z' = int z + G0 z + G1 v0 + G2 v1 + 2 G3 c."""
+    matvec(blk[0], z, z_out)
+    matvec_add(blk[1], v0, 1.0, z_out)
+    matvec_add(blk[2], v1, 1.0, z_out)
+    matvec_add(blk[3], c, 2.0, z_out)
+    acc_out[:] = acc
+    matvec_add(blk[1], z, 1.0, acc_out)
+    matvec_add(blk[2], v0, 1.0, acc_out)
+    matvec_add(blk[3], v1, 1.0, acc_out)
+    matvec_add(blk[4], c, 2.0, acc_out)
+
+
+@nb.njit(cache=True)
+def _expanded(blk, a, b, c, p0, p1, p2, q0, q1, q2):
+    """Per-segment vectors of a step from sigma with the remainder a + b s + c s^2 from the segment's start:
+    the step adds P0 + sigma P1 + sigma^2 P2 to Phi z and Q0 + sigma Q1 + sigma^2 Q2 to G0 z in int z
+    (P0 = G0 a + G1 b + 2 G2 c, P1 = G0 b + 2 G1 c, P2 = G0 c; Q with G1, G2, G3 in place of G0, G1, G2)."""
+    _from_start(blk, a, b, c, p0)
+    matvec(blk[1], b, p1)
+    matvec_add(blk[2], c, 2.0, p1)
+    matvec(blk[1], c, p2)
+    matvec(blk[2], a, q0)
+    matvec_add(blk[3], b, 1.0, q0)
+    matvec_add(blk[4], c, 2.0, q0)
+    matvec(blk[2], b, q1)
+    matvec_add(blk[3], c, 2.0, q1)
+    matvec(blk[2], c, q2)
+
+
+@nb.njit(cache=True)
+def _relinearise(x, u, t, fan, air, prm, planes, ints, heat, f0, lin, q_step, unit_halvings, segment):
+    """A new linearisation at (x, u) into ``lin``: the Jacobian, its base step s0 (q_step / 2^k with
+    ||J s0|| <= 1/4), the doubling chain, an empty block cache."""
+    jac, jac_b, links, _, _, meta, cnt, x_lin, air_lin, _ = lin
     n = x.size
-    nb_ = books.size
-    n_tot = n + nb_
-    n_u = f_values.shape[0]
-    u0 = np.empty(n_u)
-    u1 = np.empty(n_u)
-    um = np.empty(n_u)
-    f0 = np.empty(n_tot)
-    f1 = np.empty(n_tot)
-    fm = np.empty(n_tot)
-    jac_all = np.empty((n_tot, n))
-    jac = np.empty((n, n))
-    jac_b = np.empty((nb_, n))
-    x_lin = x.copy()
-    t_lin = t
-    z1 = np.empty(n)
-    zn = np.empty(n)
-    xe = np.empty(n)
-    a = np.empty(n)
-    b = np.zeros(n)
-    b_prev = np.zeros(n)
-    rb = np.empty(nb_)
-    zs = np.empty(n)
-    zi = np.empty(n)
-    zt = np.empty(n)
-    it_ = np.empty(n)
-    tmp = np.empty(n)
-    lens = np.zeros(_CACHE)
-    count = np.zeros(1, dtype=np.int64)
-    store = np.empty((_CACHE, 4, n, n))
-    n_rhs = 0
-    n_jac = 0
-    n_rej = 0
-    n_seg = 0
-    n_out = out_t.size
-
-    if k < n_out and abs(out_t[k] - t) < 1e-6:
-        out_y[:n, k] = x
-        out_y[n:, k] = books
-        k += 1
-    _forcing_at(f_values, f_step, t, u0)
-    kernel.rhs(x, u0, fan, air, prm, planes, ints, heat, f0)
-    n_rhs += 1
-    # linearisation
-    _jacobian(x, u0, fan, air, prm, planes, ints, heat, f0, jac_all)
-    n_rhs += n
-    n_jac += 1
+    jac_all = np.empty((f0.size, n))
+    _jacobian(x, u, fan, air, prm, planes, ints, heat, f0, jac_all)
     jac[:, :] = jac_all[:n]
     jac_b[:, :] = jac_all[n:]
     s0 = q_step / 2.0**unit_halvings
@@ -214,40 +207,133 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
         norm = max(norm, row)
     while norm * s0 > 0.25:
         s0 *= 0.5
-    levels = int(np.ceil(np.log2(max(segment, 2.0 * q_step) / s0)))
-    links = chain(jac, s0, levels)
-    base = links[0]
+    levels = min(int(np.ceil(np.log2(max(segment, 2.0 * q_step) / s0))), links.shape[0] - 1)
+    chain_into(jac, s0, levels, links)
+    meta[0], meta[1], meta[2], meta[3] = 1.0, s0, levels, t
+    x_lin[:] = x
+    air_lin[:] = air
+    cnt[0] = 0     # block cache: empty
+    cnt[1] = -1    # J_b G0(q): to be formed
+
+
+@nb.njit(cache=True)
+def _air_close(air, air_lin):
+    """The held air flows within 5 % of those at the linearisation (the propagator need only be near the
+    true Jacobian: each segment's remainder is matched to the true derivatives)."""
+    for i in range(air.size):
+        if abs(air[i] - air_lin[i]) > 0.05 * max(abs(air[i]), abs(air_lin[i])) + 1e-12:
+            return False
+    return True
+
+
+@nb.njit(cache=True)
+def _max_change(p, q):
+    """max |p - q|, NaN when any is NaN (a diverging iteration never counts as converged)."""
+    change = 0.0
+    for i in range(p.size):
+        d = abs(p[i] - q[i])
+        if not d <= change:
+            change = d
+    return change
+
+
+@nb.njit(cache=True)
+def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, ints, heat,
+            f_values, f_step, out_t, k, out_y, i_sensor, level, direction, tol, tol_iter, drift, age,
+            unit_halvings, lin, after_switch):
+    """Advance from t to t_end (fan state and air flows fixed) or to the first switching crossing.
+
+    ``lin`` (:func:`new_linearisation`) carries the linearisation and its block cache from call to call
+    (one per fan state); it is renewed when the nodes have moved ``drift`` K from it, after ``age`` s or
+    when the air flows differ by more than 5 %. ``after_switch``: the state moves fast, start with short
+    segments.
+
+    x (nodes) and books are updated in place; output rows are written into out_y[k...] (one row per
+    output instant). Returns (status, t, k, n_rhs, n_jacobians, n_rejected, n_segments): status DONE at
+    t_end, SWITCH at a located crossing (t its instant), OFF_GRID when an output instant does not fall on
+    the check grid, FAILED when a segment's end does not converge even at half a second.
+    """
+    n = x.size
+    nb_ = books.size
+    n_tot = n + nb_
+    n_u = f_values.shape[0]
+    u0 = np.empty(n_u)
+    u1 = np.empty(n_u)
+    um = np.empty(n_u)
+    f0 = np.empty(n_tot)
+    f1 = np.empty(n_tot)
+    fm = np.empty(n_tot)
+    jac, jac_b, links, store, lens, meta, cnt, x_lin, air_lin, k_q = lin
+    a = np.empty(n)
+    b = np.zeros(n)
+    c = np.zeros(n)
+    b_prev = np.zeros(n)
+    c_prev = np.zeros(n)
+    z1 = np.empty(n)
+    zm = np.empty(n)
+    z1n = np.empty(n)
+    zmn = np.empty(n)
+    xe = np.empty(n)
+    rm = np.empty(n)
+    r1 = np.empty(n)
+    bb = np.empty(nb_)
+    cb = np.empty(nb_)
+    zs = np.empty(n)
+    zi = np.empty(n)
+    zt = np.empty(n)
+    it_ = np.empty(n)
+    v0 = np.empty(n)
+    v1 = np.empty(n)
+    tmp = np.empty(n)
+    yb = np.empty(nb_)
+    ybt = np.empty(nb_)
+    p0 = np.empty(n)
+    p1 = np.empty(n)
+    p2 = np.empty(n)
+    q0 = np.empty(n)
+    q1 = np.empty(n)
+    q2 = np.empty(n)
+    r0 = np.empty(nb_)
+    r1b = np.empty(nb_)
+    r2 = np.empty(nb_)
+    sub = np.empty((BLOCKS, n, n))
+    n_rhs = 0
+    n_jac = 0
+    n_rej = 0
+    n_seg = 0
+    n_out = out_t.size
+
+    if k < n_out and abs(out_t[k] - t) < 1e-6:
+        out_y[k, :n] = x
+        out_y[k, n:] = books
+        k += 1
+    _forcing_at(f_values, f_step, t, u0)
+    kernel.rhs(x, u0, fan, air, prm, planes, ints, heat, f0)
+    n_rhs += 1
+    if not (meta[0] > 0.0 and _max_change(x, x_lin) <= drift and t - meta[3] <= age and _air_close(air, air_lin)):
+        _relinearise(x, u0, t, fan, air, prm, planes, ints, heat, f0, lin, q_step, unit_halvings, segment)
+        n_rhs += n
+        n_jac += 1
+    s0 = meta[1]
+    chain_ = links[:int(meta[2]) + 1]
     j_pref = 0
-    dev = 0.0
+    if after_switch:
+        # the state moves fast after a switch: start at about two check steps and let the segments grow
+        while segment / 2.0**j_pref > 2.0 * q_step and j_pref < 40:
+            j_pref += 1
+    err = 0.0
 
     while t < t_end - 1e-9:
         # renew the linearisation when the nodes have moved or it is old
-        moved = 0.0
-        for i in range(n):
-            moved = max(moved, abs(x[i] - x_lin[i]))
-        if moved > drift or t - t_lin > age:
-            _jacobian(x, u0, fan, air, prm, planes, ints, heat, f0, jac_all)
+        if _max_change(x, x_lin) > drift or t - meta[3] > age:
+            _relinearise(x, u0, t, fan, air, prm, planes, ints, heat, f0, lin, q_step, unit_halvings, segment)
             n_rhs += n
             n_jac += 1
-            jac[:, :] = jac_all[:n]
-            jac_b[:, :] = jac_all[n:]
-            x_lin[:] = x
-            t_lin = t
-            s0 = q_step / 2.0**unit_halvings
-            norm = 0.0
-            for i in range(n):
-                row = 0.0
-                for j in range(n):
-                    row += abs(jac[i, j])
-                norm = max(norm, row)
-            while norm * s0 > 0.25:
-                s0 *= 0.5
-            levels = int(np.ceil(np.log2(max(segment, 2.0 * q_step) / s0)))
-            links = chain(jac, s0, levels)
-            base = links[0]
-            count[0] = 0
-        if count[0] > _CACHE - 28:
-            count[0] = 0  # full: start over (a segment, halved down to 1 s, needs at most 26 entries)
+            s0 = meta[1]
+            chain_ = links[:int(meta[2]) + 1]
+        if cnt[0] > _CACHE - 28:
+            cnt[0] = 0  # full: start over (a segment, halved down to 1 s, needs at most 26 entries)
+            cnt[1] = -1
         # segment end: the next instant of the grid of the preferred length (segment / 2^j, nested in the
         # segment grid, so that lengths repeat and their blocks come from the cache), a weather sample or
         # the end
@@ -255,80 +341,92 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
         t_pref = origin + (math.floor((t - origin) / h_pref + 1e-9) + 1.0) * h_pref
         t_w = (math.floor(t / f_step + 1e-9) + 1.0) * f_step
         h = min(t_pref, t_w, t_end) - t
-        for i in range(n):
-            a[i] = f0[i]
-        # --- the segment: fixed point for b, then the midpoint error check; halve until accepted
+        a[:] = f0[:n]
+        # --- the segment: fixed point for the remainder's b and c (true values at its middle and end), then
+        # the error check; halved until accepted
         while True:
-            i_h = _lookup(h, lens, store, count, jac, s0, links)
-            blk = store[i_h]
+            blk = store[_lookup(h, lens, store, cnt, jac, s0, chain_)]
+            blk_m = store[_lookup(0.5 * h, lens, store, cnt, jac, s0, chain_)]
             b[:] = b_prev
-            matvec(blk[1], a, z1)
-            matvec_add(blk[2], b, 1.0, z1)
+            c[:] = c_prev
+            _from_start(blk, a, b, c, z1)
+            _from_start(blk_m, a, b, c, zm)
             _forcing_at(f_values, f_step, t + h, u1)
+            _forcing_at(f_values, f_step, t + 0.5 * h, um)
             converged = False
             for _ in range(30):
                 for i in range(n):
                     xe[i] = x[i] + z1[i]
                 kernel.rhs(xe, u1, fan, air, prm, planes, ints, heat, f1)
-                n_rhs += 1
-                matvec(jac, z1, tmp)
                 for i in range(n):
-                    b[i] = (f1[i] - tmp[i] - a[i]) / h
-                matvec(blk[1], a, zn)
-                matvec_add(blk[2], b, 1.0, zn)
-                change = 0.0
+                    xe[i] = x[i] + zm[i]
+                kernel.rhs(xe, um, fan, air, prm, planes, ints, heat, fm)
+                n_rhs += 2
+                matvec(jac, z1, r1)
+                matvec(jac, zm, rm)
                 for i in range(n):
-                    d = abs(zn[i] - z1[i])
-                    if not d <= change:
-                        change = d  # (NaN propagates: a diverging iteration never counts as converged)
-                z1[:] = zn
+                    r1[i] = f1[i] - r1[i]
+                    rm[i] = fm[i] - rm[i]
+                    # the quadratic through r(0) = a, r(h/2) = rm, r(h) = r1
+                    b[i] = (4.0 * rm[i] - r1[i] - 3.0 * a[i]) / h
+                    c[i] = 2.0 * (r1[i] - 2.0 * rm[i] + a[i]) / (h * h)
+                _from_start(blk, a, b, c, z1n)
+                _from_start(blk_m, a, b, c, zmn)
+                change = max(_max_change(z1n, z1), _max_change(zmn, zm))
+                z1[:] = z1n
+                zm[:] = zmn
                 if change < tol_iter:
                     converged = True
                     break
+                if not change < 1e6:
+                    break
             if not converged and h < 0.5:
                 return FAILED, t, k, n_rhs, n_jac, n_rej, n_seg
-            accepted = False
             if converged:
-                i_m = _lookup(0.5 * h, lens, store, count, jac, s0, links)
-                blk_m = store[i_m]
-                matvec(blk_m[1], a, zs)
-                matvec_add(blk_m[2], b, 1.0, zs)
+                # error check: a remainder linear between the ends would miss the middle by c h^2 / 4, an
+                # error of about (2/3) h |c| h^2 / 4 in the nodes; the quadratic taken here errs far less
+                err = 0.0
                 for i in range(n):
-                    xe[i] = x[i] + zs[i]
-                _forcing_at(f_values, f_step, t + 0.5 * h, um)
-                kernel.rhs(xe, um, fan, air, prm, planes, ints, heat, fm)
-                n_rhs += 1
-                matvec(jac, zs, tmp)
-                dev = 0.0
-                for i in range(n):
-                    d = abs(fm[i] - tmp[i] - a[i] - 0.5 * h * b[i])
-                    if not d <= dev:
-                        dev = d
-                accepted = 2.0 / 3.0 * h * dev <= tol or h <= 1.0
-            if accepted:
-                n_seg += 1
-                # next: twice as long when well inside the tolerance (error ~ h^3)
-                if 2.0 / 3.0 * h * dev < 0.125 * tol and j_pref > 0:
-                    j_pref -= 1
-                break
+                    err = max(err, abs(c[i]))
+                err *= h * h * h / 6.0
+                if err <= tol or h <= 1.0:
+                    n_seg += 1
+                    # next: twice as long when well inside the tolerance (error ~ h^3)
+                    if err < 0.125 * tol and j_pref > 0:
+                        j_pref -= 1
+                    break
             n_rej += 1
             h = 0.5 * h
             while segment / 2.0**j_pref > h + 1e-9 and j_pref < 40:
                 j_pref += 1
-        # the end of the segment: nodes x + z1, books from their rates matched at both ends
-        matvec(jac_b, z1, rb)
+        # the books' rates: the same quadratic remainder through their values at the start, middle and end
+        matvec(jac_b, z1, bb)
+        matvec(jac_b, zm, cb)
         for i in range(nb_):
-            rb[i] = (f1[n + i] - rb[i] - f0[n + i]) / h      # c: slope of the book rates' remainder
-        # --- outputs and sensor checks on the check grid inside (t, t + h]
+            rb1 = f1[n + i] - bb[i]
+            rbm = fm[n + i] - cb[i]
+            bb[i] = (4.0 * rbm - rb1 - 3.0 * f0[n + i]) / h
+            cb[i] = 2.0 * (rb1 - 2.0 * rbm + f0[n + i]) / (h * h)
+        # --- outputs and sensor checks on the check grid inside (t, t + h]. Steps of q_step from sigma:
+        # z(sigma + q) = Phi z + P0 + sigma P1 + sigma^2 P2 and J_b int z grows by K z + R0 + sigma R1
+        # + sigma^2 R2 (the remainder r(sigma) = a + b sigma + c sigma^2 expanded; P, R per segment, K per
+        # linearisation), so that an output instant costs two matrix-vector products.
         first = origin + (math.floor((t - origin) / q_step + 1e-9) + 1.0) * q_step - t
-        i_q = _lookup(q_step, lens, store, count, jac, s0, links)
-        i_f = _lookup(first, lens, store, count, jac, s0, links) if first < h - 1e-6 else i_q
+        i_q = _lookup(q_step, lens, store, cnt, jac, s0, chain_)
+        blk_q = store[i_q]
+        if i_q != cnt[1]:
+            matmul(jac_b, blk_q[1], k_q)  # K = J_b G0(q)
+            cnt[1] = i_q
+        if first + q_step < h - 1e-6:
+            _expanded(blk_q, a, b, c, p0, p1, p2, q0, q1, q2)
+            matvec(jac_b, q0, r0)
+            matvec(jac_b, q1, r1b)
+            matvec(jac_b, q2, r2)
         sigma = 0.0
         zs[:] = 0.0
-        zi[:] = 0.0
+        yb[:] = 0.0
         g_prev = (x[i_sensor] - level) * direction
         crossed = False
-        sig_lo = 0.0
         step = 0.0
         last = False
         while not last:
@@ -337,27 +435,33 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 step = h - sigma
                 last = True
             if last:
-                # the segment's end: straight from the h blocks
+                # the segment's end: straight from the h blocks (int z = G1 a + G2 b + 2 G3 c)
                 zt[:] = z1
                 matvec(blk[2], a, it_)
                 matvec_add(blk[3], b, 1.0, it_)
+                matvec_add(blk[4], c, 2.0, it_)
+                matvec(jac_b, it_, ybt)
+            elif sigma == 0.0:
+                # the first step (to the check grid) from z = 0: G0 a + G1 b + 2 G2 c, int G1 a + G2 b + 2 G3 c
+                blk_f = store[_lookup(step, lens, store, cnt, jac, s0, chain_)]
+                _from_start(blk_f, a, b, c, zt)
+                matvec(blk_f[2], a, it_)
+                matvec_add(blk_f[3], b, 1.0, it_)
+                matvec_add(blk_f[4], c, 2.0, it_)
+                matvec(jac_b, it_, ybt)
             else:
-                sb = store[i_f] if sigma == 0.0 else store[i_q]
+                matvec(blk_q[0], zs, zt)
+                matvec(k_q, zs, ybt)
+                s2 = sigma * sigma
                 for i in range(n):
-                    tmp[i] = a[i] + b[i] * sigma
-                matvec(sb[0], zs, zt)
-                matvec_add(sb[1], tmp, 1.0, zt)
-                matvec_add(sb[2], b, 1.0, zt)
-                it_[:] = zi
-                matvec_add(sb[1], zs, 1.0, it_)
-                matvec_add(sb[2], tmp, 1.0, it_)
-                matvec_add(sb[3], b, 1.0, it_)
+                    zt[i] += p0[i] + sigma * p1[i] + s2 * p2[i]
+                for i in range(nb_):
+                    ybt[i] += yb[i] + r0[i] + sigma * r1b[i] + s2 * r2[i]
             s_new = sigma + step
             if direction != 0:
                 g_new = (x[i_sensor] + zt[i_sensor] - level) * direction
                 if g_prev < 0.0 <= g_new:
                     crossed = True
-                    sig_lo = sigma
                     break
                 g_prev = g_new
             now = t + s_new
@@ -365,34 +469,37 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 if abs(out_t[k] - now) > 1e-6:
                     return OFF_GRID, t, k, n_rhs, n_jac, n_rej, n_seg
                 for i in range(n):
-                    out_y[i, k] = x[i] + zt[i]
+                    out_y[k, i] = x[i] + zt[i]
                 for i in range(nb_):
-                    s = 0.0
-                    for j in range(n):
-                        s += jac_b[i, j] * it_[j]
-                    out_y[n + i, k] = books[i] + f0[n + i] * s_new + 0.5 * rb[i] * s_new * s_new + s
+                    out_y[k, n + i] = (books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * s_new) * s_new) * s_new
+                                       + ybt[i])
                 k += 1
             zs[:] = zt
-            zi[:] = it_
+            yb[:] = ybt
             sigma = s_new
         if not crossed:
             for i in range(nb_):
-                s = 0.0
-                for j in range(n):
-                    s += jac_b[i, j] * it_[j]
-                books[i] = books[i] + f0[n + i] * h + 0.5 * rb[i] * h * h + s
+                books[i] = books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * h) * h) * h + ybt[i]
             for i in range(n):
                 x[i] += z1[i]
             t = t + h
             f0[:] = f1
             u0[:] = u1
-            b_prev[:] = b
+            for i in range(n):
+                b_prev[i] = b[i] + 2.0 * c[i] * h   # the remainder's slope and curvature carried on
+                c_prev[i] = c[i]
             continue
-        # --- locate the crossing in (sig_lo, sig_lo + step]: substeps of the base step from sig_lo
-        s_hi = sig_lo + step
-        sigma = sig_lo
+        # --- locate the crossing in (sigma, sigma + step]: substeps of the base step (with int z, from the
+        # blocks over sigma: G1 a + G2 b + 2 G3 c)
+        s_hi = sigma + step
+        zi[:] = 0.0
+        if sigma > 0.0:
+            blk_s = store[_lookup(sigma, lens, store, cnt, jac, s0, chain_)]
+            matvec(blk_s[2], a, zi)
+            matvec_add(blk_s[3], b, 1.0, zi)
+            matvec_add(blk_s[4], c, 2.0, zi)
         g_lo = (x[i_sensor] + zs[i_sensor] - level) * direction
-        sub = np.empty((4, n, n))
+        base = chain_[0]
         while True:
             hs = min(s0, s_hi - sigma)
             if abs(hs - s0) < 1e-12:
@@ -401,41 +508,52 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 taylor(jac, hs, sub)
                 sb = sub
             for i in range(n):
-                tmp[i] = a[i] + b[i] * sigma
-            matvec(sb[0], zs, zt)
-            matvec_add(sb[1], tmp, 1.0, zt)
-            matvec_add(sb[2], b, 1.0, zt)
+                v0[i] = a[i] + (b[i] + c[i] * sigma) * sigma
+                v1[i] = b[i] + 2.0 * c[i] * sigma
+            _step_on(sb, zs, zi, v0, v1, c, zt, it_)
             g_hi = (x[i_sensor] + zt[i_sensor] - level) * direction
             if g_hi >= 0.0 or sigma + hs >= s_hi - 1e-9:
-                d_lo = tmp[i_sensor]
-                d_hi = a[i_sensor] + b[i_sensor] * (sigma + hs)
+                # slopes from the model: z' = J z + r(s)
+                s_end = sigma + hs
+                d_lo = v0[i_sensor]
+                d_hi = a[i_sensor] + (b[i_sensor] + c[i_sensor] * s_end) * s_end
                 for j in range(n):
                     d_lo += jac[i_sensor, j] * zs[j]
                     d_hi += jac[i_sensor, j] * zt[j]
                 theta = _cubic_root(g_lo, d_lo * direction, max(g_hi, 0.0), d_hi * direction, hs)
                 delta = theta * hs
-                _taylor_state(jac, zs, tmp, b, delta, zt, it_)
+                _taylor_state(jac, zs, v0, v1, c, delta, zt, tmp)
                 for i in range(n):
-                    zi[i] += it_[i]
+                    zi[i] += tmp[i]
                 sigma += delta
                 break
-            it_[:] = zi
-            matvec_add(sb[1], zs, 1.0, it_)
-            matvec_add(sb[2], tmp, 1.0, it_)
-            matvec_add(sb[3], b, 1.0, it_)
             zi[:] = it_
             zs[:] = zt
             g_lo = g_hi
             sigma += hs
         for i in range(nb_):
-            s = 0.0
+            acc = 0.0
             for j in range(n):
-                s += jac_b[i, j] * zi[j]
-            books[i] = books[i] + f0[n + i] * sigma + 0.5 * rb[i] * sigma * sigma + s
+                acc += jac_b[i, j] * zi[j]
+            books[i] = books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * sigma) * sigma) * sigma + acc
         for i in range(n):
             x[i] += zt[i]
         return SWITCH, t + sigma, k, n_rhs, n_jac, n_rej, n_seg
     return DONE, t, k, n_rhs, n_jac, n_rej, n_seg
+
+
+#: Longest doubling chain kept (base steps down to 2^-40 of the segment).
+_MAX_LEVELS = 40
+
+
+def new_linearisation(n_nodes: int, n_books: int) -> tuple:
+    """Empty linearisation state for :func:`advance` (one per fan state, reused from call to call):
+    (J, J_b, doubling chain, block cache, cache lengths, [valid, s0, levels, t], [cache count, cache index
+    of J_b G0(q)], nodes and air flows at the linearisation, J_b G0(q))."""
+    n, nb_ = n_nodes, n_books
+    return (np.zeros((n, n)), np.zeros((nb_, n)), np.zeros((_MAX_LEVELS + 1, BLOCKS, n, n)),
+            np.zeros((_CACHE, BLOCKS, n, n)), np.zeros(_CACHE), np.zeros(4), np.array([0, -1], dtype=np.int64),
+            np.zeros(n), np.zeros(7), np.zeros((nb_, n)))
 
 
 def grid_steps(output_times, t_start, max_segment=600.0, check_step=CHECK_STEP):
@@ -462,7 +580,7 @@ def grid_steps(output_times, t_start, max_segment=600.0, check_step=CHECK_STEP):
 
 
 def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on, output_times,
-                       segment=600.0, check_step=CHECK_STEP, tol=2e-4, tol_iter=1e-6, drift=10.0,
+                       segment=600.0, check_step=CHECK_STEP, tol=2e-3, tol_iter=1e-5, drift=10.0,
                        age=7200.0) -> HybridRun | None:
     """Integrate the hybrid system like :func:`atticsim.hybrid.events.integrate`, compiled.
 
@@ -499,7 +617,7 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
     out = np.ascontiguousarray(output_times, dtype=float)
     y = np.asarray(y0, dtype=float).copy()
     x, books = y[:n_nodes].copy(), y[n_nodes:].copy()
-    out_y = np.empty((y.size, out.size))
+    out_y = np.empty((out.size, y.size))
     fans = np.zeros(out.size, dtype=bool)
     airs = [None] * out.size
     events, updates = [], []
@@ -508,6 +626,8 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
     next_air = t
     calls = 0
     air_vec = np.zeros(7)
+    lins = {False: new_linearisation(n_nodes, books.size), True: new_linearisation(n_nodes, books.size)}
+    after_switch = False
     while t < t_end - 1e-9:
         if need_air and t >= next_air - 1e-9:
             f = forcing.at(t)
@@ -522,7 +642,8 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
         status, t, k, n_rhs, _, _, _ = advance(
             t, stop, float(t_start), seg, q_step, x, books, 1.0 if fan else 0.0, air_vec,
             packed.prm, packed.planes, packed.ints, packed.heat, f_values, float(forcing.step), out, k, out_y,
-            i_sensor, float(level), int(direction), tol, tol_iter, drift, age, 6)
+            i_sensor, float(level), int(direction), tol, tol_iter, drift, age, 6, lins[fan], after_switch)
+        after_switch = status == SWITCH
         calls += n_rhs
         fans[k0:k] = fan
         airs[k0:k] = [getattr(network, "air", None)] * (k - k0)
@@ -536,8 +657,8 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
             if need_air:
                 next_air = t  # flows follow the new fan state at once, as in the reference solver
     if k < out.size and abs(out[k] - t) < 1e-6:
-        out_y[:n_nodes, k], out_y[n_nodes:, k] = x, books
+        out_y[k, :n_nodes], out_y[k, n_nodes:] = x, books
         fans[k], airs[k] = fan, getattr(network, "air", None)
         k += 1
-    return HybridRun(t=out[:k].copy(), y=out_y[:, :k], fan=fans[:k], air=airs[:k], events=events,
+    return HybridRun(t=out[:k].copy(), y=np.ascontiguousarray(out_y[:k].T), fan=fans[:k], air=airs[:k], events=events,
                      y_end=np.concatenate([x, books]), n_rhs=calls, air_updates=updates)
