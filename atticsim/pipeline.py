@@ -10,7 +10,7 @@ This is the Python API the CLI wraps::
 
 from __future__ import annotations
 
-import copy
+import dataclasses
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -173,7 +173,12 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
             while len(_NO_FAN_RUNS) >= _NO_FAN_KEEP:
                 _NO_FAN_RUNS.pop(next(iter(_NO_FAN_RUNS)))
             _NO_FAN_RUNS[key] = one(False)
-        without_fan, y_nofan = copy.deepcopy(_NO_FAN_RUNS[key])
+        kept, y_kept = _NO_FAN_RUNS[key]
+        # fresh arrays and lists for this caller (the airflow states are frozen: shared)
+        without_fan = dataclasses.replace(kept, t=kept.t.copy(), y=kept.y.copy(), fan=kept.fan.copy(),
+                                          air=list(kept.air), events=list(kept.events), y_end=kept.y_end.copy(),
+                                          air_updates=list(kept.air_updates))
+        y_nofan = y_kept.copy()
     elif include_no_fan:
         without_fan, y_nofan = one(False)
     else:

@@ -71,9 +71,13 @@ AIR_FIELDS = tuple(f.name for f in fields(AirflowState) if f.name != "path_flows
 def stack_states(states) -> dict:
     """A list of AirflowState -> dict of numpy arrays, one per scalar field, plus ``path_flows``
     (shape (n, paths)) when the states carry per-path flows."""
-    out = {name: np.array([getattr(s, name) for s in states], dtype=float) for name in AIR_FIELDS}
+    # The solvers hold one state over many output rows: read each distinct state once, then index.
+    ids = np.fromiter(map(id, states), dtype=np.int64, count=len(states))
+    _, first, rows = np.unique(ids, return_index=True, return_inverse=True)
+    unique = [states[i] for i in first]
+    out = {name: np.array([getattr(s, name) for s in unique], dtype=float)[rows] for name in AIR_FIELDS}
     if states and states[0].path_flows:
-        out["path_flows"] = np.array([s.path_flows for s in states], dtype=float)
+        out["path_flows"] = np.array([s.path_flows for s in unique], dtype=float)[rows]
     return out
 
 

@@ -264,24 +264,31 @@ def _daily(ts, run, nofan, intervals, forcing, period, short_cycle, n):
     def cum(book_series_run, t):
         return np.interp(t, book_series_run.t, book_series_run.y[n + BOOKS.index("ceiling_gain")])
 
+    # sorted arrays and positions instead of per-day filters (intervals and events are in time order)
+    starts = np.array([s for s, _, _ in intervals], dtype=float)
+    ends = np.array([e for _, e, _ in intervals], dtype=float)
+    on_times = np.array([t for t, st, _ in run.events if st], dtype=float)
+    index = ts.index
+    attic, outdoor = ts["attic_air_c"].to_numpy(), ts["outdoor_air_c"].to_numpy()
+    fan_e = run.y[n + BOOKS.index("fan_electric")]
     for a, b in zip(edges[:-1], edges[1:]):
         lo = max((a - base).total_seconds(), period.t_start)
         hi = min((b - base).total_seconds(), period.t_end)
         if hi <= lo:
             continue
-        day_iv = [(max(s, lo), min(e, hi), c) for s, e, c in intervals if e > lo and s < hi]
-        started = [(s, e, c) for s, e, c in intervals if lo <= s < hi]
-        sel = ts[(ts.index >= a) & (ts.index < b)]
+        overlap = np.clip(np.minimum(ends, hi) - np.maximum(starts, lo), 0.0, None)
+        first, last = np.searchsorted(starts, lo, side="left"), np.searchsorted(starts, hi, side="left")
+        started = intervals[first:last]
+        i0, i1 = index.searchsorted(a, side="left"), index.searchsorted(b, side="left")
         row = {
             "date": a.date().isoformat(),
-            "fan_run_hours": sum(e - s for s, e, _ in day_iv) / 3600.0,
-            "fan_starts": sum(1 for t, st, _ in run.events if st and lo <= t < hi),
+            "fan_run_hours": float(overlap.sum()) / 3600.0,
+            "fan_starts": int(np.searchsorted(on_times, hi, side="left") - np.searchsorted(on_times, lo, side="left")),
             **_cycle_figures(started, short_cycle),
-            "fan_energy_kwh": (np.interp(hi, run.t, run.y[n + BOOKS.index("fan_electric")])
-                               - np.interp(lo, run.t, run.y[n + BOOKS.index("fan_electric")])) / J_PER_KWH,
-            "attic_air_max_c": float(sel["attic_air_c"].max()) if len(sel) else None,
-            "attic_air_mean_c": float(sel["attic_air_c"].mean()) if len(sel) else None,
-            "outdoor_air_max_c": float(sel["outdoor_air_c"].max()) if len(sel) else None,
+            "fan_energy_kwh": (np.interp(hi, run.t, fan_e) - np.interp(lo, run.t, fan_e)) / J_PER_KWH,
+            "attic_air_max_c": float(attic[i0:i1].max()) if i1 > i0 else None,
+            "attic_air_mean_c": float(attic[i0:i1].mean()) if i1 > i0 else None,
+            "outdoor_air_max_c": float(outdoor[i0:i1].max()) if i1 > i0 else None,
             "ceiling_heat_gain_kwh": (cum(run, hi) - cum(run, lo)) / J_PER_KWH,
             "ceiling_heat_gain_no_fan_kwh": ((cum(nofan, hi) - cum(nofan, lo)) / J_PER_KWH
                                              if nofan is not None else None),
