@@ -121,25 +121,22 @@ def taylor(jac, s, out):
 
 @nb.njit(cache=True)
 def compose(p_blk, q_blk, q, out):
-    """Blocks over p + q from those over p (``p_blk``) and over q (``q_blk``, length ``q``):
-    Phi = Pp Pq and G_k = Pp G_k,q + sum_{j<=k} q^(k-j) / (k-j)! G_j,p (first row of E(p) E(q))."""
+    """Blocks over p + q from those over p (``p_blk``) and over q (``q_blk``, length ``q``) into ``out``
+    (distinct from both): Phi = Pp Pq and G_k = Pp G_k,q + sum_{j<=k} q^(k-j) / (k-j)! G_j,p (the first
+    block row of E(p) E(q))."""
     n = p_blk.shape[1]
     nk = p_blk.shape[0]
-    prod = np.empty((n, n))
+    w = np.empty(nk)                       # q^e / e!
+    w[0] = 1.0
+    for e in range(1, nk):
+        w[e] = w[e - 1] * q / e
     for k in range(nk):
-        matmul(p_blk[0], q_blk[k], prod)
-        out[k, :, :] = prod
-        if k == 0:
-            continue
-        # + sum_j q^(k-1-j)/(k-1-j)! G_j,p   (G_j is block 1 + j)
-        for j in range(k):
-            e = k - 1 - j
-            w = 1.0
-            for m in range(1, e + 1):
-                w *= q / m
+        np.dot(p_blk[0], q_blk[k], out[k])
+        for j in range(k):                 # G_(k-1) gains q^(k-1-j)/(k-1-j)! G_j,p (G_j is block 1 + j)
+            wj = w[k - 1 - j]
             for i in range(n):
-                for l in range(n):
-                    out[k, i, l] += w * p_blk[1 + j, i, l]
+                for m in range(n):
+                    out[k, i, m] += wj * p_blk[1 + j, i, m]
 
 
 @nb.njit(cache=True)

@@ -240,7 +240,7 @@ def _max_change(p, q):
 @nb.njit(cache=True)
 def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, ints, heat,
             f_values, f_step, out_t, k, out_y, i_sensor, level, direction, tol, tol_iter, drift, age,
-            unit_halvings, lin, after_switch):
+            unit_halvings, lin, after_switch, slow_iters):
     """Advance from t to t_end (fan state and air flows fixed) or to the first switching crossing.
 
     ``lin`` (:func:`new_linearisation`) carries the linearisation and its block cache from call to call
@@ -317,6 +317,7 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     s0 = meta[1]
     chain_ = links[:int(meta[2]) + 1]
     j_pref = 0
+    iters = 0
     if after_switch:
         # the state moves fast after a switch: start at about two check steps and let the segments grow
         while segment / 2.0**j_pref > 2.0 * q_step and j_pref < 40:
@@ -325,7 +326,7 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
 
     while t < t_end - 1e-9:
         # renew the linearisation when the nodes have moved or it is old
-        if _max_change(x, x_lin) > drift or t - meta[3] > age:
+        if _max_change(x, x_lin) > drift or t - meta[3] > age or iters > slow_iters:
             _relinearise(x, u0, t, fan, air, prm, planes, ints, heat, f0, lin, q_step, unit_halvings, segment)
             n_rhs += n
             n_jac += 1
@@ -354,7 +355,7 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             _forcing_at(f_values, f_step, t + h, u1)
             _forcing_at(f_values, f_step, t + 0.5 * h, um)
             converged = False
-            for _ in range(30):
+            for iters in range(1, 31):
                 for i in range(n):
                     xe[i] = x[i] + z1[i]
                 kernel.rhs(xe, u1, fan, air, prm, planes, ints, heat, f1)
@@ -580,8 +581,8 @@ def grid_steps(output_times, t_start, max_segment=600.0, check_step=CHECK_STEP):
 
 
 def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on, output_times,
-                       segment=600.0, check_step=CHECK_STEP, tol=2e-3, tol_iter=1e-5, drift=10.0,
-                       age=7200.0) -> HybridRun | None:
+                       segment=600.0, check_step=CHECK_STEP, tol=2e-3, tol_iter=1e-5, drift=20.0,
+                       age=21600.0, slow_iters=4) -> HybridRun | None:
     """Integrate the hybrid system like :func:`atticsim.hybrid.events.integrate`, compiled.
 
     Parameters
@@ -642,7 +643,8 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
         status, t, k, n_rhs, _, _, _ = advance(
             t, stop, float(t_start), seg, q_step, x, books, 1.0 if fan else 0.0, air_vec,
             packed.prm, packed.planes, packed.ints, packed.heat, f_values, float(forcing.step), out, k, out_y,
-            i_sensor, float(level), int(direction), tol, tol_iter, drift, age, 6, lins[fan], after_switch)
+            i_sensor, float(level), int(direction), tol, tol_iter, drift, age, 6, lins[fan], after_switch,
+            slow_iters)
         after_switch = status == SWITCH
         calls += n_rhs
         fans[k0:k] = fan
