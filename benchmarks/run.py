@@ -5,14 +5,18 @@
     python benchmarks/run.py --json           # the same figures as JSON
 
 Figures:
+- the compiled solver's first use in a fresh process (compiling on a new checkout, loading numba's
+  on-disk cache after that), measured on a one-day run before anything else is timed;
 - a full-year run of the demo house at 1-minute output with exact events, fast and reference solver
-  (solver time = the hybrid integrations only; wall time = the whole simulate() call), and their ratio;
+  (solver time = the hybrid integrations only: the year with the fan, the year without it and the
+  spin-up days; wall time = the whole simulate() call), their ratio, and the year with the fan alone;
 - a 92-day summer run (fast);
 - a summer sweep of N points (thermostat on/off grid) on all cores: points per second;
 - ``atticsim --help`` start-up time;
 - peak memory of this process (resident set).
-JSON keys: annual_fast_s, annual_reference_s, speedup, summer_92d_s, sweep_points, sweep_days,
-sweep_points_per_s, help_s, peak_mb, plus the machine.
+JSON keys: annual_fast_s, annual_reference_s, speedup, annual_fast_solver_s, annual_fast_with_fan_s,
+annual_reference_solver_s, first_use_s, summer_92d_s, sweep_points, sweep_days, sweep_points_per_s,
+help_s, peak_mb, plus the machine.
 """
 
 from __future__ import annotations
@@ -32,7 +36,7 @@ def timed_simulate(solver: str, start: str, end: str) -> dict:
     import atticsim
     import atticsim.pipeline as pipeline
 
-    spent = {"solver": 0.0}
+    spent = {"solver": 0.0, "with_fan": 0.0}
     original = pipeline.integrator
 
     def timing_integrator(sim):
@@ -43,7 +47,11 @@ def timed_simulate(solver: str, start: str, end: str) -> dict:
             try:
                 return step(*args)
             finally:
-                spent["solver"] += time.perf_counter() - t0
+                dt = time.perf_counter() - t0
+                spent["solver"] += dt
+                controller, t_start, t_end = args[2], args[3], args[4]
+                if controller is not None and t_end - t_start > 86400.0 + 1.0:  # the period, not a spin-up day
+                    spent["with_fan"] += dt
 
         return timed
 
@@ -55,7 +63,8 @@ def timed_simulate(solver: str, start: str, end: str) -> dict:
         wall = time.perf_counter() - t0
     finally:
         pipeline.integrator = original
-    return {"wall_s": wall, "solver_s": spent["solver"], "fan_starts": result.summary["fan_starts"],
+    return {"wall_s": wall, "solver_s": spent["solver"], "with_fan_s": spent["with_fan"],
+            "fan_starts": result.summary["fan_starts"],
             "energy_balance_error_pct": result.summary["energy_balance_error_pct"]}
 
 
@@ -101,8 +110,12 @@ def main():
     workers = os.cpu_count() or 1
 
     fig = {"machine": f"{platform.machine()}, {workers} cores, Python {platform.python_version()}"}
+    t0 = time.perf_counter()
+    timed_simulate("fast", "2025-01-02", "2025-01-02")
+    fig["first_use_s"] = time.perf_counter() - t0
     fast = timed_simulate("fast", "2025-01-01", "2025-12-31")
-    fig.update(annual_fast_s=fast["wall_s"], annual_fast_solver_s=fast["solver_s"])
+    fig.update(annual_fast_s=fast["wall_s"], annual_fast_solver_s=fast["solver_s"],
+               annual_fast_with_fan_s=fast["with_fan_s"], annual_fan_starts=fast["fan_starts"])
     if not args.skip_reference:
         ref = timed_simulate("reference", "2025-01-01", "2025-12-31")
         fig.update(annual_reference_s=ref["wall_s"], annual_reference_solver_s=ref["solver_s"],

@@ -581,7 +581,7 @@ def grid_steps(output_times, t_start, max_segment=600.0, check_step=CHECK_STEP):
 
 
 def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on, output_times,
-                       segment=600.0, check_step=CHECK_STEP, tol=2e-3, tol_iter=1e-5, drift=20.0,
+                       segment=600.0, check_step=CHECK_STEP, tol=5e-3, tol_iter=1e-5, drift=20.0,
                        age=21600.0, slow_iters=4) -> HybridRun | None:
     """Integrate the hybrid system like :func:`atticsim.hybrid.events.integrate`, compiled.
 
