@@ -1,10 +1,11 @@
 """Keep numba's on-disk cache of the compiled solver in step with the sources it was built from.
 
-numba checks a cached function against the time stamp of its own file only. The compiled solver inlines
-functions and constants from several modules (the network kernel, the blocks, the heat-transfer and sensor
-correlations...), so a change to one of them would leave the others' cached machine code stale. Before
-anything is compiled or loaded, :func:`check` hashes those sources; when the hash differs from the one
-stored beside the cache, the cache files of those modules are removed and rebuilt on first use.
+numba checks a cached function against its own file only (a hash of that file's content). The compiled
+solver inlines functions and constants from several modules (the network kernel, the blocks, the
+heat-transfer and sensor correlations...), so a change to one of them would leave the others' cached
+machine code stale. Before anything is compiled or loaded, :func:`check` hashes those sources; when the
+hash differs from the one stored beside the cache, the cache files of those modules are removed and
+rebuilt on first use.
 """
 
 from __future__ import annotations

@@ -1,33 +1,39 @@
 """The compiled fast solver: exact discretisation of the network with a frozen propagator, compiled.
 
 Between switching events and airflow updates the fan state and the air flows are fixed and the node
-temperatures x obey dx/dt = f(x, u(t)). The run is cut into segments on a grid of ``segment`` seconds
-(and at the weather samples, so that the forcing u is linear on each). On a segment starting at x0,
-z = x - x0 obeys
+temperatures x obey dx/dt = f(x, u(t)). The run is cut into segments on a grid of ``segment`` seconds,
+halved where the error check asks (and cut at the weather samples, so that the forcing u is linear on
+each). On a segment starting at x0, z = x - x0 obeys
 
     dz/ds = J z + r(s),      r(s) = f(x0 + z, u) - J z,
 
-with J the Jacobian of f at the last linearisation (finite differences, renewed when a node has moved
-``drift`` K from the linearisation state, after ``age`` seconds and at every switch). The remainder r
-(the part of the right-hand side the frozen linear model misses) is taken as linear in time between its
-true values at the two ends of the segment, r = a + b s with a = f(x0, u0) and b fixed by the end:
-the trapezoidal exponential scheme, second order, exact for a linear network. The segment is advanced
-exactly for that model with the blocks [Phi, G0, G1, G2] of :mod:`atticsim.hybrid.blocks`:
+with J the Jacobian of f at the last linearisation (finite differences). The remainder r (what the frozen
+linear model misses) is taken as the quadratic in time through its true values at the segment's start,
+middle and end, r = a + b s + c s^2 with a = f(x0, u0): an exponential integrator of Lobatto type (our
+design), exact for a linear network. The segment is advanced exactly for that model with the blocks
+[Phi, G0, G1, G2, G3] of :mod:`atticsim.hybrid.blocks` (Van Loan 1978):
 
-    z(h) = G0 a + G1 b        (implicit in z(h) through b; fixed-point iteration to ``tol_iter`` K).
+    z(h) = G0 a + G1 b + 2 G2 c      (implicit through b and c: fixed point to ``tol_iter`` K).
 
-Error control (our design): the true remainder at the segment's middle is compared with the linear one;
-a deviation d means an error of about (2/3) h |d| in the nodes (the integral of the quadratic that the
-linear fit misses). Above ``tol`` K the segment is halved and tried again.
+Error control (our design): a remainder linear between the ends would miss the middle by c h^2 / 4, an
+error of about (2/3) h |c| h^2 / 4 = |c| h^3 / 6 in the nodes (the integral of the quadratic part it
+misses). Above ``tol`` K the segment is halved and tried again; below an eighth of it the next segment
+may be twice as long. The quadratic actually taken errs far less than that estimate: the tests against
+the reference solver measure it.
 
-Outputs and event checks are evaluated inside the accepted segment on the output grid (at most 60 s
-apart) from the same exact solution; the energy books, whose rates are r_b = f_b(x0) + J_b z + c s
-(c matching the true book rates at the segment's end), are integrated exactly with
-int z = G0 z0 + G1 a + G2 b. Where the sensor reaches its switching level between two check instants,
-the segment's exact solution is stepped in steps of the chain's base step (under a second) and the
-crossing is the root of a cubic Hermite interpolant of the sensor's exact values and slopes over the
+J and the cache of blocks built from it are kept per fan state from call to call, and renewed when a
+segment's fixed point needs more than ``slow_iters`` iterations, when a node has moved ``drift`` K from
+the linearisation state, after ``age`` seconds, or when the air flows differ by more than 5 %.
+
+Outputs and event checks are evaluated inside each accepted segment on the output grid (at most 60 s
+apart) from the same exact solution; the energy books, whose rates are f_b(x0) + J_b z + (the same
+quadratic remainder fitted to the book rates), are integrated exactly with
+int z = G0 z0 + G1 a + G2 b + 2 G3 c. Where the sensor reaches its switching level between two check
+instants, the segment's exact solution is stepped in steps of the chain's base step (under a second) and
+the crossing is the root of a cubic Hermite interpolant of the sensor's exact values and slopes over the
 bracketing step (error of order h^4, far below a millisecond); the state there comes from the Taylor
-series of the segment's solution.
+series of the segment's solution. (A crossing and a return within one check step are not seen, as in the
+other solvers.)
 
 The right-hand side is :func:`atticsim.network.kernel.rhs`, a compiled mirror of
 :meth:`atticsim.network.model.AtticNetwork.derivatives` (tests hold the two equal). The Python driver
