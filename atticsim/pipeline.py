@@ -62,7 +62,7 @@ def integrator(sim):
 
         def fast(*a):
             # the compiled solver when the outputs lie on one grid (always, from run_raw), else the windows
-            run = integrate_compiled(*a, check_step=check)
+            run = integrate_compiled(*a, check_step=check, tol=sim.fast_tolerance)
             return run if run is not None else integrate_fast(*a, max_step=check)
 
         return fast

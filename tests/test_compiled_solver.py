@@ -83,3 +83,18 @@ def test_outputs_off_the_grid_fall_back_to_the_window_solver(monkeypatch):
     step = pipeline.integrator(sc.simulation)
     run = step(net, forcing, ctl, t0, t0 + 3600.0, y0, False, times)
     assert np.allclose(run.t, times)
+
+
+def test_fast_tolerance_reaches_the_solver():
+    # simulation.fast_tolerance is the compiled solver's per-segment tolerance: tighter means more work
+    # (right-hand-side calls) and a result at least as close to the reference
+    runs = {}
+    for tol in ("5e-3 K", "2e-4 K"):
+        sc = load_scenario(BUNGALOW, ["simulation.spinup_days=0", f"simulation.fast_tolerance={tol}"])
+        runs[tol] = run_raw(sc, start=sc.weather.start, end=sc.weather.start, include_no_fan=False)
+    assert runs["2e-4 K"].with_fan.n_rhs > 1.2 * runs["5e-3 K"].with_fan.n_rhs
+    sc = load_scenario(BUNGALOW, ["simulation.spinup_days=0", 'simulation.solver="reference"'])
+    ref = run_raw(sc, start=sc.weather.start, end=sc.weather.start, include_no_fan=False)
+    n = ref.network.n_nodes
+    err = {k: np.max(np.abs(r.with_fan.y[:n] - ref.with_fan.y[:n])) for k, r in runs.items()}
+    assert err["2e-4 K"] <= err["5e-3 K"] + 1e-4
