@@ -105,6 +105,6 @@ def test_help_is_fast_to_import():
     import subprocess
     import sys
 
-    code = "import sys, atticsim.cli.main; print(sorted(m for m in ('matplotlib', 'pvlib', 'pandas', 'scipy.integrate') if m in sys.modules))"
+    code = "import sys, atticsim.cli.main; print(sorted(m for m in ('matplotlib', 'pvlib', 'pandas', 'scipy.integrate', 'numba') if m in sys.modules))"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
     assert out.strip() == "[]"

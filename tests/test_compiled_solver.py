@@ -98,3 +98,16 @@ def test_fast_tolerance_reaches_the_solver():
     n = ref.network.n_nodes
     err = {k: np.max(np.abs(r.with_fan.y[:n] - ref.with_fan.y[:n])) for k, r in runs.items()}
     assert err["2e-4 K"] <= err["5e-3 K"] + 1e-4
+
+
+def test_a_segment_that_will_not_converge_hands_over_to_the_window_solver(monkeypatch):
+    # advance() reports FAILED when a segment's fixed point will not converge even at half a second;
+    # integrate_compiled then returns None and the pipeline's fast integrator runs the window solver
+    sc = load_scenario(BUNGALOW, ["simulation.spinup_days=0"])
+    raw = run_raw(sc, start=sc.weather.start, end=sc.weather.start, include_no_fan=False)
+    net, forcing, ctl, t0 = raw.network, raw.forcing, raw.controller, raw.period.t_start
+    times = t0 + np.arange(0.0, 3601.0, 60.0)
+    monkeypatch.setattr(compiled, "advance", lambda t, *rest: (compiled.FAILED, t, 0, 0, 0, 0, 0))
+    assert compiled.integrate_compiled(net, forcing, ctl, t0, t0 + 3600.0, raw.y_start_fan, False, times) is None
+    run = pipeline.integrator(sc.simulation)(net, forcing, ctl, t0, t0 + 3600.0, raw.y_start_fan, False, times)
+    assert np.allclose(run.t, times) and np.all(np.isfinite(run.y))
