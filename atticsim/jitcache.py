@@ -1,16 +1,28 @@
-"""Keep numba's on-disk cache of the compiled solver in step with the sources it was built from.
+"""Where the compiled solver's machine code is cached, and keeping that cache in step with its sources.
 
-numba checks a cached function against its own file only (a hash of that file's content). The compiled
-solver inlines functions and constants from several modules (the network kernel, the blocks, the
-heat-transfer and sensor correlations...), so a change to one of them would leave the others' cached
-machine code stale. Before anything is compiled or loaded, :func:`check` hashes those sources; when the
-hash differs from the one stored beside the cache, the cache files of those modules are removed and
-rebuilt on first use.
+numba caches a compiled function beside its source (``__pycache__``) and checks the cache against that
+one file (a hash of its content). Two problems follow for atticsim:
+
+- the compiled solver inlines functions and constants from several modules (the network kernel, the
+  blocks, the heat-transfer and sensor correlations...), so a change to one of them would leave the
+  others' cached machine code stale;
+- cache files written into an installed package are not in pip's record: they outlive ``pip uninstall``,
+  and the folder left behind (a namespace package) would shadow a later editable install.
+
+So atticsim's compiled functions cache in a folder of their own, one per install and Python version
+(``$ATTICSIM_CACHE_DIR``, else ``$XDG_CACHE_HOME/atticsim``, else ``~/.cache/atticsim``): the modules that
+define them call :func:`route` before their decorators and :func:`restore` after, which points numba's
+``config.CACHE_DIR`` there for those functions only. :func:`check`, called before anything is compiled or
+loaded, hashes the compiled-in sources and empties that folder when the hash differs from the one stored
+in it. When the folder cannot be created, or ``NUMBA_CACHE_DIR`` is set (the user's choice wins), numba's
+own location is used and :func:`check` clears the in-tree cache files instead.
 """
 
 from __future__ import annotations
 
 import hashlib
+import os
+import sys
 from pathlib import Path
 
 _ROOT = Path(__file__).resolve().parent
@@ -20,6 +32,8 @@ SOURCES = ("constants.py", "jitcache.py", "network/kernel.py", "network/model.py
            "io/weather_frame.py", "hybrid/blocks.py", "hybrid/compiled.py")
 _STAMP = "atticsim-jit.stamp"
 _checked = False
+_folder: list = []   # [Path or None] once computed
+_saved: list = []    # numba.config.CACHE_DIR values to restore
 
 
 def _digest() -> str:
@@ -31,23 +45,72 @@ def _digest() -> str:
     return h.hexdigest()
 
 
+def folder() -> Path | None:
+    """This install's cache folder (created), or None when numba's own location is to be used."""
+    if not _folder:
+        path = None
+        if not os.environ.get("NUMBA_CACHE_DIR"):
+            base = os.environ.get("ATTICSIM_CACHE_DIR") or os.path.join(
+                os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache"), "atticsim")
+            tag = hashlib.sha1(str(_ROOT).encode()).hexdigest()[:12]
+            candidate = Path(base) / f"numba-{tag}-py{sys.version_info[0]}{sys.version_info[1]}"
+            try:
+                candidate.mkdir(parents=True, exist_ok=True)
+                probe = candidate / ".write-test"
+                probe.write_text("")
+                probe.unlink()
+                path = candidate
+            except OSError:
+                path = None
+        _folder.append(path)
+    return _folder[0]
+
+
+def route() -> None:
+    """Cache the compiled functions decorated from now on in :func:`folder` (until :func:`restore`)."""
+    import numba
+
+    _saved.append(numba.config.CACHE_DIR)
+    where = folder()
+    if where is not None:
+        numba.config.CACHE_DIR = str(where)
+
+
+def restore() -> None:
+    """Undo the last :func:`route`."""
+    import numba
+
+    if _saved:
+        numba.config.CACHE_DIR = _saved.pop()
+
+
+def _clear(paths) -> None:
+    for f in paths:
+        try:
+            f.unlink()
+        except OSError:
+            pass
+
+
 def check() -> None:
-    """Remove stale numba cache files of the compiled modules (once per process; cheap)."""
+    """Empty the cache of the compiled modules when their sources changed (once per process; cheap)."""
     global _checked
     if _checked:
         return
     _checked = True
     digest = _digest()
-    stamp = _ROOT / "hybrid" / "__pycache__" / _STAMP
+    where = folder()
+    stamp = (where if where is not None else _ROOT / "hybrid" / "__pycache__") / _STAMP
     try:
         if stamp.exists() and stamp.read_text() == digest:
             return
-        for folder in {(_ROOT / name).parent / "__pycache__" for name in SOURCES}:
-            if folder.is_dir():
-                for f in list(folder.glob("*.nbi")) + list(folder.glob("*.nbc")):
-                    f.unlink(missing_ok=True)
-        stamp.parent.mkdir(exist_ok=True)
+        if where is not None:
+            _clear(list(where.rglob("*.nbi")) + list(where.rglob("*.nbc")))
+        for f in {(_ROOT / name).parent / "__pycache__" for name in SOURCES}:
+            if f.is_dir():
+                _clear(list(f.glob("*.nbi")) + list(f.glob("*.nbc")))
+        stamp.parent.mkdir(parents=True, exist_ok=True)
         stamp.write_text(digest)
     except OSError:
-        # a read-only install: numba then caches in its own user directory (or not at all); nothing to do
+        # a read-only place: numba then caches in its own user folder (or not at all); nothing to do
         pass

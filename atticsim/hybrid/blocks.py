@@ -33,6 +33,7 @@ import numpy as np
 from atticsim import jitcache
 
 jitcache.check()  # stale compiled code out before numba loads any (see atticsim.jitcache)
+jitcache.route()  # this module's compiled functions cache in atticsim's own folder
 
 #: Taylor terms for a base step with ||J s||_inf <= TAYLOR_NORM (remainder (1/4)^13 / 13! ~ 2e-18).
 TAYLOR_TERMS = 12
@@ -198,3 +199,6 @@ def base_step(jac, unit, min_halvings=6):
     while norm * unit / 2.0**k > TAYLOR_NORM:
         k += 1
     return unit / 2.0**k, k
+
+
+jitcache.restore()

@@ -48,9 +48,12 @@ import math
 import numba as nb
 import numpy as np
 
+from atticsim import jitcache
 from atticsim.hybrid.blocks import BLOCKS, blocks_for, chain_into, matmul, matvec, matvec_add, taylor
 from atticsim.hybrid.events import HybridRun
 from atticsim.network import kernel
+
+jitcache.route()  # this module's compiled functions cache in atticsim's own folder (atticsim.jitcache)
 
 #: Relative finite-difference step for the Jacobian (numerical choice, ours; as the Python solvers).
 FD_STEP = 1e-4
@@ -548,6 +551,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
         return SWITCH, t + sigma, k, n_rhs, n_jac, n_rej, n_seg
     return DONE, t, k, n_rhs, n_jac, n_rej, n_seg
 
+
+jitcache.restore()
 
 #: Longest doubling chain kept (base steps down to 2^-40 of the segment).
 _MAX_LEVELS = 40

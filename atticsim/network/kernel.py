@@ -43,6 +43,7 @@ from atticsim.sensor import convection as _conv
 from atticsim.sensor.body import BODY_SHAPES
 
 jitcache.check()  # stale compiled code out before numba loads any (see atticsim.jitcache)
+jitcache.route()  # this module's compiled functions cache in atticsim's own folder
 
 # numba options for everything here: IEEE results (inf, nan) instead of exceptions on division by zero,
 # as numpy gives them to the vectorised model; no fast-math, so the arithmetic stays that of the model.
@@ -527,3 +528,6 @@ def rhs(x, u, fan, air, prm, planes, ints, heat, out):
     out[n + 7] = p_fan
     out[n + 8] = q_house_s
     out[n + 9] = q_house_l
+
+
+jitcache.restore()
