@@ -28,7 +28,8 @@ def test_check_empties_the_folder_when_the_sources_change(tmp_path):
         "from atticsim import jitcache; w = jitcache.folder(); sub = w / 'hybrid_0'; sub.mkdir(exist_ok=True);"
         "(sub / 'x.nbi').write_text(''); (sub / 'x.1.nbc').write_text(''); (w / 'keep.txt').write_text('');"
         "(w / 'atticsim-jit.stamp').write_text('old'); jitcache.check();"
-        "print(sorted(p.name for p in w.rglob('*') if p.is_file()), (w / 'atticsim-jit.stamp').read_text() == jitcache._digest())"
+        "print(sorted(p.name for p in w.rglob('*') if p.is_file()),"
+        " (w / 'atticsim-jit.stamp').read_text() == jitcache._digest())"
     )
     env = dict(os.environ, ATTICSIM_CACHE_DIR=str(tmp_path))
     env.pop("NUMBA_CACHE_DIR", None)

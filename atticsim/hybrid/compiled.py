@@ -608,8 +608,10 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
         Error allowed per segment in the nodes [K] (midpoint check; the segment is halved above it).
     tol_iter : float
         Convergence of the fixed point for a segment's end [K].
-    drift, age : float
-        The linearisation is renewed when a node has moved ``drift`` K from it or after ``age`` s.
+    drift, age, slow_iters : float, float, int
+        The linearisation (one per fan state, kept across switches) is renewed when a node has moved
+        ``drift`` K from it, after ``age`` s, when a segment's fixed point needed more than ``slow_iters``
+        iterations, or when the air flows differ from those it was made with by more than 5 %.
 
     Returns
     -------
@@ -673,5 +675,5 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
         out_y[k, :n_nodes], out_y[k, n_nodes:] = x, books
         fans[k], airs[k] = fan, getattr(network, "air", None)
         k += 1
-    return HybridRun(t=out[:k].copy(), y=np.ascontiguousarray(out_y[:k].T), fan=fans[:k], air=airs[:k], events=events,
-                     y_end=np.concatenate([x, books]), n_rhs=calls, air_updates=updates)
+    return HybridRun(t=out[:k].copy(), y=np.ascontiguousarray(out_y[:k].T), fan=fans[:k], air=airs[:k],
+                     events=events, y_end=np.concatenate([x, books]), n_rhs=calls, air_updates=updates)

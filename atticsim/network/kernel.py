@@ -86,7 +86,8 @@ _N_FORCING_BASE = len(FORCING_BASE)
 _N_BOOKS = len(BOOKS)
 assert BOOKS == ("solar", "sky", "ground", "exterior_convection", "ventilation", "ceiling_gain", "triac_heat",
                  "fan_electric", "house_air_sensible", "house_air_latent"), "kernel.rhs writes the books in this order"
-assert FORCING_BASE == ("temp_out", "temp_sky_k", "wind_speed", "temp_dew"), "kernel.rhs reads the forcing in this order"
+assert FORCING_BASE == ("temp_out", "temp_sky_k", "wind_speed", "temp_dew"), \
+    "kernel.rhs reads the forcing in this order"
 
 #: Defaults the network relies on, read from their single source.
 _WINDWARD = inspect.signature(forced_convection_sparrow).parameters["windward_factor"].default
@@ -131,7 +132,8 @@ def pack(network) -> Packed:
 
     prm = np.zeros(N_PRM)
     prm[_ABSORPTANCE], prm[_EMITTANCE], prm[_ROUGHNESS] = network.absorptance, network.emittance, network.roughness
-    prm[_FLOOR_AREA], prm[_C_AIR], prm[_W_UP], prm[_F_UP] = network.floor_area, network.c_air, network.w_up, network.f_up
+    prm[_FLOOR_AREA], prm[_C_AIR] = network.floor_area, network.c_air
+    prm[_W_UP], prm[_F_UP] = network.w_up, network.f_up
     prm[_LAYER_MIXING], prm[_FAN_MIXING] = network.layer_mixing, network.fan_mixing_ratio
     prm[_INTERFACE_AREA], prm[_FRAMING_AREA] = network.interface_area, network.framing_area
     prm[_C_FRAMING], prm[_C_CEILING_TOP], prm[_C_GYPSUM] = network.c_framing, network.c_ceiling_top, network.c_gypsum
