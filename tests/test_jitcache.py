@@ -5,6 +5,7 @@ import subprocess
 import sys
 
 import numba
+import pytest
 
 from atticsim import jitcache
 from atticsim.hybrid import blocks, compiled
@@ -13,8 +14,8 @@ from atticsim.network import kernel
 
 def test_compiled_functions_cache_in_atticsims_folder_only():
     where = jitcache.folder()
-    if where is None:  # NUMBA_CACHE_DIR set, or no writable cache folder: numba's own place is used
-        return
+    if where is None:
+        pytest.skip("NUMBA_CACHE_DIR is set or no cache folder is writable: numba's own place is used")
     for func in (compiled.advance, blocks.taylor, kernel.rhs):
         path = func._cache._impl.locator.get_cache_path()
         assert os.path.commonpath([path, str(where)]) == str(where)

@@ -151,15 +151,6 @@ def chain_into(jac, s0, levels, out):
 
 
 @nb.njit(cache=True)
-def chain(jac, s0, levels, nk=BLOCKS):
-    """Blocks over s0, 2 s0, 4 s0, ... (``levels`` doublings), shape (levels + 1, nk, n, n)."""
-    n = jac.shape[0]
-    out = np.empty((levels + 1, nk, n, n))
-    chain_into(jac, s0, levels, out)
-    return out
-
-
-@nb.njit(cache=True)
 def blocks_for(jac, h, s0, links, out):
     """Blocks over any step h from the doubling chain ``links`` of s0 (binary digits of h / s0) and a
     Taylor step for the remainder shorter than s0."""
@@ -192,9 +183,10 @@ def blocks_for(jac, h, s0, links, out):
     return length
 
 
+@nb.njit(cache=True)
 def base_step(jac, unit, min_halvings=6):
     """The chain's base step: ``unit`` / 2^k with k >= ``min_halvings`` and ||J s|| <= 1/4."""
-    norm = float(inf_norm(np.ascontiguousarray(jac)))
+    norm = inf_norm(jac)
     k = min_halvings
     while norm * unit / 2.0**k > TAYLOR_NORM:
         k += 1

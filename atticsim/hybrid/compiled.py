@@ -49,14 +49,13 @@ import numba as nb
 import numpy as np
 
 from atticsim import jitcache
-from atticsim.hybrid.blocks import BLOCKS, blocks_for, chain_into, matmul, matvec, matvec_add, taylor
+from atticsim.hybrid.blocks import BLOCKS, base_step, blocks_for, chain_into, matmul, matvec, matvec_add, taylor
 from atticsim.hybrid.events import HybridRun
+from atticsim.hybrid.fast import FD_STEP  # the Python solvers' finite-difference step
 from atticsim.network import kernel
 
 jitcache.route()  # this module's compiled functions cache in atticsim's own folder (atticsim.jitcache)
 
-#: Relative finite-difference step for the Jacobian (numerical choice, ours; as the Python solvers).
-FD_STEP = 1e-4
 #: Largest spacing of the sensor checks inside a segment [s] (a crossing and a return within less than
 #: this is not seen; the Python solvers check at the same spacing).
 CHECK_STEP = 60.0
@@ -207,15 +206,7 @@ def _relinearise(x, u, t, fan, air, prm, planes, ints, heat, f0, lin, q_step, un
     _jacobian(x, u, fan, air, prm, planes, ints, heat, f0, jac_all)
     jac[:, :] = jac_all[:n]
     jac_b[:, :] = jac_all[n:]
-    s0 = q_step / 2.0**unit_halvings
-    norm = 0.0
-    for i in range(n):
-        row = 0.0
-        for j in range(n):
-            row += abs(jac[i, j])
-        norm = max(norm, row)
-    while norm * s0 > 0.25:
-        s0 *= 0.5
+    s0, _ = base_step(jac, q_step, unit_halvings)
     levels = min(int(np.ceil(np.log2(max(segment, 2.0 * q_step) / s0))), links.shape[0] - 1)
     chain_into(jac, s0, levels, links)
     meta[0], meta[1], meta[2], meta[3] = 1.0, s0, levels, t
