@@ -48,7 +48,12 @@ def matmul(a, b, out):
     np.dot(a, b, out)
 
 
-@nb.njit(cache=True)
+#: Floating-point freedoms for the matrix-vector products: reassociation lets the compiler use SIMD sums,
+#: contraction fused multiply-adds (results change by rounding only; NaN and infinity keep their meaning).
+_SUMS = {"reassoc", "contract"}
+
+
+@nb.njit(cache=True, fastmath=_SUMS)
 def matvec(a, x, out):
     """out = a @ x."""
     for i in range(a.shape[0]):
@@ -58,7 +63,7 @@ def matvec(a, x, out):
         out[i] = s
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, fastmath=_SUMS)
 def matvec_add(a, x, scale, out):
     """out += scale * (a @ x)."""
     for i in range(a.shape[0]):

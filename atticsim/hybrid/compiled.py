@@ -319,9 +319,13 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     j_pref = 0
     iters = 0
     if after_switch:
-        # the state moves fast after a switch: start at about two check steps and let the segments grow
-        while segment / 2.0**j_pref > 2.0 * q_step and j_pref < 40:
+        # the state moves fast after a switch: start at the spacing remembered from the previous switch into
+        # this fan state (about two check steps the first time), and let the segments grow
+        start = meta[4] if meta[4] > 0.0 else 2.0 * q_step
+        while segment / 2.0**j_pref > start and j_pref < 40:
             j_pref += 1
+    first_after_switch = after_switch
+    rej_at_switch = 0
     err = 0.0
 
     while t < t_end - 1e-9:
@@ -392,6 +396,13 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 err *= h * h * h / 6.0
                 if err <= tol or h <= 1.0:
                     n_seg += 1
+                    if first_after_switch:
+                        # where the next switch into this state starts: this spacing, twice it when it was
+                        # the first try and far inside the tolerance (a start that is too long costs rejected
+                        # segments, one too short a few more segments)
+                        grow = n_rej == rej_at_switch and err < tol / 512.0
+                        meta[4] = segment / 2.0**j_pref * (2.0 if grow else 1.0)
+                        first_after_switch = False
                     # next: twice as long when well inside the tolerance (error ~ h^3)
                     if err < 0.125 * tol and j_pref > 0:
                         j_pref -= 1
@@ -490,16 +501,31 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 b_prev[i] = b[i] + 2.0 * c[i] * h   # the remainder's slope and curvature carried on
                 c_prev[i] = c[i]
             continue
-        # --- locate the crossing in (sigma, sigma + step]: substeps of the base step (with int z, from the
-        # blocks over sigma: G1 a + G2 b + 2 G3 c)
+        # --- locate the crossing in (sigma, sigma + step]. Binary descent on the doubling chain: from the
+        # longest link that fits down to the base step, step on by a link when the sensor stays short of its
+        # level at the link's end (so the bracket's lower end moves up and the crossing stays in the
+        # bracket), then a cubic Hermite root in the last base step. int z is kept from sigma on (the
+        # books' part up to sigma is yb).
         s_hi = sigma + step
         zi[:] = 0.0
-        if sigma > 0.0:
-            blk_s = store[_lookup(sigma, lens, store, cnt, jac, s0, chain_)]
-            matvec(blk_s[2], a, zi)
-            matvec_add(blk_s[3], b, 1.0, zi)
-            matvec_add(blk_s[4], c, 2.0, zi)
         g_lo = (x[i_sensor] + zs[i_sensor] - level) * direction
+        lev = int(meta[2])
+        while lev > 0 and s0 * 2.0**lev > step + 1e-9:
+            lev -= 1
+        while lev >= 1:
+            hl = s0 * 2.0**lev
+            if sigma + hl < s_hi - 1e-9:
+                for i in range(n):
+                    v0[i] = a[i] + (b[i] + c[i] * sigma) * sigma
+                    v1[i] = b[i] + 2.0 * c[i] * sigma
+                _step_on(chain_[lev], zs, zi, v0, v1, c, zt, it_)
+                g_hi = (x[i_sensor] + zt[i_sensor] - level) * direction
+                if g_hi < 0.0:
+                    zs[:] = zt
+                    zi[:] = it_
+                    g_lo = g_hi
+                    sigma += hl
+            lev -= 1
         base = chain_[0]
         while True:
             hs = min(s0, s_hi - sigma)
@@ -536,7 +562,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             acc = 0.0
             for j in range(n):
                 acc += jac_b[i, j] * zi[j]
-            books[i] = books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * sigma) * sigma) * sigma + acc
+            books[i] = (books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * sigma) * sigma) * sigma + yb[i]
+                        + acc)
         for i in range(n):
             x[i] += zt[i]
         return SWITCH, t + sigma, k, n_rhs, n_jac, n_rej, n_seg
@@ -551,11 +578,12 @@ _MAX_LEVELS = 40
 
 def new_linearisation(n_nodes: int, n_books: int) -> tuple:
     """Empty linearisation state for :func:`advance` (one per fan state, reused from call to call):
-    (J, J_b, doubling chain, block cache, cache lengths, [valid, s0, levels, t], [cache count, cache index
-    of J_b G0(q)], nodes and air flows at the linearisation, J_b G0(q))."""
+    (J, J_b, doubling chain, block cache, cache lengths, [valid, s0, levels, t, first step], [cache count, cache index
+    of J_b G0(q)], nodes and air flows at the linearisation, J_b G0(q)); meta[4] is the grid spacing first
+    accepted after the last switch into this fan state (0: none yet), kept across linearisations."""
     n, nb_ = n_nodes, n_books
     return (np.zeros((n, n)), np.zeros((nb_, n)), np.zeros((_MAX_LEVELS + 1, BLOCKS, n, n)),
-            np.zeros((_CACHE, BLOCKS, n, n)), np.zeros(_CACHE), np.zeros(4), np.array([0, -1], dtype=np.int64),
+            np.zeros((_CACHE, BLOCKS, n, n)), np.zeros(_CACHE), np.zeros(5), np.array([0, -1], dtype=np.int64),
             np.zeros(n), np.zeros(7), np.zeros((nb_, n)))
 
 
