@@ -118,6 +118,28 @@ def _no_fan_key(no_fan_scenario, frame, period, pressure):
     return hashlib.sha256(text.encode()).hexdigest()
 
 
+#: Forcings kept for reuse by study points (key -> (weather frame, Forcing)); see :func:`_forcing`.
+_FORCINGS: dict = {}
+
+
+def _forcing(frame, meta, scenario, t0, t1, source, reuse):
+    """build_forcing, or with ``reuse`` the forcing an earlier call in this process built from the same weather
+    frame (the very object, kept alive with the entry), site, weather options, roof and period."""
+    if not reuse:
+        return build_forcing(frame, meta, scenario, t0, t1, source=source)
+    import json
+
+    parts = [scenario.site.model_dump(mode="json"), scenario.weather.model_dump(mode="json"),
+             scenario.roof.model_dump(mode="json"), str(t0), str(t1), source]
+    key = (id(frame), json.dumps(parts, sort_keys=True, default=str))
+    kept = _FORCINGS.get(key)
+    if kept is None or kept[0] is not frame:
+        while len(_FORCINGS) >= _NO_FAN_KEEP:
+            _FORCINGS.pop(next(iter(_FORCINGS)))
+        kept = _FORCINGS[key] = (frame, build_forcing(frame, meta, scenario, t0, t1, source=source))
+    return kept[1]
+
+
 def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, months=None,
             year=None, reuse_no_fan=False) -> RawRuns:
     """Integrate the scenario with the fan under thermostat control and, optionally, with no fan.
@@ -134,7 +156,8 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         Also run the same period with the fan disabled (for the ceiling gain without the fan).
     reuse_no_fan : bool
         Reuse the no-fan run of an earlier call in this process when nothing it depends on differs
-        (studies that vary only the thermostat run it once per worker instead of once per point).
+        (studies that vary only the thermostat run it once per worker instead of once per point), and the
+        forcing when the weather frame, site, weather options, roof and period are the same.
     """
     if weather is None:
         weather = load_weather(scenario.weather.file, year=year)
@@ -142,7 +165,7 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
     source = getattr(meta, "path", None) or scenario.weather.file
     start, end = resolve_period(frame, scenario, start, end, months, year)
     t0, t1 = period_bounds(frame, start, end, str(source))
-    forcing = build_forcing(frame, meta, scenario, t0, t1, source=str(source))
+    forcing = _forcing(frame, meta, scenario, t0, t1, str(source), reuse_no_fan)
     base = forcing.times[0]
     period = Period(t0, t1, (t0 - base).total_seconds(), (t1 - base).total_seconds())
     sim = scenario.simulation

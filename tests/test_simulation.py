@@ -108,3 +108,24 @@ def test_reused_no_fan_run_equals_a_fresh_one(clear_week):
     changed = simulate(other, weather=clear_week, start="2025-07-15", end="2025-07-15", reuse_no_fan=True)
     assert len(pipeline._NO_FAN_RUNS) == 2
     assert changed.summary["ceiling_heat_gain_no_fan_kwh"] != fresh.summary["ceiling_heat_gain_no_fan_kwh"]
+
+
+def test_reused_forcing_is_the_one_a_fresh_build_gives(clear_week):
+    # Study points reuse the forcing built for an earlier point on the same weather frame, site, roof and
+    # period; the reused channels must equal a fresh build, and another roof must not hit the cache.
+    import atticsim.pipeline as pipeline
+    from atticsim.forcing.build import build_forcing
+
+    pipeline._FORCINGS.clear()
+    first = pipeline.run_raw(demo_scenario(["thermostat.on=37 degC"]), weather=clear_week, start="2025-07-15",
+                             end="2025-07-15", include_no_fan=False, reuse_no_fan=True)
+    second = pipeline.run_raw(demo_scenario(["thermostat.on=41 degC"]), weather=clear_week, start="2025-07-15",
+                              end="2025-07-15", include_no_fan=False, reuse_no_fan=True)
+    assert second.forcing is first.forcing and len(pipeline._FORCINGS) == 1
+    fresh = build_forcing(clear_week[0], clear_week[1], demo_scenario([]), first.period.start, first.period.end)
+    np.testing.assert_array_equal(second.forcing.values, fresh.values)
+    steeper = demo_scenario(["roof.planes.0.tilt=40"])
+    third = pipeline.run_raw(steeper, weather=clear_week, start="2025-07-15", end="2025-07-15",
+                             include_no_fan=False, reuse_no_fan=True)
+    assert third.forcing is not first.forcing and len(pipeline._FORCINGS) == 2
+    assert not np.array_equal(third.forcing.values[4], first.forcing.values[4])

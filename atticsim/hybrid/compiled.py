@@ -664,8 +664,9 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
     while t < t_end - 1e-9:
         if need_air and t >= next_air - 1e-9:
             f = forcing.at(t)
-            network.air = airflow.solve(float(network.mean_air(np.concatenate([x, books]))), f[0], f[2], fan,
-                                        with_depressurisation=True)
+            # (the simple air changes do not depend on the attic temperature)
+            t_attic = math.nan if airflow.kind == "simple" else float(network.mean_air(x))
+            network.air = airflow.solve(t_attic, float(f[0]), float(f[2]), fan, with_depressurisation=True)
             updates.append((t, network.air))
             air_vec = kernel.air_vector(network.air)
             next_air = (math.floor(t / update + 1e-9) + 1) * update if math.isfinite(update) else math.inf
