@@ -159,21 +159,33 @@ def chain_into(jac, s0, levels, out):
 def blocks_for(jac, h, s0, links, out):
     """Blocks over any step h from the doubling chain ``links`` of s0 (binary digits of h / s0) and a
     Taylor step for the remainder shorter than s0."""
-    n = jac.shape[1]
     count = int(np.floor(h / s0 + 1e-9))
     rest = h - count * s0
+    lev = 0
+    step = s0
     if rest > 1e-12 * s0:
         taylor(jac, rest, out)
         length = rest
     else:
-        for q in range(out.shape[0]):
-            out[q, :, :] = 0.0
-        for i in range(n):
-            out[0, i, i] = 1.0
-        length = 0.0
+        # no remainder: start from the lowest link taken (the identity and one composition saved)
+        while count > 0 and not count & 1:
+            count >>= 1
+            lev += 1
+            step *= 2.0
+        if count == 0:  # h = 0: the identity and zero blocks
+            for q in range(out.shape[0]):
+                out[q, :, :] = 0.0
+            for i in range(jac.shape[1]):
+                out[0, i, i] = 1.0
+            return 0.0
+        if lev >= links.shape[0]:
+            raise ValueError("step longer than the doubling chain")
+        out[:, :, :] = links[lev]
+        length = step
+        count >>= 1
+        lev += 1
+        step *= 2.0
     tmp = np.empty_like(out)
-    lev = 0
-    step = s0
     while count > 0:
         if count & 1:
             if lev >= links.shape[0]:

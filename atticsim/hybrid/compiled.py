@@ -375,6 +375,14 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                     # the quadratic through r(0) = a, r(h/2) = rm, r(h) = r1
                     b[i] = (4.0 * rm[i] - r1[i] - 3.0 * a[i]) / h
                     c[i] = 2.0 * (r1[i] - 2.0 * rm[i] + a[i]) / (h * h)
+                if iters >= 2 and h > 1.0:
+                    # far outside the tolerance already: halve without converging (rejection is sure
+                    # enough, and a segment too long also converges slowly)
+                    err = 0.0
+                    for i in range(n):
+                        err = max(err, abs(c[i]))
+                    if err * h * h * h / 6.0 > 8.0 * tol:
+                        break
                 _from_start(blk, a, b, c, z1n)
                 _from_start(blk_m, a, b, c, zmn)
                 change = max(_max_change(z1n, z1), _max_change(zmn, zm))
