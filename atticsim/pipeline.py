@@ -211,7 +211,8 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
                    controller=controller, notes=notes)
 
 
-def simulate(scenario, weather=None, start=None, end=None, months=None, year=None, reuse_no_fan=False):
+def simulate(scenario, weather=None, start=None, end=None, months=None, year=None, reuse_no_fan=False,
+             summary_only=False):
     """Simulate a scenario and compute its results (time series, events, summary, daily and monthly figures).
 
     Parameters
@@ -227,6 +228,9 @@ def simulate(scenario, weather=None, start=None, end=None, months=None, year=Non
         Calendar year to lay a typical-year file on (and the year of ``months``).
     reuse_no_fan : bool
         See :func:`run_raw`.
+    summary_only : bool
+        Summary and events only: no daily or monthly figures, a time series of attic air and fan state
+        (what a study point needs; see :func:`atticsim.results.metrics.build_result`).
 
     Returns
     -------
@@ -236,7 +240,7 @@ def simulate(scenario, weather=None, start=None, end=None, months=None, year=Non
 
     raw = run_raw(scenario, weather, start, end, include_no_fan=True, months=months, year=year,
                   reuse_no_fan=reuse_no_fan)
-    return build_result(scenario, raw)
+    return build_result(scenario, raw, summary_only=summary_only)
 
 
 def design_day(scenario, date, t_max, daily_range, dew_point=None, wind_speed=3.4, tolerance=0.05,

@@ -129,3 +129,18 @@ def test_reused_forcing_is_the_one_a_fresh_build_gives(clear_week):
                              include_no_fan=False, reuse_no_fan=True)
     assert third.forcing is not first.forcing and len(pipeline._FORCINGS) == 2
     assert not np.array_equal(third.forcing.values[4], first.forcing.values[4])
+
+
+def test_summary_only_result_has_the_full_summary(clear_week):
+    # Study points ask for the summary alone (no daily, monthly or full time series); every summary figure
+    # must be the one the full result gives, the sensor's local-air excess included.
+    from atticsim.results.metrics import build_result
+
+    sc = demo_scenario(["simulation.spinup_days=0", "thermostat.on=37 degC"])
+    raw = run_raw(sc, weather=clear_week, start="2025-07-15", end="2025-07-16")
+    full, short = build_result(sc, raw), build_result(sc, raw, summary_only=True)
+    assert short.summary == full.summary
+    assert short.daily is None and short.monthly is None
+    assert list(short.timeseries.columns) == ["attic_air_c", "fan_on"]
+    np.testing.assert_array_equal(short.timeseries["attic_air_c"], full.timeseries["attic_air_c"])
+    assert len(short.events) == len(full.events) > 0

@@ -225,12 +225,7 @@ class AtticNetwork:
             t_enc, q_enc_air = t_lo, 0.0 * t_lo
 
         # The sensor: local conditions of its placement, then its balance.
-        a_deck = area / area.sum()
-        ctx = _Context(t_upper=t_up, t_lower=t_lo, t_deck=(a_deck * t_deck).sum(axis=0), t_floor=t_ct,
-                       t_out=t_out, t_enclosure=t_enc, fan_on=fan > 0, fan_flow=air.fan_flow, fan_area=self.fan_area,
-                       intake_flow=air.in_lower / air_density(t_out, self.pressure), intake_area=self.intake_area,
-                       contact_conductance=self.contact_conductance)
-        loc = self.place(ctx)
+        loc = self.sensor_local(temps, forcing, fan_on, air)
         if self.sensor_body is None:
             g_air, g_rad = self.sensor_conductance, 0.0
         else:
@@ -250,6 +245,24 @@ class AtticNetwork:
             "sensor_self_heating": p_self, "triac_heat": q_triac, "enclosure_air": q_enc_air,
             "sensor_local_air": loc.t_air, "sensor_local_speed": loc.speed,
         }
+
+    def sensor_local(self, temps, forcing, fan_on, air=None):
+        """The sensor's local conditions (air and radiant temperatures, air speed, contact) of its placement
+        (:mod:`atticsim.network.placement`), vectorised like :meth:`flows` (same arguments)."""
+        P = self.n_planes
+        t_deck = temps[P:2 * P]
+        t_lo, t_up = temps[self.i_lower], temps[self.i_upper]
+        t_out = forcing[0]
+        air = self.air if air is None else air
+        fan = np.asarray(fan_on, dtype=float)
+        t_enc = temps[self.i_enclosure] if self.i_enclosure is not None else t_lo
+        a_deck = self.area / self.area.sum()
+        ctx = _Context(t_upper=t_up, t_lower=t_lo, t_deck=(a_deck * t_deck).sum(axis=0),
+                       t_floor=temps[self.index["ceiling_top"]], t_out=t_out, t_enclosure=t_enc, fan_on=fan > 0,
+                       fan_flow=air.fan_flow, fan_area=self.fan_area,
+                       intake_flow=air.in_lower / air_density(t_out, self.pressure), intake_area=self.intake_area,
+                       contact_conductance=self.contact_conductance)
+        return self.place(ctx)
 
     def derivatives(self, temps, forcing, fan_on):
         """Time derivatives of node temperatures [K/s] and of the books [W], shape (n_nodes + books, m)."""

@@ -28,10 +28,10 @@ class SimulationResult:
     ----------
     summary : dict
         Season figures (keys carry their units: ``fan_run_hours``, ``ceiling_heat_gain_kwh``...).
-    daily : pandas.DataFrame
-        The same figures per local day.
+    daily : pandas.DataFrame or None
+        The same figures per local day (None for a summary-only result, see :func:`build_result`).
     timeseries : pandas.DataFrame
-        States, flows and heat rates at each output step.
+        States, flows and heat rates at each output step (a summary-only result: attic air and fan state).
     events : pandas.DataFrame
         Every fan switch: time, new state, sensor temperature.
     notes : list of str
@@ -39,7 +39,7 @@ class SimulationResult:
     """
 
     summary: dict
-    daily: pd.DataFrame
+    daily: pd.DataFrame | None
     timeseries: pd.DataFrame
     events: pd.DataFrame
     notes: list = field(default_factory=list)
@@ -85,8 +85,12 @@ def _cycle_figures(intervals, short_cycle):
     }
 
 
-def build_result(scenario, raw) -> SimulationResult:
-    """Assemble the result of :func:`atticsim.pipeline.run_raw`."""
+def build_result(scenario, raw, summary_only=False) -> SimulationResult:
+    """Assemble the result of :func:`atticsim.pipeline.run_raw`.
+
+    With ``summary_only`` (study points) the summary and events are complete, the time series holds only
+    ``attic_air_c`` and ``fan_on``, and ``daily`` and ``monthly`` are None.
+    """
     net, forcing, period = raw.network, raw.forcing, raw.period
     run, nofan = raw.with_fan, raw.without_fan
     n = net.n_nodes
@@ -95,34 +99,14 @@ def build_result(scenario, raw) -> SimulationResult:
     temps = run.y[:n]
     f = forcing.sample(run.t)
     air = stack_states(run.air)
-    q = net.flows(temps, f, run.fan, SimpleNamespace(**air))
-
-    cols = {"outdoor_air_c": f[0], "sky_c": f[1] - KELVIN, "wind_speed_m_s": f[2]}
-    for i, p in enumerate(net.plane_names):
-        cols[f"poa_{p}_w_m2"] = f[4 + i]
     attic_air = net.mean_air(temps)
-    cols["attic_air_c"] = attic_air
-    for name, i in idx.items():
-        if name != "air":
-            cols[name + "_c"] = temps[i]
-    cols["sensor_local_air_c"] = q["sensor_local_air"] * np.ones(run.t.size)
-    cols["fan_on"] = run.fan.astype(int)
-    cols["outdoor_air_flow_m3_s"] = air["outdoor_flow"]
-    cols["fan_flow_m3_s"] = air["fan_flow"]
-    cols["ceiling_flow_m3_s"] = air["ceiling_flow"]
-    cols["attic_pressure_pa"] = air["pressure_attic"]
-    cols["house_pressure_pa"] = air["pressure_house"]
-    for j, name in enumerate(net.airflow.path_names):
-        cols[f"flow_{name.replace(' ', '_')}_m3_s"] = air["path_flows"][:, j]
-    cols["airflow_mass_residual"] = air["residual"]
-    cols["solar_absorbed_w"] = q["solar"].sum(axis=0)
-    cols["roof_longwave_w"] = (q["sky"] + q["ground"]).sum(axis=0)
-    cols["roof_convection_w"] = q["exterior_convection"].sum(axis=0)
-    cols["ventilation_heat_w"] = q["ventilation"]
-    cols["ceiling_heat_gain_w"] = q["ceiling_gain"]
-    cols["fan_power_w"] = q["fan_electric"] * np.ones(run.t.size)
-    cols["house_air_load_w"] = (q["house_air_sensible"] + q["house_air_latent"]) * np.ones(run.t.size)
-    ts = pd.DataFrame(cols, index=pd.DatetimeIndex(times, name="time"))
+    if summary_only:
+        sensor_local_air = net.sensor_local(temps, f, run.fan, SimpleNamespace(**air)).t_air
+        ts = pd.DataFrame({"attic_air_c": attic_air, "fan_on": run.fan.astype(int)},
+                          index=pd.DatetimeIndex(times, name="time"))
+    else:
+        ts = _timeseries(net, run, f, air, attic_air, times)
+        sensor_local_air = ts["sensor_local_air_c"].to_numpy()
 
     ev_times = forcing.times[0] + pd.to_timedelta([e[0] for e in run.events], unit="s")
     events = pd.DataFrame({
@@ -163,13 +147,48 @@ def build_result(scenario, raw) -> SimulationResult:
         "thermostat_kind": scenario.thermostat.kind,
         "switch_on_sensor_c": raw.controller.on,
         "switch_off_sensor_c": raw.controller.off,
-        "sensor_above_local_air_max_k": float(np.max(temps[idx["sensor"]] - q["sensor_local_air"])),
+        "sensor_above_local_air_max_k": float(np.max(temps[idx["sensor"]] - sensor_local_air)),
         "sensor_placement": scenario.sensor.placement,
         **airflow_figures(scenario, raw, air, books, books_nf),
     }
-    daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n)
     notes = list(raw.notes)
+    if summary_only:
+        return SimulationResult(summary, None, ts, events, notes, scenario, None)
+    daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n)
     return SimulationResult(summary, daily, ts, events, notes, scenario, monthly_figures(daily))
+
+
+def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
+    """The full time-series frame of a run (states, forcing, air flows, heat rates at each output step)."""
+    temps = run.y[:net.n_nodes]
+    idx = net.index
+    q = net.flows(temps, f, run.fan, SimpleNamespace(**air))
+
+    cols = {"outdoor_air_c": f[0], "sky_c": f[1] - KELVIN, "wind_speed_m_s": f[2]}
+    for i, p in enumerate(net.plane_names):
+        cols[f"poa_{p}_w_m2"] = f[4 + i]
+    cols["attic_air_c"] = attic_air
+    for name, i in idx.items():
+        if name != "air":
+            cols[name + "_c"] = temps[i]
+    cols["sensor_local_air_c"] = q["sensor_local_air"] * np.ones(run.t.size)
+    cols["fan_on"] = run.fan.astype(int)
+    cols["outdoor_air_flow_m3_s"] = air["outdoor_flow"]
+    cols["fan_flow_m3_s"] = air["fan_flow"]
+    cols["ceiling_flow_m3_s"] = air["ceiling_flow"]
+    cols["attic_pressure_pa"] = air["pressure_attic"]
+    cols["house_pressure_pa"] = air["pressure_house"]
+    for j, name in enumerate(net.airflow.path_names):
+        cols[f"flow_{name.replace(' ', '_')}_m3_s"] = air["path_flows"][:, j]
+    cols["airflow_mass_residual"] = air["residual"]
+    cols["solar_absorbed_w"] = q["solar"].sum(axis=0)
+    cols["roof_longwave_w"] = (q["sky"] + q["ground"]).sum(axis=0)
+    cols["roof_convection_w"] = q["exterior_convection"].sum(axis=0)
+    cols["ventilation_heat_w"] = q["ventilation"]
+    cols["ceiling_heat_gain_w"] = q["ceiling_gain"]
+    cols["fan_power_w"] = q["fan_electric"] * np.ones(run.t.size)
+    cols["house_air_load_w"] = (q["house_air_sensible"] + q["house_air_latent"]) * np.ones(run.t.size)
+    return pd.DataFrame(cols, index=pd.DatetimeIndex(times, name="time"))
 
 
 def monthly_figures(daily: pd.DataFrame) -> pd.DataFrame:

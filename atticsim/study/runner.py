@@ -129,7 +129,7 @@ def run_point(task: dict) -> dict:
 
         sc = task["scenario"]
         result = simulate(sc, weather=_weather(sc.weather.file), start=task["start"], end=task["end"],
-                          reuse_no_fan=True)
+                          reuse_no_fan=True, summary_only=True)
         out["summary"] = {k: _plain(v) for k, v in result.summary.items()
                           if not isinstance(v, (list, dict, tuple))}
         out["metrics"] = {k: _plain(v) for k, v in point_metrics(result, sc, task["comfort_limit_c"]).items()}
