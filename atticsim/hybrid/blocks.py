@@ -180,7 +180,7 @@ def blocks_for(jac, h, s0, links, out):
             return 0.0
         if lev >= links.shape[0]:
             raise ValueError("step longer than the doubling chain")
-        out[:, :, :] = links[lev]
+        out[:, :, :] = links[lev, :out.shape[0]]
         length = step
         count >>= 1
         lev += 1
