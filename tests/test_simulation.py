@@ -144,3 +144,15 @@ def test_summary_only_result_has_the_full_summary(clear_week):
     assert list(short.timeseries.columns) == ["attic_air_c", "fan_on"]
     np.testing.assert_array_equal(short.timeseries["attic_air_c"], full.timeseries["attic_air_c"])
     assert len(short.events) == len(full.events) > 0
+
+
+def test_forcing_value_is_the_channel_at_gives(clear_week):
+    # The solvers' per-switch reads take one channel as a float; it must be what Forcing.at interpolates,
+    # inside the period and clamped beyond both ends.
+    raw = run_raw(demo_scenario(["simulation.spinup_days=0"]), weather=clear_week, start="2025-07-15",
+                  end="2025-07-15", include_no_fan=False)
+    forcing = raw.forcing
+    last = forcing.step * (forcing.values.shape[1] - 1)
+    for t in (-100.0, 0.0, 1234.5, forcing.step * 3, last - 0.25, last, last + 500.0):
+        for c in range(forcing.values.shape[0]):
+            assert forcing.value(c, t) == forcing.at(t)[c]

@@ -59,6 +59,17 @@ class Forcing:
         v = self.values
         return v[:, i] + frac * (v[:, i + 1] - v[:, i])
 
+    def value(self, channel: int, t: float) -> float:
+        """One channel at time t [s from the first sample], as :meth:`at` gives it (a float)."""
+        x = t / self.step
+        i = int(x)
+        row = self.values[channel]
+        if i >= row.size - 1:
+            return float(row[-1])
+        if i < 0:
+            return float(row[0])
+        return float(row[i] + (x - i) * (row[i + 1] - row[i]))
+
     def sample(self, t: np.ndarray) -> np.ndarray:
         """Channels at many times t [s], shape (channels, len(t))."""
         grid = self.seconds()

@@ -248,7 +248,7 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     when the air flows differ by more than 5 %. ``after_switch``: the state moves fast, start with short
     segments.
 
-    x (nodes) and books are updated in place; output rows are written into out_y[k...] (one row per
+    x (nodes) and books are updated in place; outputs are written into the columns out_y[:, k...] (one per
     output instant). Returns (status, t, k, n_rhs, n_jacobians, n_rejected, n_segments): status DONE at
     t_end, SWITCH at a located crossing (t its instant), OFF_GRID when an output instant does not fall on
     the check grid, FAILED when a segment's end does not converge even at half a second.
@@ -304,8 +304,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     n_out = out_t.size
 
     if k < n_out and abs(out_t[k] - t) < 1e-6:
-        out_y[k, :n] = x
-        out_y[k, n:] = books
+        out_y[:n, k] = x
+        out_y[n:, k] = books
         k += 1
     _forcing_at(f_values, f_step, t, u0)
     kernel.rhs(x, u0, fan, air, prm, planes, ints, heat, f0)
@@ -489,9 +489,9 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 if abs(out_t[k] - now) > 1e-6:
                     return OFF_GRID, t, k, n_rhs, n_jac, n_rej, n_seg
                 for i in range(n):
-                    out_y[k, i] = x[i] + zt[i]
+                    out_y[i, k] = x[i] + zt[i]
                 for i in range(nb_):
-                    out_y[k, n + i] = (books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * s_new) * s_new) * s_new
+                    out_y[n + i, k] = (books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * s_new) * s_new) * s_new
                                        + ybt[i])
                 k += 1
             zs[:] = zt
@@ -658,7 +658,7 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
     out = np.ascontiguousarray(output_times, dtype=float)
     y = np.asarray(y0, dtype=float).copy()
     x, books = y[:n_nodes].copy(), y[n_nodes:].copy()
-    out_y = np.empty((out.size, y.size))
+    out_y = np.empty((y.size, out.size))  # (variables, instants), as HybridRun.y
     fans = np.zeros(out.size, dtype=bool)
     airs = [None] * out.size
     events, updates = [], []
@@ -671,10 +671,10 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
     after_switch = False
     while t < t_end - 1e-9:
         if need_air and t >= next_air - 1e-9:
-            f = forcing.at(t)
             # (the simple air changes do not depend on the attic temperature)
             t_attic = math.nan if airflow.kind == "simple" else float(network.mean_air(x))
-            network.air = airflow.solve(t_attic, float(f[0]), float(f[2]), fan, with_depressurisation=True)
+            network.air = airflow.solve(t_attic, forcing.value(0, t), forcing.value(2, t), fan,
+                                        with_depressurisation=True)
             updates.append((t, network.air))
             air_vec = kernel.air_vector(network.air)
             next_air = (math.floor(t / update + 1e-9) + 1) * update if math.isfinite(update) else math.inf
@@ -700,8 +700,8 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
             if need_air:
                 next_air = t  # flows follow the new fan state at once, as in the reference solver
     if k < out.size and abs(out[k] - t) < 1e-6:
-        out_y[k, :n_nodes], out_y[k, n_nodes:] = x, books
+        out_y[:n_nodes, k], out_y[n_nodes:, k] = x, books
         fans[k], airs[k] = fan, getattr(network, "air", None)
         k += 1
-    return HybridRun(t=out[:k].copy(), y=np.ascontiguousarray(out_y[:k].T), fan=fans[:k], air=airs[:k],
-                     events=events, y_end=np.concatenate([x, books]), n_rhs=calls, air_updates=updates)
+    return HybridRun(t=out[:k].copy(), y=out_y if k == out.size else out_y[:, :k].copy(), fan=fans[:k],
+                     air=airs[:k], events=events, y_end=np.concatenate([x, books]), n_rhs=calls, air_updates=updates)

@@ -27,6 +27,7 @@ from __future__ import annotations
 
 import inspect
 import math
+import operator
 from typing import NamedTuple
 
 import numba
@@ -201,9 +202,12 @@ def _heat_table(power):
     return heat, HEAT_T_MIN, HEAT_STEP, error
 
 
+_AIR_FIELDS = operator.attrgetter(*AIR_ORDER)
+
+
 def air_vector(air) -> np.ndarray:
     """The air flows :func:`rhs` reads, from an AirflowState: float64[7] in :data:`AIR_ORDER`."""
-    return np.array([float(getattr(air, name)) for name in AIR_ORDER], dtype=float)
+    return np.array(_AIR_FIELDS(air), dtype=float)
 
 
 # --- scalar helpers ------------------------------------------------------------------------------------
