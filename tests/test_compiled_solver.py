@@ -62,6 +62,64 @@ def test_fan_state_and_outputs_follow_the_events(narrow_runs):
     assert checked > len(run.events) // 2
 
 
+def test_compiled_switch_loop_gives_what_the_python_loop_gives(narrow_runs):
+    # The simple airflow form runs its switch loop compiled (run_simple, with the flows formed in compiled
+    # code); the Python loop (AirflowModel.solve at each switch) must give the same run, to rounding.
+    _, fast = narrow_runs
+    net, forcing, ctl, per = fast.network, fast.forcing, fast.controller, fast.period
+    assert net.airflow.kind == "simple"
+    runs = [compiled.integrate_compiled(net, forcing, ctl, per.t_start, per.t_end, fast.y_start_fan, False,
+                                        fast.output_times, compiled_loop=loop) for loop in (True, False)]
+    a, b = runs
+    assert len(a.events) > 50 and len(a.events) == len(b.events)
+    for ea, eb in zip(a.events, b.events):
+        assert ea[1] == eb[1] and ea[0] == pytest.approx(eb[0], abs=1e-9) and ea[2] == pytest.approx(eb[2], abs=1e-9)
+    np.testing.assert_allclose(a.y, b.y, rtol=1e-12, atol=1e-9)
+    np.testing.assert_array_equal(a.fan, b.fan)
+    assert [u[0] for u in a.air_updates] == pytest.approx([u[0] for u in b.air_updates], abs=1e-9)
+    for (_, sa), (_, sb) in zip(a.air_updates, b.air_updates):
+        assert sa == sb
+    assert [s.fan_flow for s in a.air] == [s.fan_flow for s in b.air]
+    assert [s.outdoor_in for s in a.air] == [s.outdoor_in for s in b.air]
+
+
+def test_compiled_switch_loop_goes_on_when_its_interval_arrays_are_full(narrow_runs, monkeypatch):
+    # run_simple returns FULL when its interval arrays are full; the driver calls it again from where it
+    # stopped, and the run must be the one a single call gives
+    _, fast = narrow_runs
+    net, forcing, ctl, per = fast.network, fast.forcing, fast.controller, fast.period
+    args = (net, forcing, ctl, per.t_start, per.t_end, fast.y_start_fan, False, fast.output_times)
+    whole = compiled.integrate_compiled(*args)
+    monkeypatch.setattr(compiled, "_INTERVALS", 5)
+    pieces = compiled.integrate_compiled(*args)
+    assert len(whole.events) > 50 and pieces.events == whole.events
+    np.testing.assert_array_equal(pieces.y, whole.y)
+    np.testing.assert_array_equal(pieces.fan, whole.fan)
+    assert [u[0] for u in pieces.air_updates] == [u[0] for u in whole.air_updates]
+    assert pieces.air == whole.air
+
+
+def test_simple_flows_in_compiled_code_are_the_airflow_models():
+    # _simple_air (compiled switch loop) against AirflowModel.simple_state through kernel.air_vector
+    from atticsim.network import kernel
+    from atticsim.network.model import build_network
+
+    net = build_network(load_scenario(BUNGALOW, []))
+    model = net.airflow
+    values = np.array([[12.0, 31.5, 40.0], [250.0, 260.0, 270.0], [1.0, 2.0, 3.0], [5.0, 6.0, 7.0]])
+    passive, rated, power, enabled, pressure = model.simple_parameters()
+    simple = np.array([passive, rated, power, 1.0 if enabled else 0.0, pressure])
+    for t in (0.0, 1800.0, 5000.0, 9000.0):
+        for fan in (False, True):
+            air = np.empty(7)
+            rho = compiled._simple_air(values, 3600.0, t, fan, simple, air)
+            t_out = np.interp(t, [0.0, 3600.0, 7200.0], values[0])
+            state = model.simple_state(rho, fan)
+            assert rho == pytest.approx(pressure / (287.055 * (t_out + 273.15)), rel=1e-14)
+            np.testing.assert_array_equal(air, kernel.air_vector(state))
+            assert state == model.solve(float("nan"), float(t_out), 2.0, fan)
+
+
 def test_grid_steps():
     t0 = 1000.0
     assert compiled.grid_steps(np.append(np.arange(t0, t0 + 3600, 60.0), t0 + 3601), t0) == (60.0, 60.0, 600.0)
@@ -108,6 +166,12 @@ def test_a_segment_that_will_not_converge_hands_over_to_the_window_solver(monkey
     net, forcing, ctl, t0 = raw.network, raw.forcing, raw.controller, raw.period.t_start
     times = t0 + np.arange(0.0, 3601.0, 60.0)
     monkeypatch.setattr(compiled, "advance", lambda t, *rest: (compiled.FAILED, t, 0, 0, 0, 0, 0))
-    assert compiled.integrate_compiled(net, forcing, ctl, t0, t0 + 3600.0, raw.y_start_fan, False, times) is None
+    # (the compiled switch loop of the simple airflow form reports advance's status the same way)
+    monkeypatch.setattr(compiled, "run_simple",
+                        lambda t, t_end, origin, seg, q, x, books, fan, after, *rest: (compiled.FAILED, t, 0, fan,
+                                                                                      after, 0, 0, 0))
+    for loop in (True, False):
+        assert compiled.integrate_compiled(net, forcing, ctl, t0, t0 + 3600.0, raw.y_start_fan, False, times,
+                                           compiled_loop=loop) is None
     run = pipeline.integrator(sc.simulation)(net, forcing, ctl, t0, t0 + 3600.0, raw.y_start_fan, False, times)
     assert np.allclose(run.t, times) and np.all(np.isfinite(run.y))

@@ -134,13 +134,7 @@ class AirflowModel:
         """
         running = bool(fan_on) and self.enabled
         if self.kind == "simple":
-            # Simple form: outdoor air enters low (soffits) and leaves high (ridge, fan).
-            q = self.passive + (self.rated_flow if running else 0.0)
-            m = float(air_density(temp_outdoor, self.pressure)) * q
-            return AirflowState(outdoor_in=m, house_in=0.0, attic_to_house=0.0, outdoor_flow=q,
-                                fan_flow=self.rated_flow if running else 0.0,
-                                fan_power=self.rated_power if running else 0.0,
-                                in_lower=m, out_upper=m)
+            return self.simple_state(float(air_density(temp_outdoor, self.pressure)), running)
         from atticsim.airflow.balance import solve_attic_balance
 
         kw = dict(temp_house=self.room_temperature, wind_speed=max(float(wind_speed), 0.0),
@@ -168,6 +162,23 @@ class AirflowModel:
             ceiling_flow=b.ceiling_flow, pressure_attic=b.pressure_attic, pressure_house=b.pressure_house,
             depressurisation=depress, residual=b.residual, **flows,
             path_flows=tuple(self._path_flow(b, name) for name in self.path_names))
+
+    def simple_state(self, density: float, running: bool) -> AirflowState:
+        """The simple form's flows for outdoor air of ``density`` [kg/m^3] with the fan running or not:
+        outdoor air enters low (soffits) and leaves high (ridge, fan); the passive air changes plus the
+        fan's rated flow. (The compiled solver's switch loop forms the same flows: ``simple_parameters``.)"""
+        q = self.passive + (self.rated_flow if running else 0.0)
+        m = density * q
+        return AirflowState(outdoor_in=m, house_in=0.0, attic_to_house=0.0, outdoor_flow=q,
+                            fan_flow=self.rated_flow if running else 0.0,
+                            fan_power=self.rated_power if running else 0.0,
+                            in_lower=m, out_upper=m)
+
+    def simple_parameters(self) -> tuple:
+        """(passive flow [m^3/s], rated flow [m^3/s], rated power [W], fan enabled, pressure [Pa]) of the
+        simple form, for the compiled switch loop."""
+        return (float(self.passive), float(self.rated_flow), float(self.rated_power), bool(self.enabled),
+                float(self.pressure))
 
     @staticmethod
     def _path_flow(balance, name):

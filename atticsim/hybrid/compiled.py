@@ -62,8 +62,8 @@ CHECK_STEP = 60.0
 #: Blocks kept per linearisation (step lengths met repeatedly: segment, half segment, check step...).
 _CACHE = 64
 
-# Status codes of :func:`advance`.
-DONE, SWITCH, OFF_GRID, FAILED = 0, 1, -1, -2
+# Status codes of :func:`advance` (and FULL of :func:`run_simple`: its interval arrays are full).
+DONE, SWITCH, OFF_GRID, FAILED, FULL = 0, 1, -1, -2, 2
 
 
 @nb.njit(cache=True)
@@ -578,10 +578,84 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     return DONE, t, k, n_rhs, n_jac, n_rej, n_seg
 
 
+
+@nb.njit(cache=True)
+def _simple_air(f_values, f_step, t, fan, simple, air):
+    """The held flows of the simple airflow form at t into ``air`` (:data:`kernel.AIR_ORDER`); returns the
+    outdoor air density. ``simple`` is ``AirflowModel.simple_parameters()``; the flows are those of
+    ``AirflowModel.simple_state`` (a test holds the two equal)."""
+    x = t / f_step
+    i = int(x)
+    row = f_values[0]
+    if i >= row.size - 1:
+        t_out = row[row.size - 1]
+    elif i < 0:
+        t_out = row[0]
+    else:
+        t_out = row[i] + (x - i) * (row[i + 1] - row[i])   # as Forcing.value
+    rho = simple[4] / (287.055 * (t_out + 273.15))           # ideal gas, ISO 2533 R_d (heat_transfer.air_density)
+    running = fan and simple[3] > 0.0
+    q = simple[0] + (simple[1] if running else 0.0)          # passive air changes plus the fan's rated flow
+    air[0] = rho * q                                         # outdoor air into the lower layer
+    air[1] = 0.0
+    air[2] = 0.0
+    air[3] = 0.0
+    air[4] = 0.0
+    air[5] = simple[1] if running else 0.0
+    air[6] = simple[2] if running else 0.0
+    return rho
+
+
+@nb.njit(cache=True)
+def run_simple(t, t_end, origin, segment, q_step, x, books, fan, after, prm, planes, ints, heat, f_values,
+               f_step, out_t, k, out_y, out_fan, i_sensor, levels, directions, simple, tol, tol_iter, drift, age,
+               unit_halvings, lin_off, lin_on, slow_iters, iv_t, iv_k, iv_rho, ev_t, ev_s):
+    """The switch loop of :func:`integrate_compiled` for the simple airflow form, compiled: :func:`advance`
+    from switch to switch, the held flows re-formed at each switch (:func:`_simple_air`).
+
+    ``levels[j]``, ``directions[j]``: the switching level and direction that end fan state j (0 off, 1 on).
+    Interval i (a stretch of one fan state) starts at iv_t[i], output row iv_k[i], with outdoor air density
+    iv_rho[i]; the fan state alternates from ``fan``. Switch e is at ev_t[e] with the sensor at ev_s[e].
+    Returns (status, t, k, fan, after, n_intervals, n_switches, n_rhs): status DONE at t_end, FULL when
+    the interval arrays are full (call again to go on), or advance's OFF_GRID or FAILED.
+    """
+    air = np.zeros(7)
+    n_iv = 0
+    n_ev = 0
+    calls = 0
+    while t < t_end - 1e-9:
+        if n_iv >= iv_t.size or n_ev >= ev_t.size:
+            return FULL, t, k, fan, after, n_iv, n_ev, calls
+        iv_rho[n_iv] = _simple_air(f_values, f_step, t, fan, simple, air)
+        iv_t[n_iv] = t
+        iv_k[n_iv] = k
+        n_iv += 1
+        j = 1 if fan else 0
+        k0 = k
+        status, t, k, n_rhs, _, _, _ = advance(
+            t, t_end, origin, segment, q_step, x, books, 1.0 if fan else 0.0, air, prm, planes, ints, heat,
+            f_values, f_step, out_t, k, out_y, i_sensor, levels[j], directions[j], tol, tol_iter, drift, age,
+            unit_halvings, lin_on if fan else lin_off, after, slow_iters)
+        calls += n_rhs
+        for i in range(k0, k):
+            out_fan[i] = fan
+        if status == OFF_GRID or status == FAILED:
+            return status, t, k, fan, after, n_iv, n_ev, calls
+        after = status == SWITCH
+        if after:
+            fan = not fan
+            ev_t[n_ev] = t
+            ev_s[n_ev] = x[i_sensor]
+            n_ev += 1
+    return DONE, t, k, fan, after, n_iv, n_ev, calls
+
+
 jitcache.restore()
 
 #: Longest doubling chain kept (base steps down to 2^-40 of the segment).
 _MAX_LEVELS = 40
+#: Fan-state intervals recorded per call of :func:`run_simple` (it is called again when they are full).
+_INTERVALS = 4096
 
 
 def new_linearisation(n_nodes: int, n_books: int) -> tuple:
@@ -593,6 +667,52 @@ def new_linearisation(n_nodes: int, n_books: int) -> tuple:
     return (np.zeros((n, n)), np.zeros((nb_, n)), np.zeros((_MAX_LEVELS + 1, BLOCKS, n, n)),
             np.zeros((_CACHE, BLOCKS, n, n)), np.zeros(_CACHE), np.zeros(5), np.array([0, -1], dtype=np.int64),
             np.zeros(n), np.zeros(7), np.zeros((nb_, n)))
+
+
+def _integrate_simple(network, t_end, fan, args, n_y) -> HybridRun | None:
+    """The rest of :func:`integrate_compiled` for the simple airflow form: :func:`run_simple`, then the
+    airflow states, events and per-row records the other solvers give, built from its interval arrays."""
+    (origin, seg, q_step, x, books, packed, f_values, f_step, out, out_y, fans, i_sensor, controller, airflow,
+     tol, tol_iter, drift, age, lins, slow_iters) = args
+    n_nodes = x.size
+    levels = np.array([controller.next_switch(False)[0], controller.next_switch(True)[0]], dtype=float)
+    directions = np.array([controller.next_switch(False)[1], controller.next_switch(True)[1]], dtype=np.int64)
+    passive, rated_flow, rated_power, enabled, pressure = airflow.simple_parameters()
+    simple = np.array([passive, rated_flow, rated_power, 1.0 if enabled else 0.0, pressure])
+    size = int(min(out.size, _INTERVALS)) + 2
+    iv_t, iv_k, iv_rho = np.empty(size), np.empty(size, dtype=np.int64), np.empty(size)
+    ev_t, ev_s = np.empty(size), np.empty(size)
+    airs = [None] * out.size
+    events, updates = [], []
+    t, k, after, calls = origin, 0, False, 0
+    state = None
+    while True:
+        fan0 = fan
+        status, t, k, fan, after, n_iv, n_ev, n_rhs = run_simple(
+            t, t_end, origin, seg, q_step, x, books, fan, after, packed.prm, packed.planes, packed.ints,
+            packed.heat, f_values, f_step, out, k, out_y, fans, i_sensor, levels, directions, simple, tol,
+            tol_iter, drift, age, 6, lins[False], lins[True], slow_iters, iv_t, iv_k, iv_rho, ev_t, ev_s)
+        calls += n_rhs
+        if status in (OFF_GRID, FAILED):
+            return None  # as integrate_compiled: the caller runs the window solver
+        running = fan0
+        for i in range(n_iv):
+            state = airflow.simple_state(float(iv_rho[i]), running)
+            k1 = int(iv_k[i + 1]) if i + 1 < n_iv else k
+            airs[int(iv_k[i]):k1] = [state] * (k1 - int(iv_k[i]))
+            updates.append((float(iv_t[i]), state))
+            running = not running
+        events.extend((float(ev_t[e]), bool(fan0) != (e % 2 == 0), float(ev_s[e])) for e in range(n_ev))
+        if status != FULL:
+            break
+    network.air = state if state is not None else network.air
+    if k < out.size and abs(out[k] - t) < 1e-6:
+        out_y[:n_nodes, k], out_y[n_nodes:, k] = x, books
+        fans[k], airs[k] = fan, state  # (as the Python loop: the flows held last)
+        k += 1
+    return HybridRun(t=out[:k].copy(), y=out_y if k == out.size else out_y[:, :k].copy(), fan=fans[:k],
+                     air=airs[:k], events=events, y_end=np.concatenate([x, books]), n_rhs=calls,
+                     air_updates=updates)
 
 
 def grid_steps(output_times, t_start, max_segment=600.0, check_step=CHECK_STEP):
@@ -620,7 +740,7 @@ def grid_steps(output_times, t_start, max_segment=600.0, check_step=CHECK_STEP):
 
 def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on, output_times,
                        segment=600.0, check_step=CHECK_STEP, tol=5e-3, tol_iter=1e-5, drift=20.0,
-                       age=21600.0, slow_iters=4) -> HybridRun | None:
+                       age=21600.0, slow_iters=4, compiled_loop=True) -> HybridRun | None:
     """Integrate the hybrid system like :func:`atticsim.hybrid.events.integrate`, compiled.
 
     Parameters
@@ -639,6 +759,9 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
         The linearisation (one per fan state, kept across switches) is renewed when a node has moved
         ``drift`` K from it, after ``age`` s, when a segment's fixed point needed more than ``slow_iters``
         iterations, or when the air flows differ from those it was made with by more than 5 %.
+    compiled_loop : bool
+        With the simple airflow form and a controller, run the switch loop compiled (:func:`run_simple`);
+        False keeps it in Python, as for the balance form (the tests hold the two equal).
 
     Returns
     -------
@@ -669,6 +792,11 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
     air_vec = np.zeros(7)
     lins = {False: new_linearisation(n_nodes, books.size), True: new_linearisation(n_nodes, books.size)}
     after_switch = False
+    if compiled_loop and need_air and airflow.kind == "simple" and controller is not None:
+        # the whole switch loop compiled (the simple form's flows need no Python solver)
+        args = (float(t_start), seg, q_step, x, books, packed, f_values, float(forcing.step), out, out_y, fans,
+                i_sensor, controller, airflow, tol, tol_iter, drift, age, lins, slow_iters)
+        return _integrate_simple(network, float(t_end), fan, args, y.size)
     while t < t_end - 1e-9:
         if need_air and t >= next_air - 1e-9:
             # (the simple air changes do not depend on the attic temperature)
