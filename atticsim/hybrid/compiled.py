@@ -17,9 +17,11 @@ design), exact for a linear network. The segment is advanced exactly for that mo
 
 Error control (our design): a remainder linear between the ends would miss the middle by c h^2 / 4, an
 error of about (2/3) h |c| h^2 / 4 = |c| h^3 / 6 in the nodes (the integral of the quadratic part it
-misses). Above ``tol`` K the segment is halved and tried again; below an eighth of it the next segment
-may be twice as long. The quadratic actually taken errs far less than that estimate: the tests against
-the reference solver measure it.
+misses). Above ``tol`` K the segment is halved and tried again (at once when, after two iterations, the
+estimate is already eight times ``tol``); below an eighth of it the next segment may be twice as long.
+The quadratic actually taken errs far less than that estimate: the tests against the reference solver
+measure it. After a switch the first segment starts at the grid spacing remembered from the previous
+switch into the same fan state.
 
 J and the cache of blocks built from it are kept per fan state from call to call, and renewed when a
 segment's fixed point needs more than ``slow_iters`` iterations, when a node has moved ``drift`` K from
@@ -29,16 +31,17 @@ Outputs and event checks are evaluated inside each accepted segment on the outpu
 apart) from the same exact solution; the energy books, whose rates are f_b(x0) + J_b z + (the same
 quadratic remainder fitted to the book rates), are integrated exactly with
 int z = G0 z0 + G1 a + G2 b + 2 G3 c. Where the sensor reaches its switching level between two check
-instants, the segment's exact solution is stepped in steps of the chain's base step (under a second) and
-the crossing is the root of a cubic Hermite interpolant of the sensor's exact values and slopes over the
-bracketing step (error of order h^4, far below a millisecond); the state there comes from the Taylor
-series of the segment's solution. (A crossing and a return within one check step are not seen, as in the
-other solvers.)
+instants, the bracket is narrowed on the segment's exact solution by a binary descent on the doubling
+chain down to its base step (under a second), and the crossing is the root of a cubic Hermite
+interpolant of the sensor's exact values and slopes over that step (error of order h^4, far below a
+millisecond); the state there comes from the Taylor series of the segment's solution. (A crossing and a
+return within one check step are not seen, as in the other solvers.)
 
 The right-hand side is :func:`atticsim.network.kernel.rhs`, a compiled mirror of
-:meth:`atticsim.network.model.AtticNetwork.derivatives` (tests hold the two equal). The Python driver
-:func:`integrate_compiled` re-solves the airflow (pure Python) between compiled calls. The reference
-solver (``atticsim.hybrid.events.integrate``) stays the accuracy standard.
+:meth:`atticsim.network.model.AtticNetwork.derivatives` (tests hold the two equal). With the simple
+airflow form the switch loop is compiled too (:func:`run_simple`); with the pressure balance the Python
+driver :func:`integrate_compiled` re-solves the airflow between compiled calls. The reference solver
+(``atticsim.hybrid.events.integrate``) stays the accuracy standard.
 """
 
 from __future__ import annotations
@@ -679,7 +682,7 @@ def _integrate_simple(network, t_end, fan, args, n_y) -> HybridRun | None:
     directions = np.array([controller.next_switch(False)[1], controller.next_switch(True)[1]], dtype=np.int64)
     passive, rated_flow, rated_power, enabled, pressure = airflow.simple_parameters()
     simple = np.array([passive, rated_flow, rated_power, 1.0 if enabled else 0.0, pressure])
-    size = int(min(out.size, _INTERVALS)) + 2
+    size = _INTERVALS + 2
     iv_t, iv_k, iv_rho = np.empty(size), np.empty(size, dtype=np.int64), np.empty(size)
     ev_t, ev_s = np.empty(size), np.empty(size)
     airs = [None] * out.size
