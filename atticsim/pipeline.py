@@ -195,13 +195,14 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         if key not in _NO_FAN_RUNS:
             while len(_NO_FAN_RUNS) >= _NO_FAN_KEEP:
                 _NO_FAN_RUNS.pop(next(iter(_NO_FAN_RUNS)))
-            _NO_FAN_RUNS[key] = one(False)
-        kept, y_kept = _NO_FAN_RUNS[key]
-        # fresh arrays and lists for this caller (the airflow states are frozen: shared)
-        without_fan = dataclasses.replace(kept, t=kept.t.copy(), y=kept.y.copy(), fan=kept.fan.copy(),
-                                          air=list(kept.air), events=list(kept.events), y_end=kept.y_end.copy(),
+            run, y_run = one(False)
+            for array in (run.t, run.y, run.fan, run.y_end, y_run):
+                array.setflags(write=False)  # shared with every caller: read-only, so none can change it
+            _NO_FAN_RUNS[key] = (run, y_run)
+        kept, y_nofan = _NO_FAN_RUNS[key]
+        # the arrays are shared (read-only); fresh lists for this caller (the airflow states are frozen)
+        without_fan = dataclasses.replace(kept, air=list(kept.air), events=list(kept.events),
                                           air_updates=list(kept.air_updates))
-        y_nofan = y_kept.copy()
     elif include_no_fan:
         without_fan, y_nofan = one(False)
     else:

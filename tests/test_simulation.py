@@ -156,3 +156,19 @@ def test_forcing_value_is_the_channel_at_gives(clear_week):
     for t in (-100.0, 0.0, 1234.5, forcing.step * 3, last - 0.25, last, last + 500.0):
         for c in range(forcing.values.shape[0]):
             assert forcing.value(c, t) == forcing.at(t)[c]
+
+
+def test_reused_no_fan_arrays_are_read_only(clear_week):
+    # the kept no-fan run is shared by every later caller; its arrays refuse writes instead of letting one
+    # caller change what the others read
+    import atticsim.pipeline as pipeline
+
+    pipeline._NO_FAN_RUNS.clear()
+    args = dict(weather=clear_week, start="2025-07-15", end="2025-07-15", reuse_no_fan=True)
+    first = run_raw(demo_scenario(["simulation.spinup_days=0", "thermostat.on=37 degC"]), **args)
+    second = run_raw(demo_scenario(["simulation.spinup_days=0", "thermostat.on=39 degC"]), **args)
+    assert second.without_fan.y is first.without_fan.y
+    with pytest.raises(ValueError):
+        second.without_fan.y[0, 0] = 0.0
+    with pytest.raises(ValueError):
+        second.y_start_nofan[0] = 0.0

@@ -68,16 +68,18 @@ class AirflowState:
 AIR_FIELDS = tuple(f.name for f in fields(AirflowState) if f.name != "path_flows")
 
 
-def stack_states(states) -> dict:
-    """A list of AirflowState -> dict of numpy arrays, one per scalar field, plus ``path_flows``
-    (shape (n, paths)) when the states carry per-path flows."""
-    # The solvers hold one state over many output rows: read each distinct state once, then index.
+def stack_states(states, names=AIR_FIELDS) -> dict:
+    """A list of AirflowState -> dict of numpy arrays, one per scalar field in ``names`` (default all),
+    plus ``path_flows`` (shape (n, paths)) when all fields are asked for and the states carry per-path
+    flows."""
+    # The solvers hold one state over long runs of output rows: read each run's state once, then repeat it.
     ids = np.fromiter(map(id, states), dtype=np.int64, count=len(states))
-    _, first, rows = np.unique(ids, return_index=True, return_inverse=True)
-    unique = [states[i] for i in first]
-    out = {name: np.array([getattr(s, name) for s in unique], dtype=float)[rows] for name in AIR_FIELDS}
-    if states and states[0].path_flows:
-        out["path_flows"] = np.array([s.path_flows for s in unique], dtype=float)[rows]
+    starts = np.flatnonzero(np.concatenate(([True], ids[1:] != ids[:-1]))) if ids.size else ids
+    lengths = np.diff(np.append(starts, ids.size))
+    runs = [states[i] for i in starts]
+    out = {name: np.repeat(np.array([getattr(s, name) for s in runs], dtype=float), lengths) for name in names}
+    if names is AIR_FIELDS and states and states[0].path_flows:
+        out["path_flows"] = np.repeat(np.array([s.path_flows for s in runs], dtype=float), lengths, axis=0)
     return out
 
 

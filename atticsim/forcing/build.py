@@ -70,10 +70,10 @@ class Forcing:
             return float(row[0])
         return float(row[i] + (x - i) * (row[i + 1] - row[i]))
 
-    def sample(self, t: np.ndarray) -> np.ndarray:
-        """Channels at many times t [s], shape (channels, len(t))."""
+    def sample(self, t: np.ndarray, channels: int | None = None) -> np.ndarray:
+        """Channels (all, or the first ``channels``) at many times t [s], shape (channels, len(t))."""
         grid = self.seconds()
-        return np.vstack([np.interp(t, grid, row) for row in self.values])
+        return np.vstack([np.interp(t, grid, row) for row in self.values[:channels]])
 
 
 def _regular_step(times: pd.DatetimeIndex, source: str) -> float:

@@ -85,7 +85,7 @@ def point_metrics(result, scenario, comfort_limit_c: float) -> dict:
     dh = degree_hours_above(ts["attic_air_c"].to_numpy(), hours, comfort_limit_c)
     ev = result.events
     on = ev[ev["fan"] == "on"]
-    start_s = [(t - t0).total_seconds() for t in on["time"]]
+    start_s = (on["time"] - t0).dt.total_seconds().to_numpy()
     th = scenario.thermostat
     hyst = abs(float(th.on) - float(th.off)) if hasattr(th, "on") and hasattr(th, "off") else None
     cop = float(getattr(getattr(scenario, "house", None), "cooling_cop", DEFAULT_COOLING_COP))
