@@ -102,8 +102,9 @@ def _jacobian(x, u, fan, air, prm, planes, ints, heat, f0, jac):
 
 @nb.njit(cache=True)
 def _lookup(h, lens, store, count, jac, s0, links):
-    """Index of the blocks over h in the cache, computing them when missing (the cache wraps around)."""
-    for i in range(count[0]):
+    """Index of the blocks over h in the cache, computing them when missing (the cache wraps around).
+    The search runs from the newest entry: the lengths just used are the likely ones."""
+    for i in range(count[0] - 1, -1, -1):
         if abs(lens[i] - h) < 1e-9:
             return i
     i = count[0]
@@ -210,7 +211,8 @@ def _relinearise(x, u, t, fan, air, prm, planes, ints, heat, f0, lin, q_step, un
     jac[:, :] = jac_all[:n]
     jac_b[:, :] = jac_all[n:]
     s0, _ = base_step(jac, q_step, unit_halvings)
-    levels = min(int(np.ceil(np.log2(max(segment, 2.0 * q_step) / s0))), links.shape[0] - 1)
+    # links up to the longest length asked for (segment, or two check steps): its highest binary digit
+    levels = min(int(np.floor(np.log2(max(segment, 2.0 * q_step) / s0) + 1e-9)), links.shape[0] - 1)
     chain_into(jac, s0, levels, links)
     meta[0], meta[1], meta[2], meta[3] = 1.0, s0, levels, t
     x_lin[:] = x
