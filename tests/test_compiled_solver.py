@@ -83,6 +83,23 @@ def test_compiled_switch_loop_gives_what_the_python_loop_gives(narrow_runs):
     assert [s.outdoor_in for s in a.air] == [s.outdoor_in for s in b.air]
 
 
+def test_compiled_switch_loop_in_cold_mode_gives_what_the_python_loop_gives():
+    # cold mode (on when the sensor falls to `on`, off when it rises to `off`): the compiled loop's levels
+    # and directions per fan state must be the controller's, as the Python loop asks it at each switch
+    sc = load_scenario(BUNGALOW, ["simulation.spinup_days=0", 'thermostat.mode="cold"', "thermostat.on=30 degC",
+                                  "thermostat.off=31 degC"])
+    end = (np.datetime64(sc.weather.start) + np.timedelta64(1, "D")).astype(str)
+    raw = run_raw(sc, start=sc.weather.start, end=end, include_no_fan=False)
+    net, forcing, ctl, per = raw.network, raw.forcing, raw.controller, raw.period
+    a, b = [compiled.integrate_compiled(net, forcing, ctl, per.t_start, per.t_end, raw.y_start_fan, False,
+                                        raw.output_times, compiled_loop=loop) for loop in (True, False)]
+    assert len(a.events) >= 2 and len(a.events) == len(b.events)
+    for ea, eb in zip(a.events, b.events):
+        assert ea[1] == eb[1] and ea[0] == pytest.approx(eb[0], abs=1e-9)
+        assert ea[2] == pytest.approx(ctl.on if ea[1] else ctl.off, abs=1e-6)
+    np.testing.assert_allclose(a.y, b.y, rtol=1e-12, atol=1e-9)
+
+
 def test_compiled_switch_loop_goes_on_when_its_interval_arrays_are_full(narrow_runs, monkeypatch):
     # run_simple returns FULL when its interval arrays are full; the driver calls it again from where it
     # stopped, and the run must be the one a single call gives
