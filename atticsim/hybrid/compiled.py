@@ -674,7 +674,7 @@ def new_linearisation(n_nodes: int, n_books: int) -> tuple:
             np.zeros(n), np.zeros(7), np.zeros((nb_, n)))
 
 
-def _integrate_simple(network, t_end, fan, args, n_y) -> HybridRun | None:
+def _integrate_simple(network, t_end, fan, args) -> HybridRun | None:
     """The rest of :func:`integrate_compiled` for the simple airflow form: :func:`run_simple`, then the
     airflow states, events and per-row records the other solvers give, built from its interval arrays."""
     (origin, seg, q_step, x, books, packed, f_values, f_step, out, out_y, fans, i_sensor, controller, airflow,
@@ -702,7 +702,7 @@ def _integrate_simple(network, t_end, fan, args, n_y) -> HybridRun | None:
             return None  # as integrate_compiled: the caller runs the window solver
         running = fan0
         for i in range(n_iv):
-            state = airflow.simple_state(float(iv_rho[i]), running)
+            state = airflow.simple_state(float(iv_rho[i]), running and airflow.enabled)  # as solve()
             k1 = int(iv_k[i + 1]) if i + 1 < n_iv else k
             airs[int(iv_k[i]):k1] = [state] * (k1 - int(iv_k[i]))
             updates.append((float(iv_t[i]), state))
@@ -801,7 +801,7 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
         # the whole switch loop compiled (the simple form's flows need no Python solver)
         args = (float(t_start), seg, q_step, x, books, packed, f_values, float(forcing.step), out, out_y, fans,
                 i_sensor, controller, airflow, tol, tol_iter, drift, age, lins, slow_iters)
-        return _integrate_simple(network, float(t_end), fan, args, y.size)
+        return _integrate_simple(network, float(t_end), fan, args)
     while t < t_end - 1e-9:
         if need_air and t >= next_air - 1e-9:
             # (the simple air changes do not depend on the attic temperature)
