@@ -132,6 +132,7 @@ def test_simple_flows_in_compiled_code_are_the_airflow_models():
             rho = compiled._simple_air(values, 3600.0, t, fan, simple, air)
             t_out = np.interp(t, [0.0, 3600.0, 7200.0], values[0])
             state = model.simple_state(rho, fan)
+            # ideal gas rho = p / (R_d T), R_d = 287.055 J/(kg K) (ISO 2533), at the interpolated outdoor air
             assert rho == pytest.approx(pressure / (287.055 * (t_out + 273.15)), rel=1e-14)
             np.testing.assert_array_equal(air, kernel.air_vector(state))
             assert state == model.solve(float("nan"), float(t_out), 2.0, fan)

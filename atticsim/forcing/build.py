@@ -46,29 +46,33 @@ class Forcing:
         """Sample instants as seconds from the first sample."""
         return np.arange(self.values.shape[1]) * self.step
 
-    def at(self, t: float) -> np.ndarray:
-        """Channels at time t [s from the first sample], linearly interpolated (clamped at the ends)."""
+    def _position(self, t: float) -> tuple[int, float]:
+        """(sample index, fraction of the way to the next sample) at t [s from the first sample], clamped
+        at the ends (fraction 0 there)."""
         x = t / self.step
         i = int(x)
         n = self.values.shape[1]
         if i >= n - 1:
-            return self.values[:, -1].copy()
+            return n - 1, 0.0
         if i < 0:
-            return self.values[:, 0].copy()
-        frac = x - i
+            return 0, 0.0
+        return i, x - i
+
+    def at(self, t: float) -> np.ndarray:
+        """Channels at time t [s from the first sample], linearly interpolated (clamped at the ends)."""
+        i, frac = self._position(t)
         v = self.values
+        if frac == 0.0:
+            return v[:, i].copy()
         return v[:, i] + frac * (v[:, i + 1] - v[:, i])
 
     def value(self, channel: int, t: float) -> float:
         """One channel at time t [s from the first sample], as :meth:`at` gives it (a float)."""
-        x = t / self.step
-        i = int(x)
+        i, frac = self._position(t)
         row = self.values[channel]
-        if i >= row.size - 1:
-            return float(row[-1])
-        if i < 0:
-            return float(row[0])
-        return float(row[i] + (x - i) * (row[i + 1] - row[i]))
+        if frac == 0.0:
+            return float(row[i])
+        return float(row[i] + frac * (row[i + 1] - row[i]))
 
     def sample(self, t: np.ndarray, channels: int | None = None) -> np.ndarray:
         """Channels (all, or the first ``channels``) at many times t [s], shape (channels, len(t))."""

@@ -330,7 +330,6 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
         while segment / 2.0**j_pref > start and j_pref < 40:
             j_pref += 1
     first_after_switch = after_switch
-    rej_at_switch = 0
     err = 0.0
 
     while t < t_end - 1e-9:
@@ -413,7 +412,7 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                         # where the next switch into this state starts: this spacing, twice it when it was
                         # the first try and far inside the tolerance (a start that is too long costs rejected
                         # segments, one too short a few more segments)
-                        grow = n_rej == rej_at_switch and err < tol / 512.0
+                        grow = n_rej == 0 and err < tol / 512.0
                         meta[4] = segment / 2.0**j_pref * (2.0 if grow else 1.0)
                         first_after_switch = False
                     # next: twice as long when well inside the tolerance (error ~ h^3)
@@ -589,16 +588,9 @@ def _simple_air(f_values, f_step, t, fan, simple, air):
     """The held flows of the simple airflow form at t into ``air`` (:data:`kernel.AIR_ORDER`); returns the
     outdoor air density. ``simple`` is ``AirflowModel.simple_parameters()``; the flows are those of
     ``AirflowModel.simple_state`` (a test holds the two equal)."""
-    x = t / f_step
-    i = int(x)
-    row = f_values[0]
-    if i >= row.size - 1:
-        t_out = row[row.size - 1]
-    elif i < 0:
-        t_out = row[0]
-    else:
-        t_out = row[i] + (x - i) * (row[i + 1] - row[i])   # as Forcing.value
-    rho = simple[4] / (287.055 * (t_out + 273.15))           # ideal gas, ISO 2533 R_d (heat_transfer.air_density)
+    u = np.empty(f_values.shape[0])
+    _forcing_at(f_values, f_step, t, u)
+    rho = kernel._air_density(u[0], simple[4])               # ideal gas (heat_transfer.air_density's twin)
     running = fan and simple[3] > 0.0
     q = simple[0] + (simple[1] if running else 0.0)          # passive air changes plus the fan's rated flow
     air[0] = rho * q                                         # outdoor air into the lower layer
@@ -665,9 +657,10 @@ _INTERVALS = 4096
 
 def new_linearisation(n_nodes: int, n_books: int) -> tuple:
     """Empty linearisation state for :func:`advance` (one per fan state, reused from call to call):
-    (J, J_b, doubling chain, block cache, cache lengths, [valid, s0, levels, t, first step], [cache count, cache index
-    of J_b G0(q)], nodes and air flows at the linearisation, J_b G0(q)); meta[4] is the grid spacing first
-    accepted after the last switch into this fan state (0: none yet), kept across linearisations."""
+    (J, J_b, doubling chain, block cache, cache lengths, [valid, s0, levels, t, first step], [cache count,
+    cache index of J_b G0(q)], nodes and air flows at the linearisation, J_b G0(q)); the first step
+    (meta[4]) is the grid spacing a switch into this fan state starts at (0: none yet), kept across
+    linearisations."""
     n, nb_ = n_nodes, n_books
     return (np.zeros((n, n)), np.zeros((nb_, n)), np.zeros((_MAX_LEVELS + 1, BLOCKS, n, n)),
             np.zeros((_CACHE, BLOCKS, n, n)), np.zeros(_CACHE), np.zeros(5), np.array([0, -1], dtype=np.int64),
@@ -680,8 +673,9 @@ def _integrate_simple(network, t_end, fan, args) -> HybridRun | None:
     (origin, seg, q_step, x, books, packed, f_values, f_step, out, out_y, fans, i_sensor, controller, airflow,
      tol, tol_iter, drift, age, lins, slow_iters) = args
     n_nodes = x.size
-    levels = np.array([controller.next_switch(False)[0], controller.next_switch(True)[0]], dtype=float)
-    directions = np.array([controller.next_switch(False)[1], controller.next_switch(True)[1]], dtype=np.int64)
+    ends = [controller.next_switch(state) for state in (False, True)]  # what ends fan off, fan on
+    levels = np.array([e[0] for e in ends], dtype=float)
+    directions = np.array([e[1] for e in ends], dtype=np.int64)
     passive, rated_flow, rated_power, enabled, pressure = airflow.simple_parameters()
     simple = np.array([passive, rated_flow, rated_power, 1.0 if enabled else 0.0, pressure])
     size = _INTERVALS + 2
