@@ -52,7 +52,8 @@ import numba as nb
 import numpy as np
 
 from atticsim import jitcache
-from atticsim.hybrid.blocks import BLOCKS, base_step, blocks_for, chain_into, matmul, matvec, matvec_add, taylor
+from atticsim.hybrid.blocks import (BLOCKS, base_step, block_mv, block_mv_add, blocks_for, chain_into, matmul, matvec,
+                                    taylor)
 from atticsim.hybrid.events import HybridRun
 from atticsim.hybrid.fast import FD_STEP  # the Python solvers' finite-difference step
 from atticsim.network import kernel
@@ -163,24 +164,24 @@ def _taylor_state(jac, z, v0, v1, c, delta, z_out, int_out):
 @nb.njit(cache=True)
 def _from_start(blk, a, b, c, out):
     """z over a step from z = 0 with remainder a + b s + c s^2: G0 a + G1 b + 2 G2 c."""
-    matvec(blk[1], a, out)
-    matvec_add(blk[2], b, 1.0, out)
-    matvec_add(blk[3], c, 2.0, out)
+    block_mv(blk, 1, a, out)
+    block_mv_add(blk, 2, b, 1.0, out)
+    block_mv_add(blk, 3, c, 2.0, out)
 
 
 @nb.njit(cache=True)
 def _step_on(blk, z, acc, v0, v1, c, z_out, acc_out):
     """One step on from (z, int z) with the remainder v0 + v1 s + c s^2 from the step's start:
     z' = Phi z + G0 v0 + G1 v1 + 2 G2 c and int z' = int z + G0 z + G1 v0 + G2 v1 + 2 G3 c."""
-    matvec(blk[0], z, z_out)
-    matvec_add(blk[1], v0, 1.0, z_out)
-    matvec_add(blk[2], v1, 1.0, z_out)
-    matvec_add(blk[3], c, 2.0, z_out)
+    block_mv(blk, 0, z, z_out)
+    block_mv_add(blk, 1, v0, 1.0, z_out)
+    block_mv_add(blk, 2, v1, 1.0, z_out)
+    block_mv_add(blk, 3, c, 2.0, z_out)
     acc_out[:] = acc
-    matvec_add(blk[1], z, 1.0, acc_out)
-    matvec_add(blk[2], v0, 1.0, acc_out)
-    matvec_add(blk[3], v1, 1.0, acc_out)
-    matvec_add(blk[4], c, 2.0, acc_out)
+    block_mv_add(blk, 1, z, 1.0, acc_out)
+    block_mv_add(blk, 2, v0, 1.0, acc_out)
+    block_mv_add(blk, 3, v1, 1.0, acc_out)
+    block_mv_add(blk, 4, c, 2.0, acc_out)
 
 
 @nb.njit(cache=True)
@@ -189,15 +190,15 @@ def _expanded(blk, a, b, c, p0, p1, p2, q0, q1, q2):
     the step adds P0 + sigma P1 + sigma^2 P2 to Phi z and Q0 + sigma Q1 + sigma^2 Q2 to G0 z in int z
     (P0 = G0 a + G1 b + 2 G2 c, P1 = G0 b + 2 G1 c, P2 = G0 c; Q with G1, G2, G3 in place of G0, G1, G2)."""
     _from_start(blk, a, b, c, p0)
-    matvec(blk[1], b, p1)
-    matvec_add(blk[2], c, 2.0, p1)
-    matvec(blk[1], c, p2)
-    matvec(blk[2], a, q0)
-    matvec_add(blk[3], b, 1.0, q0)
-    matvec_add(blk[4], c, 2.0, q0)
-    matvec(blk[2], b, q1)
-    matvec_add(blk[3], c, 2.0, q1)
-    matvec(blk[2], c, q2)
+    block_mv(blk, 1, b, p1)
+    block_mv_add(blk, 2, c, 2.0, p1)
+    block_mv(blk, 1, c, p2)
+    block_mv(blk, 2, a, q0)
+    block_mv_add(blk, 3, b, 1.0, q0)
+    block_mv_add(blk, 4, c, 2.0, q0)
+    block_mv(blk, 2, b, q1)
+    block_mv_add(blk, 3, c, 2.0, q1)
+    block_mv(blk, 2, c, q2)
 
 
 @nb.njit(cache=True)
@@ -461,20 +462,20 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             if last:
                 # the segment's end: straight from the h blocks (int z = G1 a + G2 b + 2 G3 c)
                 zt[:] = z1
-                matvec(blk[2], a, it_)
-                matvec_add(blk[3], b, 1.0, it_)
-                matvec_add(blk[4], c, 2.0, it_)
+                block_mv(blk, 2, a, it_)
+                block_mv_add(blk, 3, b, 1.0, it_)
+                block_mv_add(blk, 4, c, 2.0, it_)
                 matvec(jac_b, it_, ybt)
             elif sigma == 0.0:
                 # the first step (to the check grid) from z = 0: G0 a + G1 b + 2 G2 c, int G1 a + G2 b + 2 G3 c
                 blk_f = store[_lookup(step, lens, store, cnt, jac, s0, chain_)]
                 _from_start(blk_f, a, b, c, zt)
-                matvec(blk_f[2], a, it_)
-                matvec_add(blk_f[3], b, 1.0, it_)
-                matvec_add(blk_f[4], c, 2.0, it_)
+                block_mv(blk_f, 2, a, it_)
+                block_mv_add(blk_f, 3, b, 1.0, it_)
+                block_mv_add(blk_f, 4, c, 2.0, it_)
                 matvec(jac_b, it_, ybt)
             else:
-                matvec(blk_q[0], zs, zt)
+                block_mv(blk_q, 0, zs, zt)
                 matvec(k_q, zs, ybt)
                 s2 = sigma * sigma
                 for i in range(n):
