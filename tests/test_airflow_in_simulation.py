@@ -89,3 +89,25 @@ def test_faster_fan_cools_more_and_costs_more(weather):
 
 def test_energy_books_close_with_balance_airflow(starved):
     assert abs(starved.summary["energy_balance_error_pct"]) < 0.5
+
+
+def test_simple_state_equals_the_constructed_state():
+    # AirflowModel.simple_state fills a per-fan-state template instead of calling the frozen constructor;
+    # it must give the very state the constructor gives (an equivalence of two code paths: the flows
+    # themselves are checked against the ideal gas in test_compiled_solver)
+    from atticsim import demo_scenario
+    from atticsim.airflow.model import AirflowModel, AirflowState
+
+    model = AirflowModel(demo_scenario([]))
+    for running in (False, True, False, True):
+        for rho in (1.05, 1.2):
+            q = model.passive + (model.rated_flow if running else 0.0)
+            expected = AirflowState(outdoor_in=rho * q, house_in=0.0, attic_to_house=0.0, outdoor_flow=q,
+                                    fan_flow=model.rated_flow if running else 0.0,
+                                    fan_power=model.rated_power if running else 0.0,
+                                    in_lower=rho * q, out_upper=rho * q)
+            state = model.simple_state(rho, running)
+            assert state == expected
+            assert state is not model.simple_state(rho, running)  # a fresh object each call
+            with pytest.raises(AttributeError):
+                state.outdoor_in = 0.0  # still frozen
