@@ -111,7 +111,8 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         ts = _timeseries(net, run, f, air, attic_air, times)
         sensor_local_air = ts["sensor_local_air_c"].to_numpy()
 
-    ev_times = forcing.times[0] + pd.to_timedelta([e[0] for e in run.events], unit="s")
+    # (as one float array: a list of floats is converted element by element)
+    ev_times = forcing.times[0] + pd.to_timedelta(np.array([e[0] for e in run.events], dtype=float), unit="s")
     events = pd.DataFrame({
         "time": ev_times,
         "fan": ["on" if e[1] else "off" for e in run.events],
