@@ -123,29 +123,40 @@ def to_si(value, kind: str) -> float:
 
 
 def _convert(number: float, unit: str, kind: str, original) -> float:
+    # Trade shorthand "ft2", "m3/s" -> "ft**2", "m**3/s".
+    unit = re.sub(r"(?<=[A-Za-z])([23])(?![\d.])", r"**\1", unit)
+    outcome, value = _pint_convert(number, unit, kind)
+    if outcome == "unknown":
+        raise UnitError(f"unknown unit {unit!r} in {original!r}")
+    if outcome == "dimension":
+        raise UnitError(f"expected {KINDS[kind][1]} such as '{_example(kind)}', got {original!r} (unit {unit!r})")
+    return value
+
+
+@lru_cache(maxsize=4096)
+def _pint_convert(number: float, unit: str, kind: str) -> tuple:
+    """("ok", value in the SI unit of kind), ("unknown", None) or ("dimension", None). Kept per number,
+    unit and kind: a study's points repeat the same scenario values, and pint parses each unit anew
+    (about 0.1 ms a value)."""
     import pint
 
     ureg = registry()
-    target, description = KINDS[kind]
-    # Trade shorthand "ft2", "m3/s" -> "ft**2", "m**3/s".
-    unit = re.sub(r"(?<=[A-Za-z])([23])(?![\d.])", r"**\1", unit)
+    target = KINDS[kind][0]
     try:
         q = ureg.Quantity(number, unit)
     except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
-            TypeError, ValueError, AssertionError) as exc:
-        raise UnitError(f"unknown unit {unit!r} in {original!r}") from exc
+            TypeError, ValueError, AssertionError):
+        return "unknown", None
     try:
         if kind == "temperature_difference":
             unit_str = str(q.units)
             # A difference written in an absolute scale ("5 degC", "9 degF") means a difference.
             if unit_str in ("degree_Celsius", "degree_Fahrenheit"):
                 delta = {"degree_Celsius": 1.0, "degree_Fahrenheit": 5.0 / 9.0}[unit_str]
-                return number * delta
-        return float(q.to(target).magnitude)
-    except pint.errors.DimensionalityError as exc:
-        raise UnitError(
-            f"expected {description} such as '{_example(kind)}', got {original!r} (unit {unit!r})"
-        ) from exc
+                return "ok", number * delta
+        return "ok", float(q.to(target).magnitude)
+    except pint.errors.DimensionalityError:
+        return "dimension", None
 
 
 def _example(kind: str) -> str:
