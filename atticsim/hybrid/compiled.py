@@ -18,7 +18,9 @@ design), exact for a linear network. The segment is advanced exactly for that mo
 Error control (our design): a remainder linear between the ends would miss the middle by c h^2 / 4, an
 error of about (2/3) h |c| h^2 / 4 = |c| h^3 / 6 in the nodes (the integral of the quadratic part it
 misses). Above ``tol`` K the segment is halved and tried again (at once when, after two iterations, the
-estimate is already eight times ``tol``); below an eighth of it the next segment may be twice as long.
+estimate is already eight times ``tol``); below an eighth of it the next segment may be twice as long
+(for a segment cut short of the preferred length, by the grid after a switch, a weather sample or the
+end, the estimate is first scaled to the preferred length by (h_pref / h)^3).
 The quadratic actually taken errs far less than that estimate: the tests against the reference solver
 measure it. After a switch the first segment starts at the grid spacing remembered from the previous
 switch into the same fan state.
@@ -409,15 +411,20 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 err *= h * h * h / 6.0
                 if err <= tol or h <= 1.0:
                     n_seg += 1
+                    # the error this curvature gives over the preferred length: a segment cut short (by the
+                    # grid after a switch, a weather sample or the end) errs less by (h / h_pref)^3 and on
+                    # its own would let the next segment double too soon
+                    h_pref = segment / 2.0**j_pref
+                    err_pref = err * (h_pref / h) ** 3 if h < h_pref else err
                     if first_after_switch:
                         # where the next switch into this state starts: this spacing, twice it when it was
                         # the first try and far inside the tolerance (a start that is too long costs rejected
                         # segments, one too short a few more segments)
-                        grow = n_rej == 0 and err < tol / 512.0
-                        meta[4] = segment / 2.0**j_pref * (2.0 if grow else 1.0)
+                        grow = n_rej == 0 and err_pref < tol / 512.0
+                        meta[4] = h_pref * (2.0 if grow else 1.0)
                         first_after_switch = False
                     # next: twice as long when well inside the tolerance (error ~ h^3)
-                    if err < 0.125 * tol and j_pref > 0:
+                    if err_pref < 0.125 * tol and j_pref > 0:
                         j_pref -= 1
                     break
             n_rej += 1
