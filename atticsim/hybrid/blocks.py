@@ -64,19 +64,8 @@ def matvec(a, x, out):
 
 
 @nb.njit(cache=True, fastmath=_SUMS)
-def matvec_add(a, x, scale, out):
-    """out += scale * (a @ x)."""
-    for i in range(a.shape[0]):
-        s = 0.0
-        for m in range(x.shape[0]):
-            s += a[i, m] * x[m]
-        out[i] += scale * s
-
-
-@nb.njit(cache=True, fastmath=_SUMS)
 def block_mv(blk, k, x, out):
-    """out = blk[k] @ x, for an array of blocks (no view of blk[k] is made: a view's reference counting
-    costs about as much as the product at n = 10)."""
+    """out = blk[k] @ x, for an array of blocks (indexed in place: no view of blk[k] is made)."""
     for i in range(blk.shape[1]):
         s = 0.0
         for m in range(x.shape[0]):
