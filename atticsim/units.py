@@ -137,7 +137,7 @@ def _convert(number: float, unit: str, kind: str, original) -> float:
 def _pint_convert(number: float, unit: str, kind: str) -> tuple:
     """("ok", value in the SI unit of kind), ("unknown", None) or ("dimension", None). Kept per number,
     unit and kind: a study's points repeat the same scenario values, and pint parses each unit anew
-    (about 0.1 ms a value)."""
+    (planning a 1000-point study spent some 1.9 s, 0.09 ms a value, in these conversions)."""
     import pint
 
     ureg = registry()
