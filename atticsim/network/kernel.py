@@ -202,12 +202,12 @@ def _heat_table(power):
     return heat, HEAT_T_MIN, HEAT_STEP, error
 
 
-_AIR_FIELDS = operator.attrgetter(*AIR_ORDER)
+_AIR_ORDER_VALUES = operator.attrgetter(*AIR_ORDER)  # (AIR_ORDER's fields of an AirflowState, as a tuple)
 
 
 def air_vector(air) -> np.ndarray:
     """The air flows :func:`rhs` reads, from an AirflowState: float64[7] in :data:`AIR_ORDER`."""
-    return np.array(_AIR_FIELDS(air), dtype=float)
+    return np.array(_AIR_ORDER_VALUES(air), dtype=float)
 
 
 # --- scalar helpers ------------------------------------------------------------------------------------
