@@ -53,7 +53,7 @@ def matmul(a, b, out):
 _SUMS = {"reassoc", "contract"}
 
 
-@nb.njit(cache=True, fastmath=_SUMS)
+@nb.njit(cache=True, fastmath=_SUMS, _nrt=False)
 def matvec(a, x, out):
     """out = a @ x."""
     for i in range(a.shape[0]):
@@ -63,7 +63,7 @@ def matvec(a, x, out):
         out[i] = s
 
 
-@nb.njit(cache=True, fastmath=_SUMS)
+@nb.njit(cache=True, fastmath=_SUMS, _nrt=False)
 def block_mv(blk, k, x, out):
     """out = blk[k] @ x, for an array of blocks (indexed in place: no view of blk[k] is made)."""
     for i in range(blk.shape[1]):
@@ -73,7 +73,7 @@ def block_mv(blk, k, x, out):
         out[i] = s
 
 
-@nb.njit(cache=True, fastmath=_SUMS)
+@nb.njit(cache=True, fastmath=_SUMS, _nrt=False)
 def block_mv_add(blk, k, x, scale, out):
     """out += scale * (blk[k] @ x), as :func:`block_mv`."""
     for i in range(blk.shape[1]):

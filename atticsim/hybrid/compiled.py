@@ -72,16 +72,16 @@ _CACHE = 64
 DONE, SWITCH, OFF_GRID, FAILED, FULL = 0, 1, -1, -2, 2
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, _nrt=False)
 def _forcing_at(values, step, t, u):
     """Forcing channels at t [s], linear between samples, clamped at the ends (as Forcing.at)."""
     n = values.shape[1]
     x = t / step
     i = int(x)
-    if i >= n - 1:
-        u[:] = values[:, n - 1]
-    elif i < 0:
-        u[:] = values[:, 0]
+    if i >= n - 1 or i < 0:
+        j = n - 1 if i >= n - 1 else 0
+        for c in range(values.shape[0]):
+            u[c] = values[c, j]
     else:
         frac = x - i
         for c in range(values.shape[0]):
@@ -117,7 +117,21 @@ def _lookup(h, lens, store, count, jac, s0, links):
     return i
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, _nrt=False)
+def _assign(dst, src):
+    """dst[:] = src, element by element (a slice assignment makes a view, with reference counting)."""
+    for i in range(dst.size):
+        dst[i] = src[i]
+
+
+@nb.njit(cache=True, _nrt=False)
+def _zero(dst):
+    """dst[:] = 0."""
+    for i in range(dst.size):
+        dst[i] = 0.0
+
+
+@nb.njit(cache=True, _nrt=False)
 def _cubic_root(g_lo, d_lo, g_hi, d_hi, h):
     """Root in [0, 1] of the cubic Hermite interpolant (values g, slopes d per unit time, step h) with
     g_lo < 0 <= g_hi, by bisection to 1e-12."""
@@ -163,7 +177,7 @@ def _taylor_state(jac, z, v0, v1, c, delta, z_out, int_out):
             int_out[i] += coef_i * term[i]
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, _nrt=False)
 def _from_start(blk, a, b, c, out):
     """z over a step from z = 0 with remainder a + b s + c s^2: G0 a + G1 b + 2 G2 c."""
     block_mv(blk, 1, a, out)
@@ -171,7 +185,7 @@ def _from_start(blk, a, b, c, out):
     block_mv_add(blk, 3, c, 2.0, out)
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, _nrt=False)
 def _step_on(blk, z, acc, v0, v1, c, z_out, acc_out):
     """One step on from (z, int z) with the remainder v0 + v1 s + c s^2 from the step's start:
     z' = Phi z + G0 v0 + G1 v1 + 2 G2 c and int z' = int z + G0 z + G1 v0 + G2 v1 + 2 G3 c."""
@@ -179,14 +193,15 @@ def _step_on(blk, z, acc, v0, v1, c, z_out, acc_out):
     block_mv_add(blk, 1, v0, 1.0, z_out)
     block_mv_add(blk, 2, v1, 1.0, z_out)
     block_mv_add(blk, 3, c, 2.0, z_out)
-    acc_out[:] = acc
+    for i in range(acc.size):
+        acc_out[i] = acc[i]
     block_mv_add(blk, 1, z, 1.0, acc_out)
     block_mv_add(blk, 2, v0, 1.0, acc_out)
     block_mv_add(blk, 3, v1, 1.0, acc_out)
     block_mv_add(blk, 4, c, 2.0, acc_out)
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, _nrt=False)
 def _expanded(blk, a, b, c, p0, p1, p2, q0, q1, q2):
     """Per-segment vectors of a step from sigma with the remainder a + b s + c s^2 from the segment's start:
     the step adds P0 + sigma P1 + sigma^2 P2 to Phi z and Q0 + sigma Q1 + sigma^2 Q2 to G0 z in int z
@@ -224,7 +239,7 @@ def _relinearise(x, u, t, fan, air, prm, planes, ints, heat, f0, lin, q_step, un
     cnt[1] = -1    # J_b G0(q): to be formed
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, _nrt=False)
 def _air_close(air, air_lin):
     """The held air flows within 5 % of those at the linearisation (the propagator need only be near the
     true Jacobian: each segment's remainder is matched to the true derivatives)."""
@@ -234,7 +249,7 @@ def _air_close(air, air_lin):
     return True
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, _nrt=False)
 def _max_change(p, q):
     """max |p - q|, NaN when any is NaN (a diverging iteration never counts as converged)."""
     change = 0.0
@@ -353,14 +368,14 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
         t_pref = origin + (math.floor((t - origin) / h_pref + 1e-9) + 1.0) * h_pref
         t_w = (math.floor(t / f_step + 1e-9) + 1.0) * f_step
         h = min(t_pref, t_w, t_end) - t
-        a[:] = f0[:n]
+        _assign(a, f0)
         # --- the segment: fixed point for the remainder's b and c (true values at its middle and end), then
         # the error check; halved until accepted
         while True:
             blk = store[_lookup(h, lens, store, cnt, jac, s0, chain_)]
             blk_m = store[_lookup(0.5 * h, lens, store, cnt, jac, s0, chain_)]
-            b[:] = b_prev
-            c[:] = c_prev
+            _assign(b, b_prev)
+            _assign(c, c_prev)
             _from_start(blk, a, b, c, z1)
             _from_start(blk_m, a, b, c, zm)
             _forcing_at(f_values, f_step, t + h, u1)
@@ -393,8 +408,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 _from_start(blk, a, b, c, z1n)
                 _from_start(blk_m, a, b, c, zmn)
                 change = max(_max_change(z1n, z1), _max_change(zmn, zm))
-                z1[:] = z1n
-                zm[:] = zmn
+                _assign(z1, z1n)
+                _assign(zm, zmn)
                 if change < tol_iter:
                     converged = True
                     break
@@ -455,8 +470,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             matvec(jac_b, q1, r1b)
             matvec(jac_b, q2, r2)
         sigma = 0.0
-        zs[:] = 0.0
-        yb[:] = 0.0
+        _zero(zs)
+        _zero(yb)
         g_prev = (x[i_sensor] - level) * direction
         crossed = False
         step = 0.0
@@ -468,7 +483,7 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 last = True
             if last:
                 # the segment's end: straight from the h blocks (int z = G1 a + G2 b + 2 G3 c)
-                zt[:] = z1
+                _assign(zt, z1)
                 block_mv(blk, 2, a, it_)
                 block_mv_add(blk, 3, b, 1.0, it_)
                 block_mv_add(blk, 4, c, 2.0, it_)
@@ -506,8 +521,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                     out_y[n + i, k] = (books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * s_new) * s_new) * s_new
                                        + ybt[i])
                 k += 1
-            zs[:] = zt
-            yb[:] = ybt
+            _assign(zs, zt)
+            _assign(yb, ybt)
             sigma = s_new
         if not crossed:
             for i in range(nb_):
@@ -515,8 +530,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             for i in range(n):
                 x[i] += z1[i]
             t = t + h
-            f0[:] = f1
-            u0[:] = u1
+            _assign(f0, f1)
+            _assign(u0, u1)
             for i in range(n):
                 b_prev[i] = b[i] + 2.0 * c[i] * h   # the remainder's slope and curvature carried on
                 c_prev[i] = c[i]
@@ -527,7 +542,7 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
         # bracket), then a cubic Hermite root in the last base step. int z is kept from sigma on (the
         # books' part up to sigma is yb).
         s_hi = sigma + step
-        zi[:] = 0.0
+        _zero(zi)
         g_lo = (x[i_sensor] + zs[i_sensor] - level) * direction
         lev = int(meta[2])
         while lev > 0 and s0 * 2.0**lev > step + 1e-9:
@@ -541,8 +556,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 _step_on(chain_[lev], zs, zi, v0, v1, c, zt, it_)
                 g_hi = (x[i_sensor] + zt[i_sensor] - level) * direction
                 if g_hi < 0.0:
-                    zs[:] = zt
-                    zi[:] = it_
+                    _assign(zs, zt)
+                    _assign(zi, it_)
                     g_lo = g_hi
                     sigma += hl
             lev -= 1
@@ -574,8 +589,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                     zi[i] += tmp[i]
                 sigma += delta
                 break
-            zi[:] = it_
-            zs[:] = zt
+            _assign(zi, it_)
+            _assign(zs, zt)
             g_lo = g_hi
             sigma += hs
         for i in range(nb_):

@@ -326,7 +326,7 @@ def _self_heating(t_s, fan, prm, heat):
     return heat[row, i] + f * (heat[row, i + 1] - heat[row, i])
 
 
-@numba.njit(cache=True, **_JIT)
+@numba.njit(cache=True, _nrt=False, **_JIT)
 def rhs(x, u, fan, air, prm, planes, ints, heat, out):
     """Node temperature derivatives [K/s] then the books' rates [W] at one state, written into ``out``.
 
