@@ -209,6 +209,15 @@ def _from_start(blk, a, b, c, out):
 
 
 @nb.njit(cache=True, _nrt=False)
+def _with_g0a(blk, g0a, b, c, out):
+    """:func:`_from_start` with G0 a given (the same sums): g0a + G1 b + 2 G2 c."""
+    for i in range(out.size):
+        out[i] = g0a[i]
+    block_mv_add(blk, 2, b, 1.0, out)
+    block_mv_add(blk, 3, c, 2.0, out)
+
+
+@nb.njit(cache=True, _nrt=False)
 def _step_on(blk, z, acc, v0, v1, c, z_out, acc_out):
     """One step on from (z, int z) with the remainder v0 + v1 s + c s^2 from the step's start:
     z' = Phi z + G0 v0 + G1 v1 + 2 G2 c and int z' = int z + G0 z + G1 v0 + G2 v1 + 2 G3 c."""
@@ -317,6 +326,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     c_prev = np.zeros(n)
     z1 = np.empty(n)
     zm = np.empty(n)
+    g0a = np.empty(n)
+    g0a_m = np.empty(n)
     z1n = np.empty(n)
     zmn = np.empty(n)
     xe = np.empty(n)
@@ -399,8 +410,10 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             blk_m = store[_lookup(0.5 * h, lens, store, cnt, jac, s0, chain_)]
             _assign(b, b_prev)
             _assign(c, c_prev)
-            _from_start(blk, a, b, c, z1)
-            _from_start(blk_m, a, b, c, zm)
+            block_mv(blk, 1, a, g0a)        # G0 a over h and h / 2: fixed through the iterations
+            block_mv(blk_m, 1, a, g0a_m)
+            _with_g0a(blk, g0a, b, c, z1)
+            _with_g0a(blk_m, g0a_m, b, c, zm)
             _forcing_at(f_values, f_step, t + h, u1)
             _forcing_at(f_values, f_step, t + 0.5 * h, um)
             converged = False
@@ -429,8 +442,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                         err = max(err, abs(c[i]))
                     if err * h * h * h / 6.0 > 8.0 * tol:
                         break
-                _from_start(blk, a, b, c, z1n)
-                _from_start(blk_m, a, b, c, zmn)
+                _with_g0a(blk, g0a, b, c, z1n)
+                _with_g0a(blk_m, g0a_m, b, c, zmn)
                 change = max(_max_change(z1n, z1), _max_change(zmn, zm))
                 # converged when the change, or the error left estimated from the contraction rate
                 # theta = change / change_prev, theta / (1 - theta) change, is below tol_iter (the stopping
