@@ -114,6 +114,31 @@ def test_compiled_switch_loop_goes_on_when_its_interval_arrays_are_full(narrow_r
     np.testing.assert_array_equal(pieces.fan, whole.fan)
     assert [u[0] for u in pieces.air_updates] == [u[0] for u in whole.air_updates]
     assert pieces.air == whole.air
+    for run in (whole, pieces):
+        assert_air_runs_describe_air(run)
+
+
+def assert_air_runs_describe_air(run):
+    """HybridRun.air_runs: each run starts where the held state changes, with that very state, and
+    stack_states reads the same arrays from it as from the per-row list."""
+    from atticsim.airflow.model import stack_states
+
+    starts, states = run.air_runs
+    ids = np.array([id(s) for s in run.air])
+    changes = np.flatnonzero(np.concatenate(([True], ids[1:] != ids[:-1])))
+    np.testing.assert_array_equal(starts, changes)
+    assert all(run.air[i] is s for i, s in zip(starts, states))
+    given, found = stack_states(run.air, runs=run.air_runs), stack_states(run.air)
+    assert given.keys() == found.keys()
+    for name in found:
+        np.testing.assert_array_equal(given[name], found[name])
+
+
+def test_air_runs_of_the_compiled_switch_loop(narrow_runs):
+    _, fast = narrow_runs
+    run = fast.with_fan
+    assert run.air_runs is not None and len(run.air_runs[0]) > 50
+    assert_air_runs_describe_air(run)
 
 
 def test_simple_flows_in_compiled_code_are_the_airflow_models():

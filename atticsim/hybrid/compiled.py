@@ -754,6 +754,7 @@ def _integrate_simple(network, t_end, fan, args) -> HybridRun | None:
     ev_t, ev_s = np.empty(size), np.empty(size)
     airs = [None] * out.size
     events, updates = [], []
+    run_starts, run_states = [], []  # the runs of one held state in airs (HybridRun.air_runs)
     t, k, after, calls = origin, 0, False, 0
     state = None
     while True:
@@ -768,8 +769,11 @@ def _integrate_simple(network, t_end, fan, args) -> HybridRun | None:
         running = fan0
         for i in range(n_iv):
             state = airflow.simple_state(float(iv_rho[i]), running and airflow.enabled)  # as solve()
-            k1 = int(iv_k[i + 1]) if i + 1 < n_iv else k
-            airs[int(iv_k[i]):k1] = [state] * (k1 - int(iv_k[i]))
+            k0, k1 = int(iv_k[i]), (int(iv_k[i + 1]) if i + 1 < n_iv else k)
+            if k1 > k0:
+                airs[k0:k1] = [state] * (k1 - k0)
+                run_starts.append(k0)
+                run_states.append(state)
             updates.append((float(iv_t[i]), state))
             running = not running
         events.extend((float(ev_t[e]), bool(fan0) != (e % 2 == 0), float(ev_s[e])) for e in range(n_ev))
@@ -779,10 +783,15 @@ def _integrate_simple(network, t_end, fan, args) -> HybridRun | None:
     if k < out.size and abs(out[k] - t) < 1e-6:
         out_y[:n_nodes, k], out_y[n_nodes:, k] = x, books
         fans[k], airs[k] = fan, state  # (as the Python loop: the flows held last)
+        if not run_states or run_states[-1] is not state:
+            run_starts.append(k)
+            run_states.append(state)
         k += 1
+    starts = np.array(run_starts, dtype=np.int64)
+    starts.setflags(write=False)
     return HybridRun(t=out[:k].copy(), y=out_y if k == out.size else out_y[:, :k].copy(), fan=fans[:k],
                      air=airs[:k], events=events, y_end=np.concatenate([x, books]), n_rhs=calls,
-                     air_updates=updates)
+                     air_updates=updates, air_runs=(starts, run_states))
 
 
 def grid_steps(output_times, t_start, max_segment=600.0, check_step=CHECK_STEP):

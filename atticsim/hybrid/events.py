@@ -44,6 +44,9 @@ class HybridRun:
         Right-hand-side evaluations (cost figure).
     air_updates : list
         (time [s], AirflowState) at every airflow solve.
+    air_runs : tuple or None
+        (row starts, states): where each run of one held state begins in ``air`` (int array, read-only)
+        and its state, when the solver records them (the compiled switch loop); None otherwise.
     """
 
     t: np.ndarray
@@ -54,6 +57,7 @@ class HybridRun:
     y_end: np.ndarray
     n_rhs: int
     air_updates: list
+    air_runs: tuple | None = None
 
 
 @one_blas_thread

@@ -101,13 +101,13 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
     if summary_only:
         # what the summary reads: the outdoor air, the flows the sensor's placement and the airflow figures use
         f = forcing.sample(run.t, channels=1)
-        air = stack_states(run.air, names=("fan_flow", "in_lower", "outdoor_flow"))
+        air = stack_states(run.air, names=("fan_flow", "in_lower", "outdoor_flow"), runs=run.air_runs)
         sensor_local_air = net.sensor_local(temps, f, run.fan, SimpleNamespace(**air)).t_air
         ts = pd.DataFrame({"attic_air_c": attic_air, "fan_on": run.fan.astype(int)},
                           index=pd.DatetimeIndex(times, name="time"))
     else:
         f = forcing.sample(run.t)
-        air = stack_states(run.air)
+        air = stack_states(run.air, runs=run.air_runs)
         ts = _timeseries(net, run, f, air, attic_air, times)
         sensor_local_air = ts["sensor_local_air_c"].to_numpy()
 
