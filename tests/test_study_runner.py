@@ -116,3 +116,25 @@ def test_dask_backend_gives_the_local_table(reference, tmp_path):
     dask_table = pd.read_csv(tmp_path / "dask" / "points.csv")
     local_table = pd.read_csv(reference.out / "points.csv")
     pd.testing.assert_frame_equal(dask_table, local_table, check_exact=True)
+
+
+def test_run_point_restores_the_garbage_collector(reference):
+    # run_point holds off cyclic collection while a point runs (speed); it must hand the collector back as
+    # it found it, on success and on a failed point alike
+    import gc
+
+    from atticsim.study.runner import plan_study, run_point
+
+    plan = plan_study(hysteresis_study())
+    task = plan.points[0].task(plan.study)
+    bad = dict(task, scenario=None)  # fails inside the point
+    was = gc.isenabled()
+    try:
+        for enabled in (True, False):
+            (gc.enable if enabled else gc.disable)()
+            for t in (task, bad):
+                out = run_point(t)
+                assert out["status"] == ("ok" if t is task else "error")
+                assert gc.isenabled() == enabled
+    finally:
+        (gc.enable if was else gc.disable)()

@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import concurrent.futures as cf
 import datetime as _dt
+import gc
 import hashlib
 import json
 import math
@@ -124,6 +125,11 @@ def run_point(task: dict) -> dict:
     """
     t = time.perf_counter()
     out = {"index": task["index"], "key": task["key"], "status": "ok", "error": None, "summary": {}, "metrics": {}}
+    # No cyclic garbage collection while the point runs: it makes tens of thousands of short-lived objects
+    # (freed by reference counting), which otherwise set off full collections that scan every object the
+    # worker holds (measured: about 9 ms of a 0.28 s chattering summer point). Collection resumes after.
+    collecting = gc.isenabled()
+    gc.disable()
     try:
         from atticsim.pipeline import simulate
 
@@ -136,6 +142,9 @@ def run_point(task: dict) -> dict:
     except Exception as exc:  # a failed point is recorded, the study goes on
         out["status"] = "error"
         out["error"] = f"{type(exc).__name__}: {str(exc).splitlines()[0] if str(exc) else ''}"
+    finally:
+        if collecting:
+            gc.enable()
     out["elapsed_s"] = time.perf_counter() - t
     return out
 
