@@ -211,8 +211,7 @@ def _from_start(blk, a, b, c, out):
 @nb.njit(cache=True, _nrt=False)
 def _with_g0a(blk, g0a, b, c, out):
     """:func:`_from_start` with G0 a given (the same sums): g0a + G1 b + 2 G2 c."""
-    for i in range(out.size):
-        out[i] = g0a[i]
+    _assign(out, g0a)
     block_mv_add(blk, 2, b, 1.0, out)
     block_mv_add(blk, 3, c, 2.0, out)
 
@@ -225,8 +224,7 @@ def _step_on(blk, z, acc, v0, v1, c, z_out, acc_out):
     block_mv_add(blk, 1, v0, 1.0, z_out)
     block_mv_add(blk, 2, v1, 1.0, z_out)
     block_mv_add(blk, 3, c, 2.0, z_out)
-    for i in range(acc.size):
-        acc_out[i] = acc[i]
+    _assign(acc_out, acc)
     block_mv_add(blk, 1, z, 1.0, acc_out)
     block_mv_add(blk, 2, v0, 1.0, acc_out)
     block_mv_add(blk, 3, v1, 1.0, acc_out)
