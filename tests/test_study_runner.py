@@ -118,7 +118,7 @@ def test_dask_backend_gives_the_local_table(reference, tmp_path):
     pd.testing.assert_frame_equal(dask_table, local_table, check_exact=True)
 
 
-def test_run_point_restores_the_garbage_collector(reference):
+def test_run_point_restores_the_garbage_collector():
     # run_point holds off cyclic collection while a point runs (speed); it must hand the collector back as
     # it found it, on success and on a failed point alike
     import gc

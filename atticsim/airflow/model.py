@@ -76,15 +76,15 @@ def stack_states(states, names=AIR_FIELDS, runs=None) -> dict:
     (``HybridRun.air_runs``), which saves finding them."""
     # The solvers hold one state over long runs of output rows: read each run's state once, then repeat it.
     if runs is not None:
-        starts, runs = runs
+        starts, held = runs
     else:
         ids = np.fromiter(map(id, states), dtype=np.int64, count=len(states))
         starts = np.flatnonzero(np.concatenate(([True], ids[1:] != ids[:-1]))) if ids.size else ids
-        runs = [states[i] for i in starts]
+        held = [states[i] for i in starts]
     lengths = np.diff(np.append(starts, len(states)))
-    out = {name: np.repeat(np.array([getattr(s, name) for s in runs], dtype=float), lengths) for name in names}
+    out = {name: np.repeat(np.array([getattr(s, name) for s in held], dtype=float), lengths) for name in names}
     if names is AIR_FIELDS and states and states[0].path_flows:
-        out["path_flows"] = np.repeat(np.array([s.path_flows for s in runs], dtype=float), lengths, axis=0)
+        out["path_flows"] = np.repeat(np.array([s.path_flows for s in held], dtype=float), lengths, axis=0)
     return out
 
 
