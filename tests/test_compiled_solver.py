@@ -165,10 +165,10 @@ def test_simple_flows_in_compiled_code_are_the_airflow_models():
 
 def test_grid_steps():
     t0 = 1000.0
-    assert compiled.grid_steps(np.append(np.arange(t0, t0 + 3600, 60.0), t0 + 3601), t0) == (60.0, 60.0, 600.0)
-    assert compiled.grid_steps(np.append(np.arange(t0, t0 + 7200, 300.0), t0 + 7200), t0) == (300.0, 60.0, 600.0)
+    assert compiled.grid_steps(np.append(np.arange(t0, t0 + 3600, 60.0), t0 + 3601), t0) == (60.0, 60.0, 1200.0)
+    assert compiled.grid_steps(np.append(np.arange(t0, t0 + 7200, 300.0), t0 + 7200), t0) == (300.0, 60.0, 1200.0)
     assert compiled.grid_steps(np.arange(t0, t0 + 7200, 900.0), t0) == (900.0, 60.0, 900.0)
-    assert compiled.grid_steps(np.array([t0 + 86400.0]), t0) == (60.0, 60.0, 600.0)  # spin-up: the end only
+    assert compiled.grid_steps(np.array([t0 + 86400.0]), t0) == (60.0, 60.0, 1200.0)  # spin-up: the end only
     assert compiled.grid_steps(np.array([t0, t0 + 60, t0 + 100, t0 + 200]), t0) is None
     assert compiled.grid_steps(np.arange(t0 + 30, t0 + 3600, 60.0), t0) is None  # not from the start
 

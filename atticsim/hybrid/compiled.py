@@ -16,8 +16,10 @@ design), exact for a linear network. The segment is advanced exactly for that mo
     z(h) = G0 a + G1 b + 2 G2 c      (implicit through b and c: fixed point to ``tol_iter`` K).
 
 The fixed point stops when its last change, or the error left that the contraction rate implies, is below
-``tol_iter``; the rates at the middle and the end, taken at the previous iterate, are then carried to the
-accepted one by the linear model (J z), so that the next segment starts from consistent rates.
+``tol_iter`` (at the first iteration the rate measured on earlier segments stands in, so that a segment
+whose start was well predicted needs one iteration); the rates at the middle and the end, taken at the
+previous iterate, are then carried to the accepted one by the linear model (J z), so that the next segment
+starts from consistent rates.
 
 Error control (our design): a remainder linear between the ends would miss the middle by c h^2 / 4, an
 error of about (2/3) h |c| h^2 / 4 = |c| h^3 / 6 in the nodes (the integral of the quadratic part it
@@ -69,6 +71,8 @@ jitcache.route()  # this module's compiled functions cache in atticsim's own fol
 #: Largest spacing of the sensor checks inside a segment [s] (a crossing and a return within less than
 #: this is not seen; the Python solvers check at the same spacing).
 CHECK_STEP = 60.0
+#: Longest segment [s] (a multiple of the output step; weather samples and switches cut segments shorter).
+SEGMENT = 1200.0
 #: Blocks kept per linearisation (step lengths met repeatedly: segment, half segment, check step...).
 _CACHE = 64
 
@@ -381,6 +385,7 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             j_pref += 1
     first_after_switch = after_switch
     err = 0.0
+    eta = 1.0
 
     while t < t_end - 1e-9:
         # renew the linearisation when the nodes have moved or it is old
@@ -416,6 +421,9 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             _forcing_at(f_values, f_step, t + 0.5 * h, um)
             converged = False
             change_prev = math.inf
+            # the error the first iteration leaves is estimated with the contraction of earlier segments
+            # (1 at the start of a call: no estimate yet)
+            eta = max(eta, 1e-16) ** 0.8
             for iters in range(1, 31):
                 for i in range(n):
                     xe[i] = x[i] + z1[i]
@@ -444,11 +452,14 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 _with_g0a(blk_m, g0a_m, b, c, zmn)
                 change = max(_max_change(z1n, z1), _max_change(zmn, zm))
                 # converged when the change, or the error left estimated from the contraction rate
-                # theta = change / change_prev, theta / (1 - theta) change, is below tol_iter (the stopping
-                # rule of simplified Newton iterations, Hairer & Wanner, Solving ODEs II, sect. IV.8; from
-                # memory)
-                if change < tol_iter or (iters >= 2 and change < change_prev
-                                         and change * change < tol_iter * (change_prev - change)):
+                # theta = change / change_prev, eta change with eta = theta / (1 - theta), is below tol_iter;
+                # at the first iteration eta is the last one measured, raised to the power 0.8 per segment so
+                # that it drifts back towards 1 until measured again (the stopping rule of simplified Newton
+                # iterations and its carried rate, Hairer & Wanner, Solving ODEs II, sect. IV.8; from memory)
+                if iters >= 2:
+                    theta = change / change_prev
+                    eta = theta / (1.0 - theta) if theta < 1.0 else 1.0
+                if change < tol_iter or eta * change < tol_iter:
                     converged = True
                     # the rates were taken at the previous iterate: carry them to the accepted one by the
                     # linear model (the next segment starts from f1)
@@ -792,7 +803,7 @@ def _integrate_simple(network, t_end, fan, args) -> HybridRun | None:
                      air_updates=updates, air_runs=(starts, run_states))
 
 
-def grid_steps(output_times, t_start, max_segment=600.0, check_step=CHECK_STEP):
+def grid_steps(output_times, t_start, max_segment=SEGMENT, check_step=CHECK_STEP):
     """(output step, check step, segment) for outputs on a regular grid from t_start (the last instant,
     the period end, may be off it); None when the outputs are not on one grid."""
     out = np.asarray(output_times, dtype=float)
@@ -816,8 +827,8 @@ def grid_steps(output_times, t_start, max_segment=600.0, check_step=CHECK_STEP):
 
 
 def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on, output_times,
-                       segment=600.0, check_step=CHECK_STEP, tol=5e-3, tol_iter=1e-5, drift=20.0,
-                       age=21600.0, slow_iters=4, compiled_loop=True) -> HybridRun | None:
+                       segment=SEGMENT, check_step=CHECK_STEP, tol=2e-2, tol_iter=3e-5, drift=40.0,
+                       age=21600.0, slow_iters=6, compiled_loop=True) -> HybridRun | None:
     """Integrate the hybrid system like :func:`atticsim.hybrid.events.integrate`, compiled.
 
     Parameters
@@ -832,7 +843,7 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
         Error allowed per segment in the nodes [K] (midpoint check; the segment is halved above it).
     tol_iter : float
         Convergence of the fixed point for a segment's end [K]: the last change, or the error left estimated
-        from the contraction rate, below it.
+        from the contraction rate (at the first iteration, the rate of earlier segments), below it.
     drift, age, slow_iters : float, float, int
         The linearisation (one per fan state, kept across switches) is renewed when a node has moved
         ``drift`` K from it, after ``age`` s, when a segment's fixed point needed more than ``slow_iters``
