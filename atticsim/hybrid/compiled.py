@@ -71,7 +71,8 @@ jitcache.route()  # this module's compiled functions cache in atticsim's own fol
 #: Largest spacing of the sensor checks inside a segment [s] (a crossing and a return within less than
 #: this is not seen; the Python solvers check at the same spacing).
 CHECK_STEP = 60.0
-#: Longest segment [s] (a multiple of the output step; weather samples and switches cut segments shorter).
+#: Longest segment [s] (rounded down to a multiple of the output step; weather samples, switches and the
+#: error control cut segments shorter).
 SEGMENT = 1200.0
 #: Blocks kept per linearisation (step lengths met repeatedly: segment, half segment, check step...).
 _CACHE = 64
@@ -453,8 +454,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 change = max(_max_change(z1n, z1), _max_change(zmn, zm))
                 # converged when the change, or the error left estimated from the contraction rate
                 # theta = change / change_prev, eta change with eta = theta / (1 - theta), is below tol_iter;
-                # at the first iteration eta is the last one measured, raised to the power 0.8 per segment so
-                # that it drifts back towards 1 until measured again (the stopping rule of simplified Newton
+                # at the first iteration eta is the last one measured, raised to the power 0.8 per try of a
+                # segment so that it drifts back towards 1 until measured again (the stopping rule of simplified Newton
                 # iterations and its carried rate, Hairer & Wanner, Solving ODEs II, sect. IV.8; from memory)
                 if iters >= 2:
                     theta = change / change_prev
