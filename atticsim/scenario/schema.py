@@ -265,7 +265,7 @@ class Simulation(_Model):
     solver: Literal["fast", "reference"] = Field(
         "fast", description="fast: exact discretisation of the linearised network; reference: LSODA")
     fast_tolerance: TempDiff = Field(
-        2e-2, gt=0.0, le=0.1,
+        5e-3, gt=0.0, le=0.1,
         description="K, error allowed per segment of the fast solver (tighten for a chattering thermostat)")
 
 
