@@ -173,6 +173,20 @@ def test_grid_steps():
     assert compiled.grid_steps(np.arange(t0 + 30, t0 + 3600, 60.0), t0) is None  # not from the start
 
 
+def test_change_of_forcing_slope_at_a_sample():
+    # the prediction across a weather sample: u moved by KINK_SPAN times the change of slope of the linear
+    # interpolation there (hand-worked: samples 0, 1, 3, 3 every 10 s; slopes 0.1, 0.2, 0 per s, zero beyond
+    # the ends as the interpolation is clamped there)
+    values = np.array([[0.0, 1.0, 3.0, 3.0], [5.0, 5.0, 5.0, 5.0]])
+    u = np.array([100.0, 7.0])
+    out = np.zeros(2)
+    span = compiled.KINK_SPAN
+    for t, jump in ((0.0, 0.1), (10.0, 0.1), (20.0, -0.2), (30.0, 0.0)):
+        assert compiled._slope_jump(values, 10.0, t, u, out)
+        np.testing.assert_allclose(out, [100.0 + span * jump, 7.0], rtol=0, atol=1e-12)
+    assert not compiled._slope_jump(values, 10.0, 15.0, u, out)  # between samples: no kink
+
+
 def test_outputs_off_the_grid_fall_back_to_the_window_solver(monkeypatch):
     sc = load_scenario(BUNGALOW, ["simulation.spinup_days=0"])
     raw = run_raw(sc, start=sc.weather.start, end=sc.weather.start, include_no_fan=False)

@@ -552,7 +552,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
         if i_q != cnt[1]:
             matmul(jac_b, blk_q[1], k_q)  # K = J_b G0(q)
             cnt[1] = i_q
-        if first + q_step < h - 1e-6:
+        expanded = first + q_step < h - 1e-6
+        if expanded:
             _expanded(blk_q, a, b, c, p0, p1, p2, q0, q1, q2)
             matvec(jac_b, q0, r0)
             matvec(jac_b, q1, r1b)
@@ -569,14 +570,32 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             if sigma + step >= h - 1e-6:
                 step = h - sigma
                 last = True
-            if last:
+            if expanded and abs(step - q_step) < 1e-9:
+                # a check step from sigma by the expansion (at sigma = 0, z = 0: z = P0, J_b int z = R0); the
+                # segment's end keeps z1 itself
+                if sigma == 0.0:
+                    _assign(zt, p0)
+                    _assign(ybt, r0)
+                else:
+                    if last:
+                        _assign(zt, z1)
+                    else:
+                        block_mv(blk_q, 0, zs, zt)
+                    matvec(k_q, zs, ybt)
+                    s2 = sigma * sigma
+                    if not last:
+                        for i in range(n):
+                            zt[i] += p0[i] + sigma * p1[i] + s2 * p2[i]
+                    for i in range(nb_):
+                        ybt[i] += yb[i] + r0[i] + sigma * r1b[i] + s2 * r2[i]
+            elif last:
                 # the segment's end: straight from the h blocks (int z = G1 a + G2 b + 2 G3 c)
                 _assign(zt, z1)
                 block_mv(blk, 2, a, it_)
                 block_mv_add(blk, 3, b, 1.0, it_)
                 block_mv_add(blk, 4, c, 2.0, it_)
                 matvec(jac_b, it_, ybt)
-            elif sigma == 0.0:
+            else:
                 # the first step (to the check grid) from z = 0: G0 a + G1 b + 2 G2 c, int G1 a + G2 b + 2 G3 c
                 blk_f = store[_lookup(step, lens, store, cnt, jac, s0, chain_)]
                 _from_start(blk_f, a, b, c, zt)
@@ -584,14 +603,6 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                 block_mv_add(blk_f, 3, b, 1.0, it_)
                 block_mv_add(blk_f, 4, c, 2.0, it_)
                 matvec(jac_b, it_, ybt)
-            else:
-                block_mv(blk_q, 0, zs, zt)
-                matvec(k_q, zs, ybt)
-                s2 = sigma * sigma
-                for i in range(n):
-                    zt[i] += p0[i] + sigma * p1[i] + s2 * p2[i]
-                for i in range(nb_):
-                    ybt[i] += yb[i] + r0[i] + sigma * r1b[i] + s2 * r2[i]
             s_new = sigma + step
             if direction != 0:
                 g_new = (x[i_sensor] + zt[i_sensor] - level) * direction
