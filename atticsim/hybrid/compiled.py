@@ -163,17 +163,18 @@ def _zero(dst):
 
 
 @nb.njit(cache=True, _nrt=False)
-def _shift_rates(jac, jac_b, z_new, z_old, f, dz):
+def _shift_rates(jac, jac_b, z_new, z_old, f, dz, nodes):
     """f += [J; J_b] (z_new - z_old): rates (nodes, then books) taken at z_old carried to z_new by the
-    linearisation (dz: work array)."""
+    linearisation (dz: work array); the books' part only when ``nodes`` is False."""
     n = dz.size
     for i in range(n):
         dz[i] = z_new[i] - z_old[i]
-    for i in range(n):
-        s = 0.0
-        for m in range(n):
-            s += jac[i, m] * dz[m]
-        f[i] += s
+    if nodes:
+        for i in range(n):
+            s = 0.0
+            for m in range(n):
+                s += jac[i, m] * dz[m]
+            f[i] += s
     for i in range(jac_b.shape[0]):
         s = 0.0
         for m in range(n):
@@ -494,8 +495,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
                     converged = True
                     # the rates were taken at the previous iterate: carry them to the accepted one by the
                     # linear model (the next segment starts from f1)
-                    _shift_rates(jac, jac_b, z1n, z1, f1, r1)
-                    _shift_rates(jac, jac_b, zmn, zm, fm, rm)
+                    _shift_rates(jac, jac_b, z1n, z1, f1, r1, True)
+                    _shift_rates(jac, jac_b, zmn, zm, fm, rm, False)  # (only the middle's book rates are used)
                 _assign(z1, z1n)
                 _assign(zm, zmn)
                 if converged:
