@@ -53,7 +53,7 @@ def test_segment_step_matches_expm_of_the_full_system():
     assert np.allclose(w, expm(seg.m * h) @ w0)
 
 
-DEMOS = ["heron_lane_bungalow", "heron_lane_circuit", "mesa_ranch", "starved_intakes"]
+DEMOS = ["heron_lane_bungalow", "heron_lane_circuit", "mesa_ranch", "starved_intakes", "generous_intakes"]
 
 
 def _windows_only(sim):
