@@ -4,7 +4,7 @@ mass conservation and the monotonic facts a practitioner knows."""
 import math
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 from atticsim.airflow.balance import (AirflowSolveError, AtticAirPaths, CeilingLeak, Fan, HouseEnvelope, Vent,
@@ -274,3 +274,70 @@ def test_no_sign_change_is_an_error_not_a_silent_answer():
     absurd = FanCurve([0.0, 5e7], [1.0, 0.5], 100.0)
     with pytest.raises(AirflowSolveError, match="does not change sign"):
         solve_attic_balance(AtticAirPaths(fan=Fan(absurd, 1.0)), 40.0, 30.0, fan_on=True)
+
+
+# --- the compiled root finds against scipy's brentq -----------------------------------------------------
+
+def _reference_pressures(paths, t_attic, t_outdoor, t_house, wind, fan_on):
+    """(p_attic, p_house) by scipy.optimize.brentq, nested, on net flows written out here from the path laws
+    (orifice and power law, ASHRAE Handbook Fundamentals, ventilation chapter; air densities of the upstream
+    zone), independent of atticsim's compiled kernel. Plain laws, without atticsim's linear run below 1e-4 Pa
+    (the test keeps to cases whose paths all see more than 1e-3 Pa)."""
+    from scipy.optimize import brentq
+
+    from atticsim.network.heat_transfer import air_density
+
+    rho_o, rho_a, rho_h = (float(air_density(t, P_STANDARD)) for t in (t_outdoor, t_attic, t_house))
+    qw = 0.5 * rho_o * wind**2
+
+    def orifice(dp, k, up, down):
+        return math.copysign(k * math.sqrt(2.0 * (up if dp >= 0 else down) * abs(dp)), dp)
+
+    def power(dp, c, n, up, down):
+        return math.copysign((up if dp >= 0 else down) * c * abs(dp) ** n, dp)
+
+    h = paths.house
+    env = h.cp * qw - (rho_o - rho_h) * GRAVITY * h.height
+
+    def house_net(p_h, p_a):
+        m = power(env - p_h, h.coefficient, h.exponent, rho_o, rho_h)
+        for c in paths.ceiling_leaks:
+            m -= power(p_h - p_a - (rho_h - rho_a) * GRAVITY * c.height, c.coefficient, c.exponent, rho_h, rho_a)
+        return m
+
+    def house(p_a):
+        return brentq(house_net, -1e4, 1e4, args=(p_a,), xtol=1e-14, rtol=1e-14)
+
+    def attic_net(p_a):
+        m = sum(orifice(v.wind_cp * qw - (rho_o - rho_a) * GRAVITY * v.height - p_a, v.cd * v.area, rho_o, rho_a)
+                for v in paths.vents)
+        p_h = house(p_a)
+        for c in paths.ceiling_leaks:
+            m += power(p_h - p_a - (rho_h - rho_a) * GRAVITY * c.height, c.coefficient, c.exponent, rho_h, rho_a)
+        if fan_on:
+            f = paths.fan
+            rise = f.wind_cp * qw - (rho_o - rho_a) * GRAVITY * f.height - p_a
+            q = float(f.curve.flow_at(rise, 1.0, rho_a))
+            m -= q * (rho_a if q >= 0 else rho_o)
+        return m
+
+    p_a = brentq(attic_net, -1e4, 1e4, xtol=1e-14, rtol=1e-14)
+    return p_a, house(p_a)
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(soffit=st.floats(0.02, 1.0), ridge=st.floats(0.0, 0.5), leak=st.floats(0.002, 0.05),
+       envelope=st.floats(0.02, 0.3), t_attic=st.floats(15.0, 65.0), t_outdoor=st.floats(5.0, 40.0),
+       wind=st.floats(0.0, 8.0), fan_on=st.booleans())
+def test_compiled_balance_matches_scipy_brentq(soffit, ridge, leak, envelope, t_attic, t_outdoor, wind, fan_on):
+    # scipy.optimize.brentq (a general-purpose reference root finder) on the same balance written out in
+    # the test: the compiled root finds must land on the same pressures
+    vents = [Vent(soffit, 0.1, kind="soffit")] + ([Vent(ridge, 2.2, kind="ridge")] if ridge > 0.01 else [])
+    paths = AtticAirPaths(vents=vents, fan=Fan(FanCurve([0.0, 30.0, 60.0], [0.7, 0.45, 0.0], 120.0), 1.8),
+                          ceiling_leaks=[CeilingLeak.from_leakage_area(leak)],
+                          house=HouseEnvelope.from_leakage_area(envelope))
+    r = solve_attic_balance(paths, t_attic, t_outdoor, temp_house=24.0, wind_speed=wind, fan_on=fan_on)
+    assume(all(abs(p.pressure_difference) > 1e-3 for p in r.paths))
+    p_a, p_h = _reference_pressures(paths, t_attic, t_outdoor, 24.0, wind, fan_on)
+    assert r.pressure_attic == pytest.approx(p_a, rel=1e-9, abs=1e-9)
+    assert r.pressure_house == pytest.approx(p_h, rel=1e-9, abs=1e-9)

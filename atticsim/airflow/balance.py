@@ -25,7 +25,8 @@ Solution: the house pressure is solved for each trial attic pressure (inner 1-D 
 attic pressure so that the attic's net mass flow is zero (outer root find). Both net flows are strictly
 monotone in the unknown, so each has a single root; both are found with Brent's method on a bracket
 that is widened until the net flow changes sign, and an :class:`AirflowSolveError` is raised if it
-never does or Brent's method does not converge (never a silent non-convergence). Below
+never does or Brent's method does not converge (never a silent non-convergence). The two root finds
+run compiled (:mod:`atticsim.airflow.balance_kernel`); the flows at the solution are formed here. Below
 :data:`DP_LAMINAR` (1e-4 Pa) the path laws run linear through zero so that the root is well
 conditioned; flows in and out then match to round-off (checked to 1e-6 relative by the tests).
 """
@@ -34,9 +35,9 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
-from scipy.optimize import brentq
 
 from atticsim.airflow.fan import FanCurve
 from atticsim.airflow.openings import (DEFAULT_CP, default_cp, leakage_coefficient, require_exponent,
@@ -63,6 +64,9 @@ LATENT_HEAT_WATER = 2501e3
 _ROLES = ("intake", "exhaust")
 _BRENT_XTOL = 1e-18  # [Pa]; the relative tolerance governs
 _BRENT_RTOL = 1e-15  # just above scipy's floor of 4 machine epsilons
+_BRENT_MAXITER = 200
+#: The compiled root finds' settings (layout: atticsim.airflow.balance_kernel).
+_SETTINGS = np.array([DP_LAMINAR, MAX_BRACKET_PRESSURE, _BRENT_XTOL, _BRENT_RTOL, float(_BRENT_MAXITER)])
 
 
 class AirflowSolveError(RuntimeError):
@@ -275,6 +279,24 @@ class AtticAirPaths:
         if self.house is not None and not isinstance(self.house, HouseEnvelope):
             raise ValueError(f"house must be a HouseEnvelope, got {type(self.house).__name__}")
 
+    @cached_property
+    def _packed(self):
+        """The paths as arrays for the compiled root finds (layout: atticsim.airflow.balance_kernel)."""
+        vents = np.array([(v.cd * v.area, v.height, v.wind_cp) for v in self.vents], dtype=float).reshape(-1, 3)
+        leaks = np.array([(c.coefficient, c.exponent, c.height) for c in self.ceiling_leaks],
+                         dtype=float).reshape(-1, 3)
+        h = self.house
+        house = np.array([1.0, h.coefficient, h.exponent, h.height, h.cp] if h is not None else [0.0] * 5)
+        f = self.fan
+        if f is None:
+            fan = np.zeros(5)
+            curve_p, curve_q, curve_seg = np.array([0.0, 1.0]), np.zeros(2), np.zeros((1, 4))
+        else:
+            fan = np.array([1.0, f.height, f.wind_cp, f.idle_cd * f.idle_area, f.curve.shutoff_pressure])
+            curve_p, curve_q = np.array(f.curve.pressure), np.array(f.curve.flow)
+            curve_seg = np.array(f.curve._segments, dtype=float).reshape(-1, 4)
+        return vents, leaks, house, fan, curve_p, curve_q, curve_seg
+
     @property
     def intake_area(self):
         """Net free area of the vents meant as intakes [m^2]."""
@@ -387,56 +409,6 @@ class AtticBalance:
         raise KeyError(f"no path named {name!r}")
 
 
-# --- path laws on scalars (the solver's inner loop; same equations as openings.py) --------------------------
-
-def _orifice_mass(dp, k, rho_pos, rho_neg):
-    """Mass flow through an orifice with k = Cd A: m = Cd A sqrt(2 rho |dp|) sign(dp) [kg/s]
-    (orifice equation, ASHRAE Handbook Fundamentals, ventilation chapter; rho of the upstream air),
-    linear below DP_LAMINAR (see there)."""
-    if dp >= DP_LAMINAR:
-        return k * math.sqrt(2.0 * rho_pos * dp)
-    if dp <= -DP_LAMINAR:
-        return -k * math.sqrt(-2.0 * rho_neg * dp)
-    rho = rho_pos if dp >= 0.0 else rho_neg
-    return k * math.sqrt(2.0 * rho * DP_LAMINAR) * dp / DP_LAMINAR
-
-
-def _power_law_mass(dp, c, n, rho_pos, rho_neg):
-    """Mass flow through leakage: m = rho C |dp|^n sign(dp) [kg/s] (power law, ASHRAE Handbook
-    Fundamentals, ventilation chapter; rho of the upstream air), linear below DP_LAMINAR."""
-    if dp >= DP_LAMINAR:
-        return rho_pos * c * dp**n
-    if dp <= -DP_LAMINAR:
-        return -rho_neg * c * (-dp) ** n
-    rho = rho_pos if dp >= 0.0 else rho_neg
-    return rho * c * DP_LAMINAR**n * dp / DP_LAMINAR
-
-
-def _find_root(f, scale, what):
-    """Root of a strictly decreasing f, bracketed from [-scale, scale] outward; Brent's method."""
-    scale = min(scale, MAX_BRACKET_PRESSURE)
-    a, b = -scale, scale
-    fa, fb = f(a), f(b)
-    while fa < 0.0 or fb > 0.0:
-        if scale >= MAX_BRACKET_PRESSURE:
-            raise AirflowSolveError(
-                f"{what}: net mass flow does not change sign between -{MAX_BRACKET_PRESSURE:g} and "
-                f"{MAX_BRACKET_PRESSURE:g} Pa; check the openings and the fan curve")
-        scale = min(4.0 * scale, MAX_BRACKET_PRESSURE)
-        if fa < 0.0:
-            a, fa = -scale, f(-scale)
-        if fb > 0.0:
-            b, fb = scale, f(scale)
-    if fa == 0.0:
-        return a
-    if fb == 0.0:
-        return b
-    try:
-        return brentq(f, a, b, xtol=_BRENT_XTOL, rtol=_BRENT_RTOL, maxiter=200)
-    except RuntimeError as exc:  # scipy's "failed to converge"
-        raise AirflowSolveError(f"{what}: root find did not converge ({exc})") from exc
-
-
 # --- the solve -------------------------------------------------------------------------------------------------
 
 def solve_attic_balance(paths, temp_attic, temp_outdoor, temp_house=None, wind_speed=0.0, fan_on=False,
@@ -479,6 +451,8 @@ def solve_attic_balance(paths, temp_attic, temp_outdoor, temp_house=None, wind_s
     ASHRAE Handbook - Fundamentals, Ventilation and Infiltration chapter (orifice and power-law paths,
     stack and wind pressures); multizone mass balance as in common practice.
     """
+    from atticsim.airflow import balance_kernel as bk  # numba: loaded when a balance is first solved
+
     if not isinstance(paths, AtticAirPaths):
         raise ValueError(f"paths must be an AtticAirPaths, got {type(paths).__name__}")
     require_temperature("attic air temperature", temp_attic)
@@ -521,69 +495,46 @@ def solve_attic_balance(paths, temp_attic, temp_outdoor, temp_house=None, wind_s
     if not (any(k > 0.0 for _, k, _ in orifices) or any(c > 0.0 for _, c, _, _ in ceilings) or running):
         raise ValueError("the attic has no open path: every vent area and ceiling leak is zero and the fan is off")
 
-    def fan_volume(p_a):
-        # Pressure rise attic -> outdoors at the fan = outdoor minus attic pressure there.
-        return speed * curve.base_flow((fan_offset - p_a) * fan_factor)
-
     # House envelope: outdoor minus house pressure at its height for p_house = 0.
     env_offset = (house.cp * q_wind - (rho_o - rho_h) * GRAVITY * house.height) if house else 0.0
 
-    def house_net(p_h, p_a):
-        """Net mass flow into the house [kg/s]."""
-        m = _power_law_mass(env_offset - p_h, house.coefficient, house.exponent, rho_o, rho_h)
-        for _, c, n, off in ceilings:
-            m -= _power_law_mass(p_h - p_a + off, c, n, rho_h, rho_a)
-        return m
-
-    def house_pressure(p_a):
-        if house is None:
-            return 0.0
-        if not ceilings:
-            return env_offset  # no flow through the envelope: p_house where its driving pressure is zero
-        scale = max(1.0, abs(p_a), abs(env_offset), *(abs(off) for *_, off in ceilings))
-        return _find_root(lambda p_h: house_net(p_h, p_a), scale, "house pressure balance")
-
-    def attic_net(p_a):
-        """Net mass flow into the attic [kg/s]."""
-        m = 0.0
-        for _, k, off in orifices:
-            m += _orifice_mass(off - p_a, k, rho_o, rho_a)
-        if ceilings:
-            p_h = house_pressure(p_a)
-            for _, c, n, off in ceilings:
-                m += _power_law_mass(p_h - p_a + off, c, n, rho_h, rho_a)
-        if running:
-            q = fan_volume(p_a)
-            m -= q * (rho_a if q >= 0.0 else rho_o)
-        return m
-
-    scale = max([1.0] + [abs(off) for _, _, off in orifices] + [abs(off) for *_, off in ceilings]
-                + [abs(env_offset)])
-    if running:
-        scale = max(scale, abs(fan_offset), curve.shutoff_pressure / fan_factor)
-    p_a = _find_root(attic_net, scale, "attic pressure balance")
-    p_h = house_pressure(p_a)
+    # The two nested root finds (house pressure for each trial attic pressure, attic pressure that
+    # balances the attic), compiled: atticsim.airflow.balance_kernel.
+    vents, leaks, house_row, fan_row, curve_p, curve_q, curve_seg = paths._packed
+    cond = np.array([rho_o, rho_a, rho_h, q_wind, 1.0 if running else 0.0,
+                     fan_factor if running else 1.0, speed if running else 1.0])
+    p_a, p_h, status = bk.solve_pressures(vents, leaks, house_row, fan_row, curve_p, curve_q, curve_seg, cond,
+                                          _SETTINGS)
+    if status != bk.SOLVED:
+        what = "house pressure balance" if status in (bk.HOUSE_NO_SIGN_CHANGE, bk.HOUSE_NOT_CONVERGED) \
+            else "attic pressure balance"
+        if status in (bk.ATTIC_NO_SIGN_CHANGE, bk.HOUSE_NO_SIGN_CHANGE):
+            raise AirflowSolveError(
+                f"{what}: net mass flow does not change sign between -{MAX_BRACKET_PRESSURE:g} and "
+                f"{MAX_BRACKET_PRESSURE:g} Pa; check the openings and the fan curve")
+        raise AirflowSolveError(f"{what}: root find did not converge in {_BRENT_MAXITER} iterations")
+    p_a, p_h = float(p_a), float(p_h)
 
     # Flows at the solution.
     flows = []
     for label, k, off in orifices:
         dp = off - p_a
-        m = _orifice_mass(dp, k, rho_o, rho_a)
+        m = bk.orifice_mass(dp, k, rho_o, rho_a, DP_LAMINAR)
         flows.append(PathFlow(label, "vent", m / (rho_o if dp >= 0.0 else rho_a), m, dp))
     fan_flow = fan_dp = fan_power = 0.0
     on_curve = True
     if running:
-        fan_dp = fan_offset - p_a
-        fan_flow = fan_volume(p_a)
+        fan_dp = fan_offset - p_a  # pressure rise attic -> outdoors at the fan
+        x = fan_dp * fan_factor  # on the published curve (fan laws)
+        fan_flow = speed * bk.curve_flow(x, curve_p, curve_q, curve_seg)
         fan_power = curve.power_at(fan_dp, speed, rho_a)
-        x = fan_dp * fan_factor
         on_curve = curve.pressure[0] <= x <= curve.pressure[-1]
         m = fan_flow * (rho_a if fan_flow >= 0.0 else rho_o)
         flows.append(PathFlow(fan.name, "fan", -fan_flow, -m, fan_dp))
     ceiling_m = ceiling_q = 0.0
     for label, c, n, off in ceilings:
         dp = p_h - p_a + off
-        m = _power_law_mass(dp, c, n, rho_h, rho_a)
+        m = bk.power_law_mass(dp, c, n, rho_h, rho_a, DP_LAMINAR)
         q = m / (rho_h if dp >= 0.0 else rho_a)
         ceiling_m += m
         ceiling_q += q
@@ -592,7 +543,7 @@ def solve_attic_balance(paths, temp_attic, temp_outdoor, temp_house=None, wind_s
     house_res = 0.0
     if house is not None:
         dp = env_offset - p_h
-        m_env = _power_law_mass(dp, house.coefficient, house.exponent, rho_o, rho_h)
+        m_env = bk.power_law_mass(dp, house.coefficient, house.exponent, rho_o, rho_h, DP_LAMINAR)
         envelope_q = m_env / (rho_o if dp >= 0.0 else rho_h)
         flows.append(PathFlow("house envelope", "envelope", envelope_q, m_env, dp))
         h_in = max(m_env, 0.0) + max(-ceiling_m, 0.0)

@@ -17,7 +17,6 @@ outside the range (common practice, no source).
 
 from __future__ import annotations
 
-from bisect import bisect_right
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -81,7 +80,8 @@ class FanCurve:
 
     @cached_property
     def _segments(self):
-        """Per-segment cubic coefficients of the PCHIP interpolant, as plain floats (fast scalar path)."""
+        """Per-segment cubic coefficients of the PCHIP interpolant, as plain floats (for the compiled
+        pressure balance, atticsim.airflow.balance_kernel.curve_flow)."""
         c = self._pchip.c
         return tuple(tuple(float(v) for v in c[:, i]) for i in range(c.shape[1]))
 
@@ -105,7 +105,7 @@ class FanCurve:
         Parameters
         ----------
         x : float or numpy.ndarray
-            Static pressure rise [Pa]; a Python float takes a fast scalar path (no checks).
+            Static pressure rise [Pa].
 
         Returns
         -------
@@ -113,22 +113,13 @@ class FanCurve:
             Volume flow [m^3/s].
         """
         p, q = self.pressure, self.flow
-        if isinstance(x, float):
-            # Scalar fast path for the attic balance: same interpolant, evaluated by Horner's rule.
-            if x < p[0]:
-                return q[0] + (q[1] - q[0]) / (p[1] - p[0]) * (x - p[0])
-            if x > p[-1]:
-                return q[-1] + (q[-1] - q[-2]) / (p[-1] - p[-2]) * (x - p[-1])
-            i = min(bisect_right(p, x) - 1, len(p) - 2)
-            a, b, c, d = self._segments[i]
-            t = x - p[i]
-            return ((a * t + b) * t + c) * t + d
         x = np.asarray(x, dtype=float)
         inside = self._pchip(np.clip(x, p[0], p[-1]))
         # Straight-line continuation through the end points (see module docstring).
         low = q[0] + (q[1] - q[0]) / (p[1] - p[0]) * (x - p[0])
         high = q[-1] + (q[-1] - q[-2]) / (p[-1] - p[-2]) * (x - p[-1])
-        return np.where(x < p[0], low, np.where(x > p[-1], high, inside))
+        out = np.where(x < p[0], low, np.where(x > p[-1], high, inside))
+        return float(out) if out.ndim == 0 else out
 
     def pressure_factor(self, speed_ratio=1.0, density=None):
         """Factor that maps an operating pressure onto the published curve, (rho_rating / rho) / N^2.

@@ -45,6 +45,8 @@ DEFAULT_CP = {
 
 def require_positive(name, value, unit):
     """Raise ValueError unless every element of ``value`` is finite and > 0."""
+    if isinstance(value, float) and 0.0 < value < math.inf:  # a plain number passes without numpy
+        return
     arr = np.asarray(value, dtype=float)
     if not np.all(np.isfinite(arr)) or np.any(arr <= 0.0):
         raise ValueError(f"{name} must be finite and > 0 {unit}, got {value!r}")
@@ -52,6 +54,8 @@ def require_positive(name, value, unit):
 
 def require_non_negative(name, value, unit):
     """Raise ValueError unless every element of ``value`` is finite and >= 0."""
+    if isinstance(value, float) and 0.0 <= value < math.inf:
+        return
     arr = np.asarray(value, dtype=float)
     if not np.all(np.isfinite(arr)) or np.any(arr < 0.0):
         raise ValueError(f"{name} must be finite and >= 0 {unit}, got {value!r}")
@@ -65,6 +69,8 @@ def require_finite(name, value, unit):
 
 def require_temperature(name, value):
     """Raise ValueError unless ``value`` looks like an air temperature in degC (-90 to 150)."""
+    if isinstance(value, float) and -90.0 <= value <= 150.0:
+        return
     arr = np.asarray(value, dtype=float)
     if not np.all(np.isfinite(arr)) or np.any(arr < -90.0) or np.any(arr > 150.0):
         raise ValueError(f"{name} must be an air temperature in degC between -90 and 150, got {value!r}")
