@@ -63,7 +63,7 @@ LATENT_HEAT_WATER = 2501e3
 
 _ROLES = ("intake", "exhaust")
 _BRENT_XTOL = 1e-18  # [Pa]; the relative tolerance governs
-_BRENT_RTOL = 1e-15  # just above scipy's floor of 4 machine epsilons
+_BRENT_RTOL = 1e-15  # about 4.5 machine epsilons: as fine as a root in doubles can be asked for
 _BRENT_MAXITER = 200
 #: The compiled root finds' settings (layout: atticsim.airflow.balance_kernel).
 _SETTINGS = np.array([DP_LAMINAR, MAX_BRACKET_PRESSURE, _BRENT_XTOL, _BRENT_RTOL, float(_BRENT_MAXITER)])
