@@ -43,7 +43,7 @@ from atticsim.airflow.fan import FanCurve
 from atticsim.airflow.openings import (DEFAULT_CP, default_cp, leakage_coefficient, require_exponent,
                                        require_finite, require_non_negative, require_positive,
                                        require_temperature)
-from atticsim.constants import CP_AIR, GRAVITY, P_STANDARD
+from atticsim.constants import CP_AIR, P_STANDARD
 from atticsim.network.heat_transfer import air_density
 
 #: Mass flow below which a zone counts as having no throughput, for the relative residual [kg/s]
@@ -473,36 +473,30 @@ def solve_attic_balance(paths, temp_attic, temp_outdoor, temp_house=None, wind_s
     rho_a = float(air_density(temp_attic, pressure))
     rho_h = float(air_density(temp_house, pressure)) if has_house_paths else rho_a
     q_wind = 0.5 * rho_o * float(wind_speed) ** 2  # velocity pressure rho V^2 / 2 [Pa]
-
-    def outside_offset(z, cp):
-        # Outdoor minus attic pressure at height z for p_attic = 0: wind pressure Cp rho V^2 / 2
-        # (ASHRAE Handbook Fundamentals, airflow around buildings chapter) plus the stack term
-        # -(rho_o - rho_a) g z (ASHRAE Handbook Fundamentals, ventilation chapter, stack pressure).
-        return cp * q_wind - (rho_o - rho_a) * GRAVITY * z
-
-    # Orifice paths outdoors <-> attic: (label, k = Cd A, offset).
-    orifices = [(v.label, v.cd * v.area, outside_offset(v.height, v.wind_cp)) for v in paths.vents]
-    if fan is not None and not running and fan.idle_area > 0.0:
-        orifices.append((fan.name, fan.idle_cd * fan.idle_area, outside_offset(fan.height, fan.wind_cp)))
-    ceilings = [(c.name, c.coefficient, c.exponent, -(rho_h - rho_a) * GRAVITY * c.height)
-                for c in paths.ceiling_leaks]
     house = paths.house
     if running:
         curve = fan.curve
-        fan_offset = outside_offset(fan.height, fan.wind_cp)
         fan_factor = curve.pressure_factor(fan_speed_ratio, rho_a)
         speed = float(fan_speed_ratio)
-    if not (any(k > 0.0 for _, k, _ in orifices) or any(c > 0.0 for _, c, _, _ in ceilings) or running):
-        raise ValueError("the attic has no open path: every vent area and ceiling leak is zero and the fan is off")
-
-    # House envelope: outdoor minus house pressure at its height for p_house = 0.
-    env_offset = (house.cp * q_wind - (rho_o - rho_h) * GRAVITY * house.height) if house else 0.0
-
-    # The two nested root finds (house pressure for each trial attic pressure, attic pressure that
-    # balances the attic), compiled: atticsim.airflow.balance_kernel.
+    # the paths and conditions as the compiled root finds take them (layout: atticsim.airflow.balance_kernel);
+    # the stack and wind offsets below are its functions too, so each formula is written once
     vents, leaks, house_row, fan_row, curve_p, curve_q, curve_seg = paths._packed
     cond = np.array([rho_o, rho_a, rho_h, q_wind, 1.0 if running else 0.0,
                      fan_factor if running else 1.0, speed if running else 1.0])
+
+    # Orifice paths outdoors <-> attic: (label, k = Cd A, outdoor minus attic pressure at the path for
+    # p_attic = 0).
+    orifices = [(v.label, v.cd * v.area, bk.outdoor_offset(v.height, v.wind_cp, cond)) for v in paths.vents]
+    if fan is not None and not running and fan.idle_area > 0.0:
+        orifices.append((fan.name, fan.idle_cd * fan.idle_area, bk.outdoor_offset(fan.height, fan.wind_cp, cond)))
+    ceilings = [(c.name, c.coefficient, c.exponent, bk.leak_offset(c.height, cond)) for c in paths.ceiling_leaks]
+    if not (any(k > 0.0 for _, k, _ in orifices) or any(c > 0.0 for _, c, _, _ in ceilings) or running):
+        raise ValueError("the attic has no open path: every vent area and ceiling leak is zero and the fan is off")
+    env_offset = bk.envelope_offset(house_row, cond)
+    fan_offset = bk.outdoor_offset(fan.height, fan.wind_cp, cond) if running else 0.0
+
+    # The two nested root finds (house pressure for each trial attic pressure, attic pressure that
+    # balances the attic), compiled.
     p_a, p_h, status = bk.solve_pressures(vents, leaks, house_row, fan_row, curve_p, curve_q, curve_seg, cond,
                                           _SETTINGS)
     if status != bk.SOLVED:

@@ -40,10 +40,8 @@ jitcache.route()  # this module's compiled functions cache in atticsim's own fol
 
 # conditions, entries of ``cond``
 _RHO_O, _RHO_A, _RHO_H, _Q_WIND, _RUNNING, _FAN_FACTOR, _SPEED = range(7)
-N_COND = 7
 # settings, entries of ``ctl``
 _LAMINAR, _MAX_BRACKET, _XTOL, _RTOL, _MAXITER = range(5)
-N_CTL = 5
 # statuses
 SOLVED, ATTIC_NO_SIGN_CHANGE, HOUSE_NO_SIGN_CHANGE, ATTIC_NOT_CONVERGED, HOUSE_NOT_CONVERGED = range(5)
 
@@ -87,21 +85,24 @@ def curve_flow(x, p, q, seg):
 
 
 @nb.njit(cache=True)
-def _offset(z, cp, cond):
-    """Outdoor minus attic pressure at height z for p_attic = 0: wind Cp rho V^2 / 2 (ASHRAE Handbook
-    Fundamentals, airflow around buildings chapter) and stack -(rho_o - rho_a) g z (ventilation chapter)."""
+def outdoor_offset(z, cp, cond):
+    """Outdoor minus attic pressure at height z [m] for p_attic = 0 [Pa]: wind Cp rho V^2 / 2 (ASHRAE
+    Handbook Fundamentals, airflow around buildings chapter) and stack -(rho_o - rho_a) g z (ventilation
+    chapter, stack pressure)."""
     return cp * cond[_Q_WIND] - (cond[_RHO_O] - cond[_RHO_A]) * GRAVITY * z
 
 
 @nb.njit(cache=True)
-def _leak_offset(z, cond):
-    """House minus attic stack pressure across a ceiling leak at height z [Pa]: -(rho_h - rho_a) g z."""
+def leak_offset(z, cond):
+    """House minus attic pressure across a ceiling leak at height z [m] for equal zone pressures [Pa]: the
+    stack term -(rho_h - rho_a) g z (ASHRAE Handbook Fundamentals, ventilation chapter, stack pressure)."""
     return -(cond[_RHO_H] - cond[_RHO_A]) * GRAVITY * z
 
 
 @nb.njit(cache=True)
-def _envelope_offset(house, cond):
-    """Outdoor minus house pressure at the envelope's height for p_house = 0 [Pa] (0 without one)."""
+def envelope_offset(house, cond):
+    """Outdoor minus house pressure at the envelope's height for p_house = 0 [Pa] (0 without one): wind
+    Cp rho V^2 / 2 and stack -(rho_o - rho_h) g z, as :func:`outdoor_offset` (same sources)."""
     if house[0] == 0.0:
         return 0.0
     return house[4] * cond[_Q_WIND] - (cond[_RHO_O] - cond[_RHO_H]) * GRAVITY * house[3]
@@ -111,9 +112,9 @@ def _envelope_offset(house, cond):
 def _house_net(p_h, p_a, leaks, house, cond, ctl):
     """Net mass flow into the house [kg/s] at house pressure p_h and attic pressure p_a."""
     lam = ctl[_LAMINAR]
-    m = power_law_mass(_envelope_offset(house, cond) - p_h, house[1], house[2], cond[_RHO_O], cond[_RHO_H], lam)
+    m = power_law_mass(envelope_offset(house, cond) - p_h, house[1], house[2], cond[_RHO_O], cond[_RHO_H], lam)
     for j in range(leaks.shape[0]):
-        dp = p_h - p_a + _leak_offset(leaks[j, 2], cond)
+        dp = p_h - p_a + leak_offset(leaks[j, 2], cond)
         m -= power_law_mass(dp, leaks[j, 0], leaks[j, 1], cond[_RHO_H], cond[_RHO_A], lam)
     return m
 
@@ -179,14 +180,14 @@ def _house_pressure(p_a, leaks, house, cond, ctl, status):
     """House pressure that balances the house at attic pressure p_a [Pa]: its net inflow falls strictly
     with p_house, so a bracket [-s, s] is widened fourfold until the sign changes, then Brent's method.
     NaN, with ``status`` set, on failure."""
-    env = _envelope_offset(house, cond)
+    env = envelope_offset(house, cond)
     if house[0] == 0.0:
         return 0.0
     if leaks.shape[0] == 0:
         return env  # no flow through the envelope: p_house where its driving pressure is zero
     scale = max(1.0, abs(p_a), abs(env))
     for j in range(leaks.shape[0]):
-        scale = max(scale, abs(_leak_offset(leaks[j, 2], cond)))
+        scale = max(scale, abs(leak_offset(leaks[j, 2], cond)))
     big = ctl[_MAX_BRACKET]
     scale = min(scale, big)
     a, b = -scale, scale
@@ -224,20 +225,20 @@ def _attic_net(p_a, vents, leaks, house, fan, curve_p, curve_q, curve_seg, cond,
     rho_o, rho_a, rho_h = cond[_RHO_O], cond[_RHO_A], cond[_RHO_H]
     m = 0.0
     for j in range(vents.shape[0]):
-        m += orifice_mass(_offset(vents[j, 1], vents[j, 2], cond) - p_a, vents[j, 0], rho_o, rho_a, lam)
+        m += orifice_mass(outdoor_offset(vents[j, 1], vents[j, 2], cond) - p_a, vents[j, 0], rho_o, rho_a, lam)
     running = cond[_RUNNING] != 0.0
     if fan[0] != 0.0 and not running and fan[3] > 0.0:
-        m += orifice_mass(_offset(fan[1], fan[2], cond) - p_a, fan[3], rho_o, rho_a, lam)
+        m += orifice_mass(outdoor_offset(fan[1], fan[2], cond) - p_a, fan[3], rho_o, rho_a, lam)
     if leaks.shape[0] > 0:
         p_h = _house_pressure(p_a, leaks, house, cond, ctl, status)
         if p_h != p_h:
             return math.nan
         for j in range(leaks.shape[0]):
-            dp = p_h - p_a + _leak_offset(leaks[j, 2], cond)
+            dp = p_h - p_a + leak_offset(leaks[j, 2], cond)
             m += power_law_mass(dp, leaks[j, 0], leaks[j, 1], rho_h, rho_a, lam)
     if running:
         # pressure rise attic -> outdoors at the fan, mapped onto the published curve (fan laws)
-        x = (_offset(fan[1], fan[2], cond) - p_a) * cond[_FAN_FACTOR]
+        x = (outdoor_offset(fan[1], fan[2], cond) - p_a) * cond[_FAN_FACTOR]
         q = cond[_SPEED] * curve_flow(x, curve_p, curve_q, curve_seg)
         m -= q * (rho_a if q >= 0.0 else rho_o)
     return m
@@ -248,16 +249,16 @@ def solve_pressures(vents, leaks, house, fan, curve_p, curve_q, curve_seg, cond,
     """(attic pressure [Pa], house pressure [Pa], status) that balance the attic and the house: the attic's
     net inflow falls strictly with p_attic; bracket widened and Brent's method as for the house."""
     status = np.zeros(1, dtype=np.int64)
-    scale = max(1.0, abs(_envelope_offset(house, cond)))
+    scale = max(1.0, abs(envelope_offset(house, cond)))
     for j in range(vents.shape[0]):
-        scale = max(scale, abs(_offset(vents[j, 1], vents[j, 2], cond)))
+        scale = max(scale, abs(outdoor_offset(vents[j, 1], vents[j, 2], cond)))
     running = cond[_RUNNING] != 0.0
     if fan[0] != 0.0 and not running and fan[3] > 0.0:
-        scale = max(scale, abs(_offset(fan[1], fan[2], cond)))
+        scale = max(scale, abs(outdoor_offset(fan[1], fan[2], cond)))
     for j in range(leaks.shape[0]):
-        scale = max(scale, abs(_leak_offset(leaks[j, 2], cond)))
+        scale = max(scale, abs(leak_offset(leaks[j, 2], cond)))
     if running:
-        scale = max(scale, abs(_offset(fan[1], fan[2], cond)), fan[4] / cond[_FAN_FACTOR])
+        scale = max(scale, abs(outdoor_offset(fan[1], fan[2], cond)), fan[4] / cond[_FAN_FACTOR])
     big = ctl[_MAX_BRACKET]
     scale = min(scale, big)
     a, b = -scale, scale
