@@ -6,7 +6,7 @@ Fields: thickness [m], density [kg/m^3], conductivity [W/(m K)], specific_heat [
 
 MATERIALS: dict[str, dict[str, float]] = {
     # Asphalt shingles: R ~ 0.078 m2K/W (ASHRAE Handbook Fundamentals, thermal properties table,
-    # "asphalt shingles", R-0.44 IP; from memory), rho ~ 1100, cp ~ 1500 (PHYSICS.md, from memory).
+    # "asphalt shingles", R-0.44 IP; from memory), rho ~ 1100, cp ~ 1500 (from memory).
     # A 6 mm installed thickness with k = 0.077 reproduces that R.
     "asphalt-shingle": {"thickness": 0.006, "density": 1100.0, "conductivity": 0.077,
                         "specific_heat": 1500.0},
@@ -14,11 +14,11 @@ MATERIALS: dict[str, dict[str, float]] = {
     "metal": {"thickness": 0.0005, "density": 7850.0, "conductivity": 45.0, "specific_heat": 500.0},
     # Concrete/clay tile 12 mm: rho 2000, k 1.0, cp 880 (ASHRAE thermal properties table; from memory).
     "tile": {"thickness": 0.012, "density": 2000.0, "conductivity": 1.0, "specific_heat": 880.0},
-    # OSB 11 mm: rho 650, k 0.13, cp 1880 (PHYSICS.md, from memory).
+    # OSB 11 mm: rho 650, k 0.13, cp 1880 (from memory).
     "osb": {"thickness": 0.011, "density": 650.0, "conductivity": 0.13, "specific_heat": 1880.0},
-    # Plywood 12.7 mm: rho 545, k 0.12, cp 1880 (PHYSICS.md, from memory).
+    # Plywood 12.7 mm: rho 545, k 0.12, cp 1880 (from memory).
     "plywood": {"thickness": 0.0127, "density": 545.0, "conductivity": 0.12, "specific_heat": 1880.0},
-    # Gypsum board 12.7 mm: rho 700, k 0.16, cp 1090 (PHYSICS.md: rho 640-800, cp ~1100; from memory).
+    # Gypsum board 12.7 mm: rho 700, k 0.16, cp 1090 (rho 640-800, cp ~1100; from memory).
     "gypsum": {"thickness": 0.0127, "density": 700.0, "conductivity": 0.16, "specific_heat": 1090.0},
 }
 

@@ -30,7 +30,7 @@ def _one_intake_with_fan(curve, area=0.2, cd=0.6):
 
 
 def test_linear_fan_curve_against_quadratic_system_curve():
-    # PHYSICS.md [C]: linear curve 40 Pa / 0.6 m^3/s against Cd 0.6, A 0.2 m^2, rho 1.15
+    # worked by hand: linear curve 40 Pa / 0.6 m^3/s against Cd 0.6, A 0.2 m^2, rho 1.15
     # -> Q = 0.4685 m^3/s, dp = 8.77 Pa.
     t = temp_for_density(1.15)
     r = solve_attic_balance(_one_intake_with_fan(LINEAR), t, t, fan_on=True)
@@ -45,7 +45,7 @@ def test_linear_fan_curve_against_quadratic_system_curve():
 
 
 def test_affinity_scaling_of_the_operating_point():
-    # PHYSICS.md [C]: at 80 % speed the operating point scales exactly to 0.800 x (fan laws with a
+    # worked by hand: at 80 % speed the operating point scales exactly to 0.800 x (fan laws with a
     # quadratic system curve; AMCA 201).
     t = temp_for_density(1.15)
     paths = _one_intake_with_fan(LINEAR)

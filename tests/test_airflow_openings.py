@@ -10,7 +10,7 @@ from atticsim.airflow import openings as op
 # --- orifice ------------------------------------------------------------------------------------------
 
 def test_orifice_flow_hand_worked():
-    # PHYSICS.md (hand-worked orifice equation, ASHRAE Handbook Fundamentals ventilation chapter):
+    # Orifice equation worked by hand (ASHRAE Handbook Fundamentals, ventilation chapter):
     # A = 1 m^2, Cd = 0.61, rho = 1.2 kg/m^3, dp = 1 Pa -> 0.7875 m^3/s.
     assert op.orifice_flow(1.0, 1.0, cd=0.61, rho=1.2) == pytest.approx(0.7875, rel=1e-4)
 
@@ -22,7 +22,7 @@ def test_orifice_flow_signed_and_vectorised():
 
 
 def test_orifice_pressure_inverts_the_hand_worked_example():
-    # PHYSICS.md: 0.7875 m^3/s through 1 m^2 at Cd 0.61, rho 1.2 needs 1 Pa.
+    # the same worked case: 0.7875 m^3/s through 1 m^2 at Cd 0.61, rho 1.2 needs 1 Pa.
     assert op.orifice_pressure(0.7875, 1.0, cd=0.61, rho=1.2) == pytest.approx(1.0, rel=2e-4)
     assert op.orifice_pressure(-0.7875, 1.0, cd=0.61, rho=1.2) == pytest.approx(-1.0, rel=2e-4)
 
@@ -65,7 +65,7 @@ def test_ela_rule_of_thumb_from_cfm50():
 # --- stack and wind pressures ----------------------------------------------------------------------------------
 
 def test_stack_pressure_per_metre_for_a_hot_attic():
-    # PHYSICS.md [C]: about 0.84 Pa per metre of height for a 60 degC attic in 35 degC air
+    # worked by hand: about 0.84 Pa per metre of height for a 60 degC attic in 35 degC air
     # (ASHRAE stack pressure form); rho_o = 101325 / (287.055 * 308.15) = 1.1455 kg/m^3.
     rho_o = 101325.0 / (287.055 * 308.15)
     dp = op.stack_pressure(0.0, 1.0, 60.0, 35.0, rho_o)

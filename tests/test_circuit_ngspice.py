@@ -89,15 +89,15 @@ NTC = Thermistor.from_beta(10e3, 3950.0)
 NTC_SH = Thermistor.from_steinhart_hart(1.129148e-3, 2.34125e-4, 8.76741e-8)
 
 CASES = {
-    "sense-heat": dict(feedback_on="sense", mode="heat", reference_upper=10e3, reference_lower=6.8e3,
+    "sense-heat": dict(feedback_on="sense", action="close-on-rise", reference_upper=10e3, reference_lower=6.8e3,
                        sense_fixed=4.7e3, sense_trim=1.3e3, feedback=220e3),
-    "sense-cold": dict(feedback_on="sense", mode="cold", reference_upper=10e3, reference_lower=10e3,
+    "sense-cold": dict(feedback_on="sense", action="close-on-fall", reference_upper=10e3, reference_lower=10e3,
                        sense_fixed=8.2e3, sense_trim=0.0, feedback=150e3, input_offset=2e-3),
-    "reference-heat": dict(feedback_on="reference", mode="heat", reference_upper=4.7e3, reference_lower=10e3,
+    "reference-heat": dict(feedback_on="reference", action="close-on-rise", reference_upper=4.7e3, reference_lower=10e3,
                            sense_fixed=10e3, sense_trim=0.0, feedback=100e3),
-    "reference-cold": dict(feedback_on="reference", mode="cold", reference_upper=10e3, reference_lower=10e3,
+    "reference-cold": dict(feedback_on="reference", action="close-on-fall", reference_upper=10e3, reference_lower=10e3,
                            sense_fixed=22e3, sense_trim=3.3e3, feedback=330e3, input_offset=-3e-3),
-    "reference-heat-steinhart-hart": dict(feedback_on="reference", mode="heat", reference_upper=4.7e3,
+    "reference-heat-steinhart-hart": dict(feedback_on="reference", action="close-on-rise", reference_upper=4.7e3,
                                           reference_lower=10e3, sense_fixed=10e3, sense_trim=0.0,
                                           feedback=100e3, thermistor=NTC_SH, led_ideality=1.6),
 }
@@ -110,8 +110,8 @@ def test_switching_temperatures_match_ngspice(name, tmp_path):
     p = CircuitParams(**kw)
     ours = switching_temperatures(p)
     t_on, t_off = run_ngspice(p, tmp_path)
-    # check values: ngspice transient sweep of the same circuit; agreement within 0.02 K (issue 3)
+    # check values: ngspice transient sweep of the same circuit; agreement within 0.02 K
     assert ours.on_c == pytest.approx(t_on, abs=0.02)
     assert ours.off_c == pytest.approx(t_off, abs=0.02)
-    # the fan comes on when warm in heat mode and when cold in cold mode
-    assert (t_on > t_off) == (p.mode == "heat")
+    # the fan comes on when warm with a switch closing on rise and when cold with one closing on fall
+    assert (t_on > t_off) == (p.action == "close-on-rise")

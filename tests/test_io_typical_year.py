@@ -196,7 +196,7 @@ def epw_records():
 
 
 def write_epw(tmp_path, records, name="mesa.epw"):
-    # Field order of an EPW data line (EnergyPlus Auxiliary Programs, weather file format):
+    # Field order of an EPW data line (Crawley, Hand & Lawrie 1999, Proc. Building Simulation '99; from memory):
     # year, month, day, hour, minute, source flags, dry bulb, dew point, RH, pressure, ETR, ETRN,
     # horizontal IR, GHI, DNI, DHI, 4 illuminance/luminance fields, wind dir, wind speed,
     # total and opaque sky cover, visibility, ceiling, weather obs/codes, precipitable water,

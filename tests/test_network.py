@@ -74,7 +74,7 @@ def test_driven_rc_periodic_amplitude_and_phase():
 def test_roof_surface_settles_near_handbook_sol_air():
     # A roof covering with no inward loss settles at the sol-air temperature t_o + alpha I / h_o
     # (ASHRAE Handbook Fundamentals, sol-air temperature). With sky and ground at air temperature the
-    # long-wave term vanishes; the network's own convection (TARP) + radiation must then give an
+    # long-wave term vanishes; the network's own convection (Walton 1983) + radiation must then give an
     # equivalent film coefficient near the handbook's summer design h_o = 17 W/m2K at 3.4 m/s wind
     # (ASHRAE Handbook Fundamentals; from memory). We accept 25 % (correlations differ that much).
     sc = demo_scenario()

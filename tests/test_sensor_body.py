@@ -35,7 +35,7 @@ def integrate(body, air_speed, temp_air, temp_start, t_end, power=0.0, events=No
 
 def test_epoxy_bead_dissipation_constant_in_datasheet_range():
     # Makers' definition: the power that self-heats the part by 1 K in still air at 25 degC. Epoxy bead
-    # and chip thermistors: 0.5-1 mW/K in still air (thermistor makers' application pages, PHYSICS.md).
+    # and chip thermistors: 0.5-1 mW/K in still air (thermistor makers' application pages).
     delta = BEAD.dissipation_constant(0.0, 25.0, 26.0)
     assert 0.5e-3 <= delta <= 1.0e-3
     # The same figure read the other way: that power self-heats the bead by 1 K.
@@ -43,7 +43,7 @@ def test_epoxy_bead_dissipation_constant_in_datasheet_range():
 
 
 def test_epoxy_bead_still_air_time_constant_in_datasheet_range():
-    # Epoxy bead/disc thermistors: 10-30 s in still air (makers' figures, from memory; PHYSICS.md).
+    # Epoxy bead/disc thermistors: 10-30 s in still air (makers' figures, from memory).
     tau = makers_time_constant(BEAD, 0.0)
     assert 10.0 <= tau <= 30.0
 
@@ -59,21 +59,20 @@ def test_moving_air_shortens_the_time_constant_two_to_four_times(air_speed):
 
 
 def test_stainless_probe_time_constants_in_datasheet_range():
-    # Stainless probes: 60-180 s in still air, 20-60 s in moving air (makers' figures, from memory;
-    # PHYSICS.md).
+    # Stainless probes: 60-180 s in still air, 20-60 s in moving air (makers' figures, from memory).
     probe = preset("probe-6mm")
     assert 60.0 <= makers_time_constant(probe, 0.0) <= 180.0
     assert 20.0 <= makers_time_constant(probe, 2.5) <= 60.0
 
 
 def test_smaller_bodies_respond_faster():
-    # Makers' ranges (PHYSICS.md, from memory): glass bead 0.5-5 s < epoxy bead 10-30 s < probe 60-180 s.
+    # Makers' ranges (from memory): glass bead 0.5-5 s < epoxy bead 10-30 s < probe 60-180 s.
     taus = [makers_time_constant(preset(n), 0.0) for n in ("glass-bead-1mm", "epoxy-bead-2mm", "probe-6mm")]
     assert taus[0] < taus[1] < taus[2]
 
 
 def test_radiative_conductance_linearised_check_value():
-    # PHYSICS.md / ASHRAE Handbook Fundamentals: h_r = 4 eps sigma T^3 = 5.51 W/m^2K at eps 0.9, 300 K.
+    # ASHRAE Handbook Fundamentals: h_r = 4 eps sigma T^3 = 5.51 W/m^2K at eps 0.9, 300 K.
     g = BEAD.radiative_conductance(26.85, 26.85)
     assert g / BEAD.area == pytest.approx(5.51, rel=2e-3)
     # Exact secant form: G (T_s - T_r) = eps sigma A (T_s^4 - T_r^4) (Stefan-Boltzmann law).
@@ -83,7 +82,7 @@ def test_radiative_conductance_linearised_check_value():
 
 
 def test_self_heating_of_a_one_milliwatt_per_kelvin_bead():
-    # PHYSICS.md (makers' application pages): a divider drawing ~3 mW self-heats a 1 mW/K bead by ~3 K.
+    # Makers' application pages: a divider drawing ~3 mW self-heats a 1 mW/K bead by ~3 K.
     # Free convection grows with the rise, so the 3 K is reached with a little less: 2.5-3 K.
     bead = SensorBody("bead", 2.4e-3, mass=1.3e-5, specific_heat=900.0, datasheet_dissipation_constant=1e-3)
     assert bead.dissipation_constant(0.0, 25.0, 26.0) == pytest.approx(1e-3, rel=1e-9)

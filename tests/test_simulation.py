@@ -68,7 +68,7 @@ def test_events_located_within_one_second(clear_week):
 
 def test_clear_day_dark_roof_passive_vents_in_field_range(clear_week):
     # Clear hot-humid summer day, dark shingles, R-30, passive vents only (fan disabled).
-    # Field range: attic air peaks 15-25 K above ambient, deck 60-80 C (PHYSICS.md sanity band; the
+    # Field range: attic air peaks 15-25 K above ambient, deck 60-80 C (common-practice sanity band; the
     # Florida roof-systems study, Parker, Sonne & Sherwin, FSEC-CR-1220-00, reports ~22 K for dark
     # shingles). Common practice band, values recalled, not re-measured here.
     sc = demo_scenario(["fan.enabled=false", "simulation.spinup_days=3"])

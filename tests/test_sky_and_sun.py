@@ -12,13 +12,13 @@ from atticsim.network.heat_transfer import sol_air_temperature
 
 def test_berdahl_martin_check_value():
     # Berdahl & Martin (1984), Solar Energy 32(5): eps = 0.711 + 0.56 x + 0.73 x^2, x = Tdp/100.
-    # Worked by hand (PHYSICS.md): Ta = 30 C, Tdp = 20 C -> eps = 0.8522, T_sky = 291.27 K.
+    # Worked by hand (Berdahl & Martin 1984): Ta = 30 C, Tdp = 20 C -> eps = 0.8522, T_sky = 291.27 K.
     assert sky_emissivity_berdahl_martin(20.0) == pytest.approx(0.711 + 0.112 + 0.0292, abs=1e-12)
     assert sky_temperature_berdahl_martin(30.0, 20.0) == pytest.approx(291.27, abs=0.01)
 
 
 def test_swinbank_check_value():
-    # Swinbank (1963): T_sky = 0.0552 Ta^1.5 -> 291.36 K at 30 C (PHYSICS.md).
+    # Swinbank (1963): T_sky = 0.0552 Ta^1.5 -> 291.36 K at 30 C (worked by hand).
     assert sky_temperature_swinbank(30.0) == pytest.approx(291.36, abs=0.01)
 
 
@@ -52,5 +52,5 @@ def test_beam_on_tilted_plane_matches_incidence_angle():
 
 def test_sol_air_worked_example():
     # ASHRAE Handbook Fundamentals, sol-air temperature: t_e = t_o + alpha I / h_o - eps dR / h_o.
-    # Worked by hand (PHYSICS.md): 35 C, alpha 0.9, 1000 W/m2, h_o 17, horizontal (eps dR = 63) -> 84.2 C.
+    # Worked by hand (ASHRAE Handbook Fundamentals, sol-air temperature): 35 C, alpha 0.9, 1000 W/m2, h_o 17, horizontal (eps dR = 63) -> 84.2 C.
     assert sol_air_temperature(35.0, 1000.0, 0.9, 17.0, 63.0) == pytest.approx(84.2, abs=0.05)

@@ -1,4 +1,4 @@
-"""Unit parsing at the edges, against definitions and PHYSICS.md check values."""
+"""Unit parsing at the edges, against definitions and worked check values."""
 
 import math
 
@@ -8,7 +8,7 @@ from atticsim.units import UnitError, to_si
 
 
 def test_r_value_ip_to_si():
-    # R-38 (ft2.F.h/Btu_IT) = 6.69 m2K/W; R-30 = 5.28; R-19 = 3.35 (PHYSICS.md; NIST SP 811 factor 0.17611)
+    # R-38 (ft2.F.h/Btu_IT) = 6.69 m2K/W; R-30 = 5.28; R-19 = 3.35 (NIST SP 811 factor 0.17611)
     assert to_si("R-38", "r_value") == pytest.approx(6.692, abs=0.001)
     assert to_si("R-30", "r_value") == pytest.approx(5.283, abs=0.001)
     assert to_si("R19", "r_value") == pytest.approx(3.346, abs=0.001)

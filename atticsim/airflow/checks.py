@@ -13,7 +13,7 @@ from atticsim.units import IP_FACTORS
 #: Code edition implemented by :func:`code_required_vent_area`.
 CODE_EDITION = "IRC 2018, section R806.2"
 #: Intake net free area per unit of fan flow [m^2 per m^3/s]: 1 ft^2 per 300 cfm (a ventilation trade
-#: association's published guidance for powered attic ventilators; PHYSICS.md). 1 ft^2 = 0.09290304 m^2,
+#: association's published guidance for powered attic ventilators; common practice). 1 ft^2 = 0.09290304 m^2,
 #: 300 cfm = 300 * 0.3048^3 / 60 m^3/s (exact definitions of the foot).
 INTAKE_AREA_PER_FLOW = 0.3048**2 / (300.0 * 0.3048**3 / 60.0)
 #: House depressurisation above which a fan may spill flue gases from atmospherically vented combustion

@@ -103,7 +103,7 @@ def orifice_flow(dp, area, cd=0.61, rho=1.2):
     area : float or array_like
         Net free area of the opening [m^2].
     cd : float or array_like, default 0.61
-        Discharge coefficient [-] (0.61 for a sharp-edged orifice; PHYSICS.md, from memory).
+        Discharge coefficient [-] (0.61 for a sharp-edged orifice; from memory).
     rho : float or array_like, default 1.2
         Density of the air passing the opening (the upstream air) [kg/m^3].
 

@@ -16,7 +16,7 @@ def sky_emissivity_berdahl_martin(temp_dew, hour=None, opaque_cloud=None):
     Berdahl, P. & Martin, M. (1984), "Emissivity of clear skies", Solar Energy 32(5) 663-664:
     eps_clear = 0.711 + 0.56 (T_dp/100) + 0.73 (T_dp/100)^2 with T_dp the dew point in degC,
     plus the diurnal term 0.013 cos(2 pi t/24) (t = hour from midnight), and the cloud correction
-    eps = eps_clear + (1 - eps_clear) 0.9 n_opaque (as used with it in TARP/BLAST, from memory).
+    eps = eps_clear + (1 - eps_clear) 0.9 n_opaque (Walton 1983, NBSIR 83-2655, from memory).
 
     Parameters
     ----------

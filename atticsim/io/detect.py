@@ -8,7 +8,7 @@ Signatures looked for (first lines of the file):
 
 * atticsim weather CSV: first non-blank line starts with ``#`` and a CSV header row
   starting with ``time,`` follows the ``#`` lines;
-* EPW: first line starts with ``LOCATION,`` (EnergyPlus weather format);
+* EPW: first line starts with ``LOCATION,`` (EPW weather file);
 * TMY3: second line starts with ``Date (MM/DD/YYYY),Time (HH:MM)`` (NREL TMY3 user's manual);
 * TMY2: first line is the fixed-width station header (WBAN number, city, state, time
   zone, N/S latitude, E/W longitude, elevation) and the second is a data record that

@@ -11,7 +11,7 @@ is the hour ENDING at that time):
 * irradiance (GHI, DNI, DHI) is the energy received during the 60 minutes before the
   stamp [Wh/m^2], i.e. numerically the mean irradiance of that hour [W/m^2]
   (TMY3: Wilcox & Marion 2008, NREL/TP-581-43156, section 1; TMY2: Marion & Urban
-  1995, User's Manual for TMY2s, section 3; EPW: EnergyPlus Auxiliary Programs,
+  1995, User's Manual for TMY2s, section 3; EPW: Crawley, Hand & Lawrie 1999, Proc. Building Simulation '99,
   weather file format, from memory);
 * dry-bulb, dew point, humidity, pressure and wind are observed AT the stamp
   (same sources).
@@ -24,7 +24,7 @@ the first mid-hour of a full typical year the value "before" is the Dec 31 24:00
 record (the typical year is treated as periodic); for a partial file the first value
 is held for that half hour.  EPW horizontal infrared radiation is treated as an
 instantaneous value too: weather converters compute it from the hour's dry-bulb,
-dew point and opaque sky cover (EnergyPlus Auxiliary Programs, from memory).
+dew point and opaque sky cover (Crawley, Hand & Lawrie 1999, from memory).
 
 Calendar year: typical years mix months from different source years.  The records
 are laid on ``year`` (default: the file's year when all records share one, otherwise
@@ -384,12 +384,12 @@ def _epw_records_per_hour(where: str) -> int:
 def read_epw(
     path: str | os.PathLike, year: int | None = None, *, max_gap_h: float = DEFAULT_MAX_GAP_H
 ) -> tuple[pd.DataFrame, WeatherMeta, ValidationReport]:
-    """Read an EnergyPlus weather (EPW) file into the normalised weather frame.
+    """Read an EPW weather file into the normalised weather frame.
 
     Parsing by :func:`pvlib.iotools.read_epw`.  Site from the LOCATION line (city,
     state, country, source, WMO, latitude, longitude, UTC offset [h], elevation [m]).
     Uses the file's own horizontal infrared radiation as sky_ir.  Missing-value codes
-    (EnergyPlus Auxiliary Programs, weather file format, from memory): dry-bulb and dew
+    (Crawley, Hand & Lawrie 1999, Proc. Building Simulation '99, from memory): dry-bulb and dew
     point 99.9, humidity 999, pressure 999999, irradiance and infrared 9999, wind
     direction 999, wind speed 999.  Only hourly files (1 record per hour).
 

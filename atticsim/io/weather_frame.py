@@ -71,7 +71,7 @@ TIME_UNIT = "us"
 #: Longest gap (missing duration) that validation interpolates by default [h].
 DEFAULT_MAX_GAP_H = 3.0
 
-# Validation limits.  They are the project's rules (issue 5); the physical reasons:
+# Validation limits.  They are the project's rules; the physical reasons:
 # record surface air temperatures -89.2 degC (Vostok, 1983) and 56.7 degC (Death Valley,
 # 1913) per the WMO extremes archive (from memory); DNI cannot much exceed the solar
 # constant 1361 W/m^2 (Kopp & Lean 2011, from memory); GHI above it occurs briefly under

@@ -390,7 +390,7 @@ def rhs(x, u, fan, air, prm, planes, ints, heat, out):
         # (Duffie & Beckman sect. 2.15 and 3.9), ground at air temperature
         q_sky = emittance * SIGMA * area * planes[p, _F_SKY] * (k_sky4 - k_cov4)
         q_ground = emittance * SIGMA * area * planes[p, _F_GROUND] * (k_out4 - k_cov4)
-        # exterior convection: TARP sum of Sparrow's forced and Walton's natural term
+        # exterior convection: sum of Sparrow's forced and Walton's natural term
         # (Walton 1983, NBSIR 83-2655, from memory)
         h_ext = (_sparrow(wind, planes[p, _PERIMETER], area, roughness)
                  + _walton(t_cov - t_out, cos_tilt, True))
