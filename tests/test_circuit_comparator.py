@@ -30,10 +30,10 @@ def ideal(**kw):
 
 
 def test_application_note_hysteresis_example():
-    # Worked example of a comparator maker's application note on adding hysteresis (values as in
-    # /work/shared/PHYSICS.md): Vcc = 12 V, R1 = 4.7 k (rail to +), R2 = 10 k (+ to ground), RH = 100 k
+    # Worked example of a comparator maker's application note on adding hysteresis (our own values,
+    # worked by hand with its formulas): Vcc = 12 V, R1 = 4.7 k (rail to +), R2 = 10 k (+ to ground), RH = 100 k
     # (output to +), ideal output: V_H = 8.28214 V, V_L = 7.91035 V.
-    p = ideal(feedback_on="reference", mode="heat")
+    p = ideal(feedback_on="reference", action="close-on-rise")
     th = switching_temperatures(p)
     assert th.v_plus_on == pytest.approx(8.28214, abs=1e-3)
     assert th.v_plus_off == pytest.approx(7.91035, abs=1e-3)
@@ -51,7 +51,7 @@ def test_sense_arrangement_by_hand_nodal_analysis():
     # switches when it crosses the reference, V = 12 * 10k / 14.7k. KCL at the sense node (Kirchhoff):
     #   output high (12 V): (12 - V)/R_f + (12 - V)/R_H = V/R_t
     #   output low (0 V):   (12 - V)/R_f - V/R_H       = V/R_t
-    p = ideal(feedback_on="sense", mode="heat")
+    p = ideal(feedback_on="sense", action="close-on-rise")
     th = switching_temperatures(p)
     v = 12 * 10e3 / 14.7e3
     r_on = v / ((12 - v) / 10e3 + (12 - v) / 100e3)
@@ -65,7 +65,7 @@ def test_sense_arrangement_by_hand_nodal_analysis():
 
 def test_input_offset_moves_the_switching_node_voltage():
     # the output switches where V(+) - V(-) = offset: with +5 mV the sense node switches 5 mV higher
-    p = ideal(feedback_on="sense", mode="heat", input_offset=0.005)
+    p = ideal(feedback_on="sense", action="close-on-rise", input_offset=0.005)
     th = switching_temperatures(p)
     v = 12 * 10e3 / 14.7e3 + 0.005
     assert th.v_plus_on == pytest.approx(v, abs=1e-9)
@@ -74,18 +74,22 @@ def test_input_offset_moves_the_switching_node_voltage():
 
 def test_without_feedback_there_is_no_hysteresis():
     # no feedback: both thresholds where the NTC equals the upper resistor times V_ref/(Vcc - V_ref)
-    p = ideal(feedback_on="sense", mode="heat", feedback=math.inf, reference_upper=10e3)
+    p = ideal(feedback_on="sense", action="close-on-rise", feedback=math.inf, reference_upper=10e3)
     th = switching_temperatures(p)
     assert th.hysteresis_k == 0.0
     assert th.on_c == pytest.approx(25.0, abs=1e-9)  # R_t = 10 k = R25
 
 
-def test_equal_reference_divider_on_82v_rail_sits_at_half():
-    # trade fact (common practice, no source): two equal resistors on an 8.2 V zener rail give about 4.1 V
-    p = CircuitParams(rail=8.2, reference_upper=10e3, reference_lower=10e3, sense_fixed=10e3, sense_trim=0.0,
-                      feedback=470e3, led_resistor=470.0, led_forward=1.2, thermistor=NTC)
+def test_unequal_reference_divider_by_ohms_law():
+    # Our own worked case (the demo circuit's reference): 22 k over 12 k on a 9.1 V rail.
+    # Ohm's law, unloaded divider: V = 9.1 V x 12 k / (22 k + 12 k) = 109.2 / 34 = 3.2118 V; the comparator's
+    # input draws nothing, and at the switching points V(-) is that node.
+    p = CircuitParams(rail=9.1, reference_upper=22e3, reference_lower=12e3, sense_fixed=39e3, sense_trim=12e3,
+                      feedback=300e3, led_resistor=1.3e3, led_forward=1.2,
+                      thermistor=Thermistor.from_beta(47e3, 4100.0))
     th = switching_temperatures(p)
-    assert th.v_minus_on == pytest.approx(4.1, abs=0.01)
+    assert th.v_minus_on == pytest.approx(9.1 * 12e3 / 34e3, rel=1e-9)
+    assert th.v_minus_on == pytest.approx(3.2118, abs=1e-4)
 
 
 def test_led_current_when_on_by_hand():
@@ -119,12 +123,12 @@ def test_output_high_voltage_is_self_consistent_with_the_led():
 
 def test_thermistor_power_by_hand():
     # unloaded divider (reference arrangement, NTC upper, 10 k lower): P = (12 - V_s)^2 / R_t
-    p = ideal(feedback_on="reference", mode="heat")
+    p = ideal(feedback_on="reference", action="close-on-rise")
     r_t = 10e3 * math.exp(3950 * (1 / 313.15 - 1 / 298.15))
     v_s = 12 * 10e3 / (r_t + 10e3)
     assert thermistor_power(p, 40.0, False) == pytest.approx((12 - v_s) ** 2 / r_t, rel=1e-9)
     # loaded sense node (sense arrangement, NTC lower, output sinking at 0 V): Millman's theorem
-    p = ideal(feedback_on="sense", mode="heat")
+    p = ideal(feedback_on="sense", action="close-on-rise")
     v = (12 / 10e3) / (1 / 10e3 + 1 / r_t + 1 / 100e3)
     assert thermistor_power(p, np.array([40.0]), np.array([True])) == pytest.approx([v**2 / r_t], rel=1e-9)
 
@@ -141,12 +145,12 @@ def test_threshold_powers_and_air_temperatures():
     on_air, off_air = air_temperatures(th, p, 1e-3)
     assert on_air == pytest.approx(th.on_c - th.sense_power_on_w / 1e-3, abs=1e-9)
     assert off_air == pytest.approx(th.off_c - th.sense_power_off_w / 1e-3, abs=1e-9)
-    assert 1.0 < th.on_c - on_air < 5.0  # a divider of a few mW on a 1 mW/K bead (PHYSICS.md: ~3 K)
+    assert 1.0 < th.on_c - on_air < 5.0  # a divider of a few mW on a 1 mW/K bead (makers' application pages: ~3 K)
 
 
 def test_supply_current_by_hand():
     # reference arrangement, fan on: rail current = sense divider + reference upper resistor + LED (KCL)
-    p = ideal(feedback_on="reference", mode="heat", led_resistor=1060.0, led_forward=1.2, output_low=0.2)
+    p = ideal(feedback_on="reference", action="close-on-rise", led_resistor=1060.0, led_forward=1.2, output_low=0.2)
     r_t = NTC.resistance(45.0)
     v_ref = (12 / 4.7e3 + 0.2 / 100e3) / (1 / 4.7e3 + 1 / 10e3 + 1 / 100e3)  # Millman's theorem
     want = 12 / (r_t + 10e3) + (12 - v_ref) / 4.7e3 + 0.010
@@ -155,13 +159,13 @@ def test_supply_current_by_hand():
 
 def test_fan_switches_on_warm_in_heat_and_cold_in_cold_mode():
     # thermistor position per the issue: the output sinks when V(+) < V(-)
-    assert derived_position("heat", "sense") == "lower"
-    assert derived_position("heat", "reference") == "upper"
-    assert derived_position("cold", "sense") == "upper"
-    assert derived_position("cold", "reference") == "lower"
+    assert derived_position("close-on-rise", "sense") == "lower"
+    assert derived_position("close-on-rise", "reference") == "upper"
+    assert derived_position("close-on-fall", "sense") == "upper"
+    assert derived_position("close-on-fall", "reference") == "lower"
     for fb_on in ("sense", "reference"):
-        heat = switching_temperatures(ideal(feedback_on=fb_on, mode="heat", sense_fixed=5e3))
-        cold = switching_temperatures(ideal(feedback_on=fb_on, mode="cold", sense_fixed=20e3))
+        heat = switching_temperatures(ideal(feedback_on=fb_on, action="close-on-rise", sense_fixed=5e3))
+        cold = switching_temperatures(ideal(feedback_on=fb_on, action="close-on-fall", sense_fixed=20e3))
         assert heat.on_c > heat.off_c
         assert cold.on_c < cold.off_c
 
@@ -175,11 +179,11 @@ def test_findings_flag_led_current_beyond_guaranteed_sink():
 
 def test_bad_input_raises():
     with pytest.raises(ValueError, match="contradicts"):
-        ideal(feedback_on="sense", mode="heat", thermistor_position="upper")
+        ideal(feedback_on="sense", action="close-on-rise", thermistor_position="upper")
     with pytest.raises(ValueError, match="reference_upper"):
         ideal(reference_upper=-1.0)
-    with pytest.raises(ValueError, match="mode"):
-        ideal(mode="warm")
+    with pytest.raises(ValueError, match="action"):
+        ideal(action="warm")
     with pytest.raises(ValueError, match="feedback_on"):
         ideal(feedback_on="output")
     with pytest.raises(ValueError, match="led_forward"):
@@ -189,7 +193,7 @@ def test_bad_input_raises():
         air_temperatures(switching_temperatures(p), p, 0.0)
     # NTC upper, 100 k lower, 10 k feedback: the output-high current alone holds the node above the
     # reference (0.44 mA x 100 k >> 6 V), so the fan never comes on
-    p = ideal(feedback_on="sense", mode="cold", reference_upper=10e3, sense_fixed=100e3, feedback=10e3,
+    p = ideal(feedback_on="sense", action="close-on-fall", reference_upper=10e3, sense_fixed=100e3, feedback=10e3,
               led_resistor=1e3, led_forward=1.2)
     with pytest.raises(ValueError, match="never switches on"):
         switching_temperatures(p)
@@ -205,7 +209,7 @@ NO_TOL = dict(resistor=0.0, trim=0.0, r25=0.0, beta=0.0, rail=0.0, offset=0.0)
 def test_ratiometric_circuit_ignores_rail_tolerance():
     # with an ideal output every voltage scales with the rail, so the thresholds do not move
     # (ratiometric divider circuits; common practice, no source)
-    p = ideal(feedback_on="reference", mode="heat")
+    p = ideal(feedback_on="reference", action="close-on-rise")
     on, off, _, bad = worst_case(p, Tolerances(**{**NO_TOL, "rail": 0.05}))
     nominal = switching_temperatures(p)
     # (the 1 uV stand-in pull-up is not quite ideal: nano-kelvin residue)
@@ -221,7 +225,7 @@ def test_ratiometric_circuit_ignores_rail_tolerance():
 def test_r25_tolerance_by_hand():
     # the circuit fixes the thermistor resistance at the switch-on point; a part with R25 +-1 % reaches it at
     # 1/T = 1/T25 + ln(R_on / (R25 (1 +- 0.01)))/B (Beta equation, by hand)
-    p = ideal(feedback_on="reference", mode="heat")
+    p = ideal(feedback_on="reference", action="close-on-rise")
     r_on = switching_temperatures(p).r_on
     t = sorted(1 / (1 / 298.15 + math.log(r_on / (10e3 * f)) / 3950) - 273.15 for f in (0.99, 1.01))
     on, _, _, _ = worst_case(p, Tolerances(**{**NO_TOL, "r25": 0.01}))
@@ -230,7 +234,7 @@ def test_r25_tolerance_by_hand():
 
 def test_offset_tolerance_by_hand():
     # +-5 mV offset: the sense divider (NTC upper, 10 k lower) switches at V_H -+ 5 mV (app-note V_H above)
-    p = ideal(feedback_on="reference", mode="heat")
+    p = ideal(feedback_on="reference", action="close-on-rise")
     v_h = switching_temperatures(p).v_plus_on
     t = sorted(beta_t(10e3 * (12 - v) / v) for v in (v_h - 0.005, v_h + 0.005))
     on, _, _, _ = worst_case(p, Tolerances(**{**NO_TOL, "offset": 0.005}))

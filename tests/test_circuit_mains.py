@@ -18,6 +18,17 @@ def test_dropper_current_by_hand():
     assert dropper_current(230.0, 50.0, 0.47e-6) == pytest.approx(0.03396, abs=1e-5)
 
 
+def test_demo_dropper_at_high_line_by_hand():
+    # Our own worked case, the demo circuit's 0.56 uF dropper at the +10 % high line of a 120 V / 60 Hz supply:
+    # X_C = 1 / (2 pi 60 Hz 0.56 uF) = 1 / 2.11115e-4 S = 4736.8 ohm; I = 132 V / 4736.8 ohm = 27.87 mA
+    x_c = 1.0 / (2 * math.pi * 60.0 * 0.56e-6)
+    assert x_c == pytest.approx(4736.8, abs=0.1)
+    assert dropper_current(132.0, 60.0, 0.56e-6) == pytest.approx(0.02787, abs=1e-5)
+    # its bleed resistor: 820 k x 0.56 uF = 0.459 s; from the high-line peak 132 sqrt 2 = 186.7 V it falls in
+    # 1 s to 186.7 exp(-1 / 0.4592) = 21.15 V, under the 34 V of IEC 60335-1 cl. 22.5
+    assert discharge_voltage(132.0 * math.sqrt(2), 820e3, 0.56e-6) == pytest.approx(21.15, abs=0.01)
+
+
 def test_dropper_dc_current_by_hand():
     # charge balance: each half cycle the capacitor swings between -+(V_pk - V_z - 2 V_d), carrying
     # 2 C (V_pk - V_z - 2 V_d) through the bridge; two half cycles per period -> I = 4 f C (...)

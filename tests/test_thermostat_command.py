@@ -40,19 +40,24 @@ def test_sensor_is_heated_by_its_divider_power(run):
     p = thermistor_power(sc.thermostat.circuit_params(), ts["sensor_c"].to_numpy(), ts["fan_on"].to_numpy() > 0)
     rise = ts["sensor_c"] - ts["attic_air_c"]
     assert np.allclose(rise, p / sc.sensor.dissipation_constant, atol=0.05)
-    assert rise.mean() > 1.0  # about 3 mW into 1.5 mW/K: kelvins, not a rounding error
+    # the demo's 47 k NTC dissipates about 0.4 mW at night (3.2 V across about 25 k): 0.4 mW / 1.5 mW/K is
+    # about 0.25 K, well above the 0.05 K tolerance, so the check cannot pass with no heating at all
+    assert rise.mean() > 0.15
 
 
 def test_air_temperature_at_switch_on_matches_the_report(run):
-    # The report's steady-state "air temperature at switch-on" and the simulation's attic air at the
-    # switch-on instant agree (the sensor lags the slowly warming air by well under 0.2 K).
+    # The report's steady-state "air temperature at switch-on" and the air around the sensor in the
+    # simulation at the switch-on instant agree (the sensor lags the slowly warming air by well under 0.2 K).
     sc, r = run
     params = sc.thermostat.circuit_params()
     on_air, _ = air_temperatures(switching_temperatures(params), params, sc.sensor.dissipation_constant)
     t_on = r.events[r.events.fan == "on"].time.iloc[0]
-    ts = r.timeseries
-    air_at = np.interp((t_on - ts.index[0]).total_seconds(), (ts.index - ts.index[0]).total_seconds(),
-                       ts["attic_air_c"].to_numpy())
+    # the local air at the switch instant, extrapolated from the last two rows before it (the rows after it
+    # already see the fan's cool air)
+    before = r.timeseries.loc[:t_on, "sensor_local_air_c"].iloc[-2:]
+    dt = (before.index[1] - before.index[0]).total_seconds()
+    slope = (before.iloc[1] - before.iloc[0]) / dt
+    air_at = before.iloc[1] + slope * (t_on - before.index[1]).total_seconds()
     assert air_at == pytest.approx(on_air, abs=0.2)
 
 
