@@ -49,12 +49,12 @@ def _parts(**kw):
 
 
 def test_design_matches_hand_solution_of_the_application_note_circuit():
-    # Ideal output (1 mOhm / 1 uV pull-up, 0 V low), reference arrangement, NTC above R_f, heat mode.
+    # Ideal output (1 mOhm / 1 uV pull-up, 0 V low), reference arrangement, NTC above R_f, switch closing on rise.
     # App-note thresholds V_L/Vcc = (1/R1)/(g0 + x), 1 - V_H/Vcc = (1/R2)/(g0 + x), g0 = 1/R1 + 1/R2, x = 1/RH;
     # divider V/Vcc = R_f/(R_t + R_f). Dividing the two: (R1/R2) R_f (R_on + R_f) = R_on (R_off + R_f), a
     # quadratic in R_f; then g0 + x = (R_off + R_f)/(R1 R_f). Solved by hand here.
     r1, r2 = 4.7e3, 10e3
-    p = _parts(feedback_on="reference", mode="heat", led_resistor=1e-3, led_forward=1e-6, output_low=0.0,
+    p = _parts(feedback_on="reference", action="close-on-rise", led_resistor=1e-3, led_forward=1e-6, output_low=0.0,
                sense_fixed=1e3)
     r_on = 10e3 * math.exp(3950 * (1 / 313.15 - 1 / 298.15))  # Beta equation at 40 degC
     r_off = 10e3 * math.exp(3950 * (1 / 308.15 - 1 / 298.15))  # at 35 degC
@@ -67,11 +67,11 @@ def test_design_matches_hand_solution_of_the_application_note_circuit():
     assert d.feedback_exact == pytest.approx(r_h, rel=1e-6)
 
 
-@pytest.mark.parametrize("feedback_on, mode, on, off", [
-    ("sense", "heat", 40.0, 35.0), ("reference", "heat", 45.0, 40.0),
-    ("sense", "cold", 5.0, 8.0), ("reference", "cold", 3.0, 5.0)])
-def test_design_rounds_the_safe_way(feedback_on, mode, on, off):
-    p = _parts(feedback_on=feedback_on, mode=mode, sense_fixed=1e3)
+@pytest.mark.parametrize("feedback_on, action, on, off", [
+    ("sense", "close-on-rise", 40.0, 35.0), ("reference", "close-on-rise", 45.0, 40.0),
+    ("sense", "close-on-fall", 5.0, 8.0), ("reference", "close-on-fall", 3.0, 5.0)])
+def test_design_rounds_the_safe_way(feedback_on, action, on, off):
+    p = _parts(feedback_on=feedback_on, action=action, sense_fixed=1e3)
     d = design_circuit(p, on, off, series="E24")
     # the exact values give the wanted temperatures
     exact = switching_temperatures(CircuitParams(**{**p.__dict__, "feedback": d.feedback_exact,
@@ -81,7 +81,7 @@ def test_design_rounds_the_safe_way(feedback_on, mode, on, off):
     mant = d.feedback / 10 ** math.floor(math.log10(d.feedback))
     assert any(math.isclose(mant, v) for v in IEC_E24)
     assert d.feedback <= d.feedback_exact
-    sign = 1.0 if mode == "heat" else -1.0
+    sign = 1.0 if action == "close-on-rise" else -1.0
     # with the trimmer set: switch-on exactly as wanted, hysteresis at least as wanted
     assert d.thresholds.on_c == pytest.approx(on, abs=1e-6)
     assert d.thresholds.hysteresis_k >= abs(on - off) - 1e-9
@@ -91,7 +91,7 @@ def test_design_rounds_the_safe_way(feedback_on, mode, on, off):
 
 
 def test_design_from_on_and_hysteresis():
-    p = _parts(feedback_on="sense", mode="heat", sense_fixed=1e3)
+    p = _parts(feedback_on="sense", action="close-on-rise", sense_fixed=1e3)
     a = design_circuit(p, 40.0, hysteresis_k=4.0)
     b = design_circuit(p, 40.0, 36.0)
     assert a.feedback_exact == pytest.approx(b.feedback_exact, rel=1e-12)
@@ -99,10 +99,10 @@ def test_design_from_on_and_hysteresis():
 
 
 def test_design_refuses_what_the_parts_cannot_do():
-    p = _parts(feedback_on="sense", mode="heat", sense_fixed=47e3)
+    p = _parts(feedback_on="sense", action="close-on-rise", sense_fixed=47e3)
     with pytest.raises(ValueError, match="sense_fixed"):
         design_circuit(p, 40.0, 35.0)
-    p = _parts(feedback_on="sense", mode="heat", sense_fixed=1e3)
+    p = _parts(feedback_on="sense", action="close-on-rise", sense_fixed=1e3)
     with pytest.raises(ValueError, match="trimmer"):
         design_circuit(p, 40.0, 35.0, trim_max=500.0)
     with pytest.raises(ValueError, match="switch off below"):
@@ -115,6 +115,6 @@ def test_design_refuses_what_the_parts_cannot_do():
         design_circuit(p, 40.0, -55.0)
     # the reference arrangement's hysteresis is bounded: the non-inverting input swings at most between
     # the LED-loaded high level and the output-low level
-    p = _parts(feedback_on="reference", mode="heat", sense_fixed=1e3)
+    p = _parts(feedback_on="reference", action="close-on-rise", sense_fixed=1e3)
     with pytest.raises(ValueError, match="no feedback resistor"):
         design_circuit(p, 45.0, -60.0)

@@ -63,12 +63,15 @@ def test_run_writes_results_for_one_day(tmp_path):
 @pytest.mark.parametrize("change,key,reason", [
     (('flow = "1200 cfm"', 'flow = "1200 kg"'), "fan.flow", "volume flow"),
     (('area = "78.3 m2"', 'area = "-78.3 m2"'), "roof.planes.0.area", "greater than 0"),
-    (('off = "35 degC"', 'off = "45 degC"'), "thermostat", "off < on"),
+    (('off = "35 degC"', 'off = "45 degC"'), "thermostat", "closes on rise needs off < on"),
     (('flow = "1200 cfm"', 'flow = "0 cfm"'), "fan.flow", "greater than 0"),
     (('[vents]', '[vents]\ncolour = "red"'), "vents.colour", "unknown key"),
     (('insulation = "R-30"\n', ''), "ceiling.insulation", "required key is missing"),
     (('kind = "setpoints"', 'kind = "magic"'), "thermostat", "kind"),
     (('latitude = 29.3', 'latitude = 129.3'), "site.latitude", "less than or equal to 90"),
+    # renamed keys name their successors
+    (('action = "close-on-rise"', 'mode = "heat"'), "thermostat.mode", "use thermostat.action"),
+    (('surface_texture = "granular"', 'roughness = "rough"'), "roof.roughness", "use roof.surface_texture"),
 ])
 def test_bad_scenarios_give_one_line_errors(tmp_path, change, key, reason):
     p = write_scenario(tmp_path, *change)
@@ -87,6 +90,18 @@ def test_malformed_toml_and_missing_file(tmp_path):
     assert r.exit_code == 2 and "TOML syntax error" in one_line_error(r)
     r = invoke("run", tmp_path / "nope.toml", "--out", tmp_path / "o")
     assert r.exit_code == 2 and "file not found" in one_line_error(r)
+
+
+def test_action_words_close_on_fall(tmp_path):
+    # a switch that closes on fall runs the fan when cold: on below off
+    r = invoke("run", "--out", tmp_path / "o", "--start", "2025-07-01", "--end", "2025-07-01",
+               "--set", 'thermostat.action="close-on-fall"', "--set", "thermostat.on=20degC",
+               "--set", "thermostat.off=22degC")
+    assert r.exit_code == 0, r.output
+    r = invoke("run", "--out", tmp_path / "p", "--set", 'thermostat.action="close-on-fall"')
+    assert r.exit_code == 2 and "closes on fall needs on < off" in one_line_error(r)
+    r = invoke("run", "--out", tmp_path / "q", "--set", 'thermostat.mode="cold"')
+    assert r.exit_code == 2 and "thermostat.mode: renamed: use thermostat.action" in one_line_error(r)
 
 
 def test_bad_set_override(tmp_path):

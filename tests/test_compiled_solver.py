@@ -84,9 +84,9 @@ def test_compiled_switch_loop_gives_what_the_python_loop_gives(narrow_runs):
 
 
 def test_compiled_switch_loop_in_cold_mode_gives_what_the_python_loop_gives():
-    # cold mode (on when the sensor falls to `on`, off when it rises to `off`): the compiled loop's levels
+    # a switch closing on fall (on when the sensor falls to `on`, off when it rises to `off`): the compiled loop's levels
     # and directions per fan state must be the controller's, as the Python loop asks it at each switch
-    sc = load_scenario(BUNGALOW, ["simulation.spinup_days=0", 'thermostat.mode="cold"', "thermostat.on=30 degC",
+    sc = load_scenario(BUNGALOW, ["simulation.spinup_days=0", 'thermostat.action="close-on-fall"', "thermostat.on=30 degC",
                                   "thermostat.off=31 degC"])
     end = (np.datetime64(sc.weather.start) + np.timedelta64(1, "D")).astype(str)
     raw = run_raw(sc, start=sc.weather.start, end=end, include_no_fan=False)

@@ -22,7 +22,7 @@ def strata_hit_once(u):
 # --- ranges and lists ---------------------------------------------------------------------------------
 
 def test_range_includes_stop_on_the_grid_and_appends_the_unit():
-    # Issue 7: "thermostat.on=36:44:2degC" -> 36, 38, 40, 42, 44 degC (STOP included when on the grid).
+    # "thermostat.on=36:44:2degC" -> 36, 38, 40, 42, 44 degC (STOP included when on the grid).
     ax = parse_vary("thermostat.on=36:44:2degC")
     assert [v.display for v in ax.values] == ["36 degC", "38 degC", "40 degC", "42 degC", "44 degC"]
     assert ax.values[0].literal == '"36 degC"'
@@ -144,7 +144,7 @@ def test_study_checks_sampling_options():
 # --- derived hysteresis -------------------------------------------------------------------------------
 
 def test_hysteresis_width_sets_off_below_on_in_heat_mode():
-    base = demo_scenario()  # heat mode, on = 40 degC
+    base = demo_scenario()  # switch closing on rise, on = 40 degC
     width = parse_vary("thermostat.hysteresis=3K").values[0]
     assert point_overrides({"thermostat.hysteresis": width}, base) == ["thermostat.off=37.0"]
     # with the point's own switch-on temperature (104 degF = 40 degC exactly, by the Fahrenheit definition)
@@ -157,7 +157,7 @@ def test_hysteresis_width_sets_off_below_on_in_heat_mode():
 
 
 def test_hysteresis_width_sets_off_above_on_in_cold_mode():
-    base = demo_scenario(['thermostat.mode="cold"', "thermostat.on=5", "thermostat.off=8"])
+    base = demo_scenario(['thermostat.action="close-on-fall"', "thermostat.on=5", "thermostat.off=8"])
     width = parse_vary("thermostat.hysteresis=2K").values[0]
     assert point_overrides({"thermostat.hysteresis": width}, base) == ["thermostat.off=7.0"]
 

@@ -53,11 +53,12 @@ COMMON_MODE_HEADROOM = 1.5
 
 _FEEDBACK_ON = ("sense", "reference")
 _POSITIONS = ("lower", "upper")
-_MODES = ("heat", "cold")
+#: The switch's action: it closes (fan on) when the temperature rises, or when it falls (the trade's words).
+ACTIONS = ("close-on-rise", "close-on-fall")
 
 
-def derived_position(mode, feedback_on):
-    """Thermistor position that makes the fan come on when warm (heat) or when cold (cold).
+def derived_position(action, feedback_on):
+    """Thermistor position that makes the fan come on when warm (close on rise) or when cold (close on fall).
 
     The output sinks (fan on) when V(+) < V(-). With the NTC lower in its divider the sense voltage falls as
     the temperature rises; upper, it rises. On the non-inverting input ("sense") a falling sense voltage
@@ -65,8 +66,8 @@ def derived_position(mode, feedback_on):
 
     Parameters
     ----------
-    mode : str
-        "heat" (fan on when warm) or "cold" (fan on when cold).
+    action : str
+        "close-on-rise" (fan on when warm) or "close-on-fall" (fan on when cold).
     feedback_on : str
         "sense" or "reference".
 
@@ -75,12 +76,12 @@ def derived_position(mode, feedback_on):
     str
         "lower" or "upper".
     """
-    if mode not in _MODES:
-        raise ValueError(f"thermostat mode must be 'heat' or 'cold' (got {mode!r})")
+    if action not in ACTIONS:
+        raise ValueError(f"thermostat action must be 'close-on-rise' or 'close-on-fall' (got {action!r})")
     if feedback_on not in _FEEDBACK_ON:
         raise ValueError(f"feedback_on must be 'sense' or 'reference' (got {feedback_on!r})")
     falling_switches_on = feedback_on == "sense"
-    want_falling = falling_switches_on == (mode == "heat")
+    want_falling = falling_switches_on == (action == "close-on-rise")
     return "lower" if want_falling else "upper"
 
 
@@ -118,9 +119,9 @@ class CircuitParams:
     feedback_on : str
         "sense" or "reference" (see module docstring). Default "sense".
     thermistor_position : str or None
-        "lower", "upper" or None to derive it from ``mode`` and ``feedback_on``.
-    mode : str
-        "heat" (fan on when warm) or "cold" (fan on when cold). Default "heat".
+        "lower", "upper" or None to derive it from ``action`` and ``feedback_on``.
+    action : str
+        "close-on-rise" (fan on when warm) or "close-on-fall" (fan on when cold). Default "close-on-rise".
     sink_guaranteed : float
         Comparator's guaranteed output sink current [A]. Default 0.006 (typical datasheet minimum).
     trigger_current : float
@@ -144,7 +145,7 @@ class CircuitParams:
     input_offset: float = 0.0
     feedback_on: str = "sense"
     thermistor_position: str | None = None
-    mode: str = "heat"
+    action: str = "close-on-rise"
     sink_guaranteed: float = 0.006
     trigger_current: float = 0.010
     led_current_max: float = 0.050
@@ -170,7 +171,7 @@ class CircuitParams:
                 f"circuit input_offset must be a voltage smaller than the rail (got {self.input_offset!r})")
         if not (hasattr(self.thermistor, "resistance") and hasattr(self.thermistor, "temperature")):
             raise ValueError("circuit thermistor must be a Thermistor")
-        derived = derived_position(self.mode, self.feedback_on)
+        derived = derived_position(self.action, self.feedback_on)
         if self.thermistor_position is not None:
             if self.thermistor_position not in _POSITIONS:
                 raise ValueError(
@@ -178,16 +179,16 @@ class CircuitParams:
             if self.thermistor_position != derived:
                 falls = "falls" if self.thermistor_position == "lower" else "rises"
                 inp = "non-inverting" if self.feedback_on == "sense" else "inverting"
-                when = "cold" if self.mode == "heat" else "warm"
+                when = "cold" if self.action == "close-on-rise" else "warm"
                 raise ValueError(
-                    f"thermistor_position '{self.thermistor_position}' contradicts mode '{self.mode}' with "
+                    f"thermistor_position '{self.thermistor_position}' contradicts action '{self.action}' with "
                     f"feedback_on '{self.feedback_on}': the sense voltage {falls} with temperature on the {inp} "
                     f"input, so the fan would come on when {when}; use '{derived}' or omit it")
 
     @property
     def position(self):
         """Thermistor position in its divider, "lower" or "upper" (given or derived)."""
-        return self.thermistor_position or derived_position(self.mode, self.feedback_on)
+        return self.thermistor_position or derived_position(self.action, self.feedback_on)
 
     @property
     def sense_resistance(self):
@@ -418,9 +419,9 @@ def switching_temperatures(params):
             f"comparator's threshold (check the reference divider, sense resistors and feedback)")
     on_c = float(params.thermistor.temperature(r_on))
     off_c = float(params.thermistor.temperature(r_off))
-    if (on_c - off_c) * (1.0 if params.mode == "heat" else -1.0) < 0.0:
+    if (on_c - off_c) * (1.0 if params.action == "close-on-rise" else -1.0) < 0.0:
         raise ValueError(f"switch-on ({on_c:.2f} degC) and switch-off ({off_c:.2f} degC) are in the wrong order "
-                         f"for mode '{params.mode}': the feedback does not give positive hysteresis")
+                         f"for action '{params.action}': the feedback does not give positive hysteresis")
     led_on = led_on_current(params)
     v_th_on, v_th_off = float(k["v_th_on"]), float(k["v_th_off"])
     v_in = (float(k["v_plus_on"]), float(k["v_minus_on"]), float(k["v_plus_off"]), float(k["v_minus_off"]))

@@ -122,7 +122,7 @@ def design_circuit(params, on_c, off_c=None, hysteresis_k=None, series="E24", tr
     on_c : float
         Wanted switch-on thermistor temperature [degC].
     off_c : float, optional
-        Wanted switch-off temperature [degC] (below on_c in heat mode, above in cold mode).
+        Wanted switch-off temperature [degC] (below on_c for a switch closing on rise, above for one closing on fall).
     hysteresis_k : float, optional
         Wanted hysteresis [K], instead of off_c.
     series : str
@@ -142,7 +142,7 @@ def design_circuit(params, on_c, off_c=None, hysteresis_k=None, series="E24", tr
         if value is not None and not (isinstance(value, numbers.Real) and -100.0 < value < 200.0):
             raise ValueError(f"wanted {name} temperature must be a number of degC between -100 and 200 "
                              f"(got {value!r})")
-    sign = 1.0 if params.mode == "heat" else -1.0
+    sign = 1.0 if params.action == "close-on-rise" else -1.0
     if (off_c is None) == (hysteresis_k is None):
         raise ValueError("give exactly one of the wanted switch-off temperature and the wanted hysteresis")
     if off_c is None:
@@ -151,7 +151,7 @@ def design_circuit(params, on_c, off_c=None, hysteresis_k=None, series="E24", tr
         off_c = on_c - sign * hysteresis_k
     hyst = (on_c - off_c) * sign
     if not hyst > 0.0:
-        raise ValueError(f"in {params.mode} mode the fan must switch off {'below' if sign > 0 else 'above'} "
+        raise ValueError(f"with the switch closing on {'rise' if sign > 0 else 'fall'} the fan must switch off {'below' if sign > 0 else 'above'} "
                          f"the switch-on temperature (got on {on_c} degC, off {off_c} degC)")
     if trim_max is not None and not trim_max > 0.0:
         raise ValueError(f"trimmer full-scale value must be positive (got {trim_max!r})")

@@ -127,7 +127,7 @@ def _evaluate(params, dev):
     on = np.asarray(th.temperature(np.where(ok, k["r_on"], r25)), dtype=float)
     off = np.asarray(th.temperature(np.where(ok, k["r_off"], r25)), dtype=float)
     # a sample whose feedback came out with the wrong sign counts as not switching properly
-    sign = 1.0 if params.mode == "heat" else -1.0
+    sign = 1.0 if params.action == "close-on-rise" else -1.0
     bad = ~ok | ((on - off) * sign < 0.0)
     return np.where(bad, np.nan, on), np.where(bad, np.nan, off)
 

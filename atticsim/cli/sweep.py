@@ -15,7 +15,7 @@ from atticsim.cli.options import (force_option, out_option, period_options, scen
 @scenario_argument
 @click.option("--vary", "vary", multiple=True, metavar="KEY=START:STOP:STEP[unit]",
               help="Vary a scenario key over a range (STOP included when on the grid) or a list a,b,c[unit]; "
-                   "repeatable. thermostat.hysteresis=1:5:1K sets off = on - width (heat mode).")
+                   "repeatable. thermostat.hysteresis=1:5:1K sets off = on - width for a switch that closes on rise (on + width when it closes on fall).")
 @out_option
 @click.option("--study", "study_file", type=click.Path(dir_okay=False),
               help="Study TOML file (scenario, period, [[vary]], sampling, limits); options given here win.")

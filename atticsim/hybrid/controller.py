@@ -14,36 +14,41 @@ from dataclasses import dataclass
 class HysteresisController:
     """An ideal comparator with hysteresis.
 
-    ``mode="heat"``: the fan switches on when the sensor rises to ``on`` and off when it falls to
-    ``off`` (off < on). ``mode="cold"``: on when the sensor falls to ``on``, off when it rises to
-    ``off`` (on < off).
+    ``action="close-on-rise"``: the fan switches on when the sensor rises to ``on`` and off when it falls
+    to ``off`` (off < on). ``action="close-on-fall"``: on when the sensor falls to ``on``, off when it
+    rises to ``off`` (on < off).
 
     Parameters
     ----------
-    mode : {"heat", "cold"}
+    action : {"close-on-rise", "close-on-fall"}
     on, off : float
         Switching sensor temperatures [degC].
     """
 
-    mode: str
+    action: str
     on: float
     off: float
 
     def __post_init__(self):
-        if self.mode not in ("heat", "cold"):
-            raise ValueError(f"mode must be 'heat' or 'cold', got {self.mode!r}")
-        if self.mode == "heat" and not self.off < self.on:
-            raise ValueError("heat mode needs off < on")
-        if self.mode == "cold" and not self.on < self.off:
-            raise ValueError("cold mode needs on < off")
+        if self.action not in ("close-on-rise", "close-on-fall"):
+            raise ValueError(f"action must be 'close-on-rise' or 'close-on-fall', got {self.action!r}")
+        if self.action == "close-on-rise" and not self.off < self.on:
+            raise ValueError("a switch that closes on rise needs off < on")
+        if self.action == "close-on-fall" and not self.on < self.off:
+            raise ValueError("a switch that closes on fall needs on < off")
+
+    @property
+    def rises(self) -> bool:
+        """True when the switch closes (fan on) on a rising temperature."""
+        return self.action == "close-on-rise"
 
     def initial_state(self, sensor_temp: float) -> bool:
         """Fan state at the start: on only if the sensor is already beyond the switch-on point."""
-        return sensor_temp >= self.on if self.mode == "heat" else sensor_temp <= self.on
+        return sensor_temp >= self.on if self.rises else sensor_temp <= self.on
 
     def next_switch(self, fan_on: bool) -> tuple[float, int]:
         """(sensor temperature, crossing direction +1 rising / -1 falling) that ends the present state."""
-        sign = 1 if self.mode == "heat" else -1
+        sign = 1 if self.rises else -1
         return (self.off, -sign) if fan_on else (self.on, sign)
 
 
@@ -57,5 +62,5 @@ def controller_from_scenario(scenario) -> HysteresisController:
     th = scenario.thermostat
     if th.kind == "circuit":
         t = th.thresholds()
-        return HysteresisController(mode=th.mode, on=t.on_c, off=t.off_c)
-    return HysteresisController(mode=th.mode, on=th.on, off=th.off)
+        return HysteresisController(action=th.action, on=t.on_c, off=t.off_c)
+    return HysteresisController(action=th.action, on=th.on, off=th.off)

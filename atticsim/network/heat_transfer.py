@@ -9,15 +9,16 @@ from __future__ import annotations
 import numpy as np
 
 
-#: Surface roughness multipliers R_f for the forced-convection term (Sparrow et al. as tabulated in the
-#: TARP reference manual, Walton 1983, NBSIR 83-2655; from memory).
-ROUGHNESS = {
-    "very-rough": 2.17,   # stucco
-    "rough": 1.67,        # brick, asphalt shingles with granules
-    "medium-rough": 1.52,  # concrete, tile
-    "medium-smooth": 1.13,  # clear pine
-    "smooth": 1.11,       # smooth plaster
-    "very-smooth": 1.00,  # glass, metal
+#: Forced-convection multipliers R_f by the surface's texture, the six classes of Sparrow, Ramsey & Mass
+#: (1979) as tabulated by Walton (1983), NBSIR 83-2655 (from memory); the names are ours, each with the
+#: reference surface of its class.
+SURFACE_TEXTURE = {
+    "coarse": 2.17,     # stucco
+    "granular": 1.67,   # brick; asphalt shingles with mineral granules
+    "textured": 1.52,   # concrete; clay and concrete tile
+    "planed": 1.13,     # clear pine, planed wood
+    "fine": 1.11,       # smooth plaster
+    "glassy": 1.00,     # glass; smooth metal and paint
 }
 
 # Smoothing of |dT|^(1/3) near dT = 0, so that the derivative stays finite for the stiff
@@ -26,10 +27,10 @@ _EPS2 = 0.05**2
 
 
 def natural_convection_walton(delta_t, cos_tilt, facing_up):
-    """Natural convection coefficient on a tilted plane (Walton's simple TARP correlation).
+    """Natural convection coefficient on a tilted plane (Walton's simple correlation).
 
     Walton, G. N. (1983), Thermal Analysis Research Program reference manual, NBSIR 83-2655
-    (as given in PHYSICS.md, from memory):
+    (from memory):
     unstable (buoyant flow leaves the surface): h = 9.482 |dT|^(1/3) / (7.238 - |cos S|);
     stable: h = 1.810 |dT|^(1/3) / (1.382 + |cos S|).
 
@@ -58,9 +59,9 @@ def natural_convection_walton(delta_t, cos_tilt, facing_up):
 
 
 def forced_convection_sparrow(wind_speed, perimeter, area, roughness, windward_factor=0.75):
-    """Forced convection on an exterior surface (Sparrow, Ramsey & Mass 1979, as used in TARP).
+    """Forced convection on an exterior surface (Sparrow, Ramsey & Mass 1979, as given by Walton 1983).
 
-    h_f = 2.537 W_f R_f sqrt(P V / A) (Walton 1983, NBSIR 83-2655; from memory, PHYSICS.md check
+    h_f = 2.537 W_f R_f sqrt(P V / A) (Walton 1983, NBSIR 83-2655; from memory; worked check
     value 4.64 W/m^2K for A = 100 m^2, P = 40 m, V = 3 m/s, R_f = 1.67, W_f = 1).
 
     Parameters
@@ -72,7 +73,7 @@ def forced_convection_sparrow(wind_speed, perimeter, area, roughness, windward_f
     area : float
         Area of the surface [m^2].
     roughness : float
-        Roughness multiplier R_f [-] (see :data:`ROUGHNESS`).
+        Texture multiplier R_f [-] (see :data:`SURFACE_TEXTURE`).
     windward_factor : float
         W_f: 1.0 windward, 0.5 leeward; 0.75 when the wind direction is not modelled
         (mean of the two, our choice).

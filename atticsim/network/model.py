@@ -11,7 +11,7 @@ Nodes (temperatures in degC in the state vector):
 Heat flows [W] (positive into the node written first):
 
 - exterior: absorbed solar alpha*I_poa*A; long-wave to sky and ground eps*sigma*A*F*(T^4 - T_x^4) with
-  view factors (1 +/- cos tilt)/2 and the ground at air temperature; convection by the TARP sum of
+  view factors (1 +/- cos tilt)/2 and the ground at air temperature; convection by the sum of
   Sparrow's forced term and Walton's natural term (pure convection, radiation kept separate);
 - conduction cover->deck through half of each layer's resistance, insulation top->gypsum through the
   insulation's R-value, gypsum->rooms through the room-side film (plus half the gypsum);
@@ -40,7 +40,7 @@ from atticsim.constants import CP_AIR, GRAVITY, KELVIN, P_STANDARD, SIGMA
 from atticsim.io.weather_frame import saturation_vapour_pressure
 from atticsim.materials import INSULATION, WOOD_SPECIFIC_HEAT
 from atticsim.network.placement import PLACEMENTS
-from atticsim.network.heat_transfer import (ROUGHNESS, air_density, forced_convection_sparrow,
+from atticsim.network.heat_transfer import (SURFACE_TEXTURE, air_density, forced_convection_sparrow,
                                             gray_two_surface_factor, natural_convection_walton,
                                             view_factors_tilted)
 
@@ -396,7 +396,7 @@ def build_network(scenario, pressure: float = P_STANDARD) -> AtticNetwork:
         intake_area = attic.floor_area / 300.0
     return AtticNetwork(
         plane_names=[p.name for p in planes], area=area, cos_tilt=col(np.cos(np.radians(tilt))),
-        perimeter=perimeter, roughness=ROUGHNESS[roof.roughness], absorptance=roof.absorptance,
+        perimeter=perimeter, roughness=SURFACE_TEXTURE[roof.surface_texture], absorptance=roof.absorptance,
         emittance=roof.emittance, f_sky=col(f_sky), f_ground=col(f_ground),
         c_cover=cap_cov * area, c_deck=cap_sh * area,
         u_cover_deck=np.full_like(area, 1.0 / (0.5 * r_cov + 0.5 * r_sh)),

@@ -28,7 +28,7 @@ def thermostat_report(scenario) -> dict:
     on_air, off_air = air_temperatures(t, params, delta)
     tol = tolerance_analysis(params, th.tolerance_spec(), samples=th.tolerances.samples, seed=th.tolerances.seed)
     out = {
-        "mode": th.mode,
+        "action": th.action,
         "feedback_on": params.feedback_on,
         "thermistor_position": params.position,
         "on_c": t.on_c, "off_c": t.off_c, "hysteresis_k": t.hysteresis_k,
@@ -72,7 +72,7 @@ def thermostat_text(report: dict, units: str = "si") -> str:
 
     r = report
     lines = [
-        f"thermostat circuit ({r['mode']} mode, feedback on the {r['feedback_on']} divider, thermistor in the "
+        f"thermostat circuit (switch closes on {r['action'].removeprefix('close-on-')}, feedback on the {r['feedback_on']} divider, thermistor in the "
         f"{r['thermistor_position']} position)",
         f"  thermistor switches the fan ON at {t(r['on_c'])} and OFF at {t(r['off_c'])} "
         f"(hysteresis {dt(r['hysteresis_k'])})",

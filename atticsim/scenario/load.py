@@ -17,6 +17,11 @@ from atticsim.scenario.schema import Scenario
 #: Name used in messages for the scenario embedded in the package.
 DEMO_NAME = "<built-in demo house>"
 _THERMOSTAT_KINDS = {"setpoints", "circuit"}
+#: Keys that were renamed: old dotted key -> (new dotted key, what the new one takes).
+RENAMED = {
+    "thermostat.mode": ("thermostat.action", '"close-on-rise" (fan on when warm) or "close-on-fall" (fan on when cold)'),
+    "roof.roughness": ("roof.surface_texture", "coarse, granular, textured, planed, fine or glassy"),
+}
 
 
 class ScenarioError(ValueError):
@@ -97,8 +102,19 @@ def apply_overrides(data: dict, overrides: list[str] | tuple[str, ...]) -> dict:
     return data
 
 
+def _check_renamed(data: dict, source: str) -> None:
+    """A one-line error naming the new key for a key that was renamed."""
+    for old, (new, takes) in RENAMED.items():
+        node = data
+        for part in old.split("."):
+            node = node.get(part) if isinstance(node, dict) else None
+        if node is not None:
+            raise ScenarioError(source, old, f"renamed: use {new} ({takes})")
+
+
 def scenario_from_dict(data: dict, source: str, base_dir: Path | None = None) -> Scenario:
     """Validate a raw scenario dict; resolve a relative weather path against ``base_dir``."""
+    _check_renamed(data, source)
     try:
         scenario = Scenario.model_validate(data)
     except ValidationError as err:

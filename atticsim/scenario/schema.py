@@ -127,8 +127,10 @@ class Roof(_Model):
     emittance: Fraction = Field(0.90, gt=0.0, le=1.0, description="thermal emittance of the covering")
     underside_emittance: Fraction = Field(0.90, gt=0.0, le=1.0,
                                           description="thermal emittance of the deck underside")
-    roughness: Literal["very-rough", "rough", "medium-rough", "medium-smooth", "smooth",
-                       "very-smooth"] = "rough"
+    surface_texture: Literal["coarse", "granular", "textured", "planed", "fine", "glassy"] = Field(
+        "granular", description="texture of the covering for wind convection: coarse (stucco), granular "
+                                "(brick, granulated shingles), textured (concrete, tile), planed (wood), fine "
+                                "(smooth plaster), glassy (glass, smooth metal, paint)")
 
 
 class Attic(_Model):

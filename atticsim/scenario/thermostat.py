@@ -33,20 +33,33 @@ class _Model(BaseModel):
     model_config = ConfigDict(extra="forbid", frozen=True)
 
 
-class SetpointThermostat(_Model):
+#: The switch's action in the trade's words: it closes (fan on) on a rising temperature (the fan runs
+#: when warm) or on a falling one (the fan runs when cold).
+Action = Literal["close-on-rise", "close-on-fall"]
+
+
+class _Thermostat(_Model):
+    """What both kinds share: the switch's action."""
+
+    action: Action = Field("close-on-rise", description="close-on-rise: fan on when warm; close-on-fall: "
+                                                        "fan on when cold")
+
+
+class SetpointThermostat(_Thermostat):
     """An ideal comparator with hysteresis, given as switch-on and switch-off sensor temperatures."""
 
     kind: Literal["setpoints"]
-    mode: Literal["heat", "cold"] = "heat"
     on: Temperature = Field(ge=-40.0, le=120.0)
     off: Temperature = Field(ge=-40.0, le=120.0)
 
     @model_validator(mode="after")
     def _order(self):
-        if self.mode == "heat" and not self.off < self.on:
-            raise ValueError(f"heat mode needs off < on (got on {self.on:g} degC, off {self.off:g} degC)")
-        if self.mode == "cold" and not self.on < self.off:
-            raise ValueError(f"cold mode needs on < off (got on {self.on:g} degC, off {self.off:g} degC)")
+        if self.action == "close-on-rise" and not self.off < self.on:
+            raise ValueError(f"a switch that closes on rise needs off < on (got on {self.on:g} degC, "
+                             f"off {self.off:g} degC)")
+        if self.action == "close-on-fall" and not self.on < self.off:
+            raise ValueError(f"a switch that closes on fall needs on < off (got on {self.on:g} degC, "
+                             f"off {self.off:g} degC)")
         return self
 
 
@@ -140,11 +153,10 @@ class MainsSide(_Model):
         return MainsParams(**{k: v for k, v in self.model_dump().items() if v is not None})
 
 
-class CircuitThermostat(_Model):
+class CircuitThermostat(_Thermostat):
     """The thermostat built from parts."""
 
     kind: Literal["circuit"]
-    mode: Literal["heat", "cold"] = "heat"
     circuit: CircuitValues
     tolerances: CircuitTolerances = CircuitTolerances()
     mains: MainsSide | None = None
@@ -169,7 +181,7 @@ class CircuitThermostat(_Model):
             led_resistor=c.led_resistor, led_forward=c.led_forward, thermistor=c.thermistor(),
             led_current=c.led_current, led_ideality=c.led_ideality, output_low=c.output_low,
             input_offset=c.input_offset, feedback_on=c.feedback_on, thermistor_position=c.thermistor_position,
-            mode=self.mode, sink_guaranteed=c.sink_guaranteed, trigger_current=c.trigger_current)
+            action=self.action, sink_guaranteed=c.sink_guaranteed, trigger_current=c.trigger_current)
 
     def thresholds(self):
         """Switching thermistor temperatures of the circuit (atticsim.circuit.Thresholds)."""

@@ -6,7 +6,7 @@ A varied *axis* is one scenario key and its values::
     thermostat.on=36:44:2degC        range START:STOP:STEP, STOP included when it falls on the grid
     fan.flow=1000,1200,1500cfm       comma list, the unit written once at the end
     weather.sky_model=berdahl-martin,swinbank       text values (TOML syntax if it parses, else plain text)
-    thermostat.hysteresis=1:6:1K     derived: off = on - width (heat mode) or on + width (cold mode)
+    thermostat.hysteresis=1:6:1K     derived: off = on - width (closes on rise) or on + width (closes on fall)
 
 Any scenario key can vary: a point is a list of ``"dotted.key=value"`` overrides handed to
 :func:`atticsim.scenario.load_scenario`, which validates it like ``--set``.
@@ -355,9 +355,10 @@ def lhs_points(axes: list[Axis], n_points: int, seed: int) -> list[dict[str, Val
 # --- derived parameters -------------------------------------------------------------------------------
 
 def _hysteresis_overrides(width: Value, point: dict[str, Value], base) -> list[str]:
-    """thermostat.hysteresis -> thermostat.off = on - width (heat mode) or on + width (cold mode).
+    """thermostat.hysteresis -> thermostat.off = on - width (a switch closing on rise) or on + width
+    (closing on fall).
 
-    ``on`` and ``mode`` come from the same point when they vary, else from the base scenario.
+    ``on`` and ``action`` come from the same point when they vary, else from the base scenario.
     """
     from atticsim.units import UnitError, to_si
 
@@ -373,8 +374,8 @@ def _hysteresis_overrides(width: Value, point: dict[str, Value], base) -> list[s
         raise StudyError(f"{where}: {exc}") from None
     if not w > 0.0:
         raise StudyError(f"{where}: the width must be greater than 0 K")
-    mode = point["thermostat.mode"].display if "thermostat.mode" in point else th.mode
-    off = on - w if mode == "heat" else on + w
+    action = point["thermostat.action"].display if "thermostat.action" in point else th.action
+    off = on - w if action == "close-on-rise" else on + w
     return [f"thermostat.off={off!r}"]
 
 
