@@ -27,7 +27,7 @@ from pathlib import Path
 
 _ROOT = Path(__file__).resolve().parent
 #: The modules whose code or constants end up in compiled functions.
-SOURCES = ("constants.py", "jitcache.py", "network/kernel.py", "network/model.py", "network/heat_transfer.py",
+SOURCES = ("constants.py", "air.py", "jitcache.py", "network/kernel.py", "network/model.py", "network/heat_transfer.py",
            "network/placement.py", "sensor/air.py", "sensor/convection.py", "sensor/body.py",
            "io/weather_frame.py", "hybrid/blocks.py", "hybrid/compiled.py", "hybrid/fast.py",
            "airflow/balance_kernel.py")

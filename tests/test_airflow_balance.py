@@ -285,7 +285,7 @@ def _reference_pressures(paths, t_attic, t_outdoor, t_house, wind, fan_on):
     (the test keeps to cases whose paths all see more than 1e-3 Pa)."""
     from scipy.optimize import brentq
 
-    from atticsim.network.heat_transfer import air_density
+    from atticsim.air import air_density
 
     rho_o, rho_a, rho_h = (float(air_density(t, P_STANDARD)) for t in (t_outdoor, t_attic, t_house))
     qw = 0.5 * rho_o * wind**2

@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 from atticsim.forcing.weather import load_weather
-from atticsim.network.heat_transfer import air_density
+from atticsim.air import air_density
 from atticsim.pipeline import run_raw, simulate
 from atticsim.scenario import load_scenario
 

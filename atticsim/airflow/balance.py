@@ -44,7 +44,7 @@ from atticsim.airflow.openings import (DEFAULT_CP, default_cp, leakage_coefficie
                                        require_finite, require_non_negative, require_positive,
                                        require_temperature)
 from atticsim.constants import CP_AIR, P_STANDARD
-from atticsim.network.heat_transfer import air_density
+from atticsim.air import air_density
 
 #: Mass flow below which a zone counts as having no throughput, for the relative residual [kg/s]
 #: (1e-6 kg/s is about 3 litres of air an hour; numerical choice, ours).

@@ -24,7 +24,7 @@ import numpy as np
 
 from atticsim.airflow.ventilation import passive_flow
 from atticsim.constants import P_STANDARD
-from atticsim.network.heat_transfer import air_density
+from atticsim.air import air_density
 
 
 @dataclass(frozen=True)

@@ -20,7 +20,7 @@ import numpy as np
 import pandas as pd
 
 from atticsim.forcing.synthetic import clear_sky, daily_range_fraction, site_tz
-from atticsim.io.weather_frame import relative_humidity_from_dew_point, standard_atmosphere_pressure
+from atticsim.air import relative_humidity_from_dew_point, standard_atmosphere_pressure
 
 
 def design_day_weather(latitude, longitude, altitude, utc_offset, date, t_max, daily_range, dew_point=None,

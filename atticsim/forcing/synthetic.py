@@ -21,7 +21,7 @@ from types import SimpleNamespace
 import numpy as np
 import pandas as pd
 
-from atticsim.io.weather_frame import relative_humidity_from_dew_point, standard_atmosphere_pressure
+from atticsim.air import relative_humidity_from_dew_point, standard_atmosphere_pressure
 
 #: ASHRAE fraction of daily temperature range for hours 1..24 of local standard time
 #: (T = T_max - f * range). ASHRAE Handbook Fundamentals, climatic design chapter (from memory).

@@ -713,7 +713,7 @@ def _simple_air(f_values, f_step, t, fan, simple, air):
     ``AirflowModel.simple_state`` (a test holds the two equal)."""
     u = np.empty(f_values.shape[0])
     _forcing_at(f_values, f_step, t, u)
-    rho = kernel._air_density(u[0], simple[4])               # ideal gas (heat_transfer.air_density's twin)
+    rho = kernel._air_density(u[0], simple[4])               # ideal gas (atticsim.air.air_density, compiled)
     running = fan and simple[3] > 0.0
     q = simple[0] + (simple[1] if running else 0.0)          # passive air changes plus the fan's rated flow
     air[0] = rho * q                                         # outdoor air into the lower layer

@@ -15,11 +15,13 @@ from atticsim.io.weather_frame import (
     WEATHER_UNITS,
     ValidationReport,
     WeatherMeta,
+    validate_weather,
+)
+from atticsim.air import (
     dew_point_from_relative_humidity,
     relative_humidity_from_dew_point,
     saturation_vapour_pressure,
     standard_atmosphere_pressure,
-    validate_weather,
 )
 
 __all__ = [

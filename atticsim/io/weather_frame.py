@@ -29,7 +29,8 @@ from typing import Mapping
 import numpy as np
 import pandas as pd
 
-from atticsim.constants import GRAVITY, P_STANDARD, R_DRY_AIR
+from atticsim.air import (dew_point_from_relative_humidity, relative_humidity_from_dew_point,
+                          saturation_vapour_pressure, standard_atmosphere_pressure)
 
 #: Columns of the normalised weather frame, in order, with their units.
 WEATHER_COLUMNS: tuple[str, ...] = (
@@ -94,17 +95,6 @@ IRRADIANCE_CLIP_W_M2 = -5.0
 RH_CLIP_PCT = 103.0
 #: Dew point above dry-bulb by less than this is set to the dry-bulb [K].
 DEW_POINT_CLIP_K = 0.5
-
-# Magnus form over liquid water, Alduchov & Eskridge (1996), J. Appl. Meteor. 35, 601-609,
-# eq. 21 ("AERK" coefficients): e_s = 610.94 Pa * exp(17.625 t / (t + 243.04 degC)).
-_MAGNUS_C_PA = 610.94
-_MAGNUS_A = 17.625
-_MAGNUS_B_C = 243.04
-
-# ISO 2533 standard atmosphere, troposphere (0..11 km geopotential altitude).
-_ISO_T0_K = 288.15  # sea-level temperature [K]
-_ISO_LAPSE_K_M = 0.0065  # temperature lapse rate [K/m]
-
 
 # --------------------------------------------------------------------------- metadata
 
@@ -182,103 +172,6 @@ class ValidationReport:
 
     def __str__(self) -> str:
         return "\n".join(self.lines()) if (self.repairs or self.notes) else "no repairs, no notes"
-
-
-# --------------------------------------------------------------------------- psychrometrics
-
-
-def saturation_vapour_pressure(temp: float | np.ndarray) -> float | np.ndarray:
-    """Saturation vapour pressure over liquid water (Magnus form).
-
-    Parameters
-    ----------
-    temp : float or array
-        Temperature [degC].
-
-    Returns
-    -------
-    float or array
-        Saturation vapour pressure [Pa].
-
-    References
-    ----------
-    Alduchov, O. A. and Eskridge, R. E. (1996), Improved Magnus form approximation of
-    saturation vapor pressure, J. Appl. Meteor. 35, 601-609, eq. 21.
-    """
-    t = np.asarray(temp, dtype=float)
-    # Alduchov & Eskridge (1996) eq. 21
-    return _MAGNUS_C_PA * np.exp(_MAGNUS_A * t / (t + _MAGNUS_B_C))
-
-
-def dew_point_from_relative_humidity(
-    temp_air: float | np.ndarray, relative_humidity: float | np.ndarray
-) -> float | np.ndarray:
-    """Dew-point temperature from dry-bulb temperature and relative humidity (Magnus form).
-
-    Parameters
-    ----------
-    temp_air : float or array
-        Dry-bulb temperature [degC].
-    relative_humidity : float or array
-        Relative humidity over liquid water [%], > 0.
-
-    Returns
-    -------
-    float or array
-        Dew-point temperature [degC].
-    """
-    t = np.asarray(temp_air, dtype=float)
-    rh = np.asarray(relative_humidity, dtype=float)
-    # Inverse of Alduchov & Eskridge (1996) eq. 21 with e = RH/100 * e_s(t)
-    gamma = np.log(rh / 100.0) + _MAGNUS_A * t / (t + _MAGNUS_B_C)
-    return _MAGNUS_B_C * gamma / (_MAGNUS_A - gamma)
-
-
-def relative_humidity_from_dew_point(
-    temp_air: float | np.ndarray, temp_dew: float | np.ndarray
-) -> float | np.ndarray:
-    """Relative humidity from dry-bulb and dew-point temperature (Magnus form).
-
-    Parameters
-    ----------
-    temp_air : float or array
-        Dry-bulb temperature [degC].
-    temp_dew : float or array
-        Dew-point temperature [degC].
-
-    Returns
-    -------
-    float or array
-        Relative humidity over liquid water [%].
-    """
-    # RH = e_s(t_dew) / e_s(t_air), Alduchov & Eskridge (1996) eq. 21
-    return 100.0 * saturation_vapour_pressure(temp_dew) / saturation_vapour_pressure(temp_air)
-
-
-def standard_atmosphere_pressure(altitude: float | np.ndarray) -> float | np.ndarray:
-    """Air pressure of the ISO standard atmosphere at an altitude (troposphere).
-
-    Parameters
-    ----------
-    altitude : float or array
-        Altitude above mean sea level [m], -500..11000 (the site elevation is used as
-        geopotential altitude; the difference is below 2 m, i.e. < 25 Pa, up to 3 km).
-
-    Returns
-    -------
-    float or array
-        Pressure [Pa].
-
-    References
-    ----------
-    ISO 2533:1975 Standard Atmosphere, barometric formula for a layer with constant
-    lapse rate: p = p0 (1 - L h / T0)^(g0 / (R L)), L = 0.0065 K/m, T0 = 288.15 K.
-    """
-    h = np.asarray(altitude, dtype=float)
-    if np.any(~np.isfinite(h)) or np.any(h < -500.0) or np.any(h > 11_000.0):
-        raise ValueError(f"altitude: {altitude!r} m is outside -500..11000 m (ISO 2533 troposphere)")
-    # ISO 2533 barometric formula, troposphere layer
-    return P_STANDARD * (1.0 - _ISO_LAPSE_K_M * h / _ISO_T0_K) ** (GRAVITY / (R_DRY_AIR * _ISO_LAPSE_K_M))
 
 
 # --------------------------------------------------------------------------- small helpers

@@ -120,10 +120,3 @@ def sol_air_temperature(temp_air, irradiance, absorptance, h_out, eps_delta_r=0.
     """
     return np.asarray(temp_air, dtype=float) + (absorptance * np.asarray(irradiance, dtype=float)
                                                  - eps_delta_r) / h_out
-
-
-def air_density(temp_c, pressure=101325.0):
-    """Dry-air density rho = p / (R_d T) [kg/m^3] (ideal gas; R_d = 287.055 J/kgK, ISO 2533)."""
-    if type(temp_c) is float and type(pressure) is float:  # scalar fast path (the solvers' per-switch calls)
-        return pressure / (287.055 * (temp_c + 273.15))
-    return np.asarray(pressure, dtype=float) / (287.055 * (np.asarray(temp_c, dtype=float) + 273.15))

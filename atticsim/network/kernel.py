@@ -35,9 +35,10 @@ import numpy as np
 
 from atticsim import jitcache
 from atticsim.constants import CP_AIR, GRAVITY, KELVIN, SIGMA
-from atticsim.io.weather_frame import _MAGNUS_A, _MAGNUS_B_C, _MAGNUS_C_PA
+from atticsim import air as _moist_air
+from atticsim.air import H_FG, MAGNUS_A, MAGNUS_B_C, MAGNUS_C_PA, MOLAR_MASS_RATIO
 from atticsim.network.heat_transfer import _EPS2, forced_convection_sparrow
-from atticsim.network.model import BOOKS, FORCING_BASE, H_FG
+from atticsim.network.model import BOOKS, FORCING_BASE
 from atticsim.network.placement import INTAKE_FULL_SPEED, PLACEMENTS, STILL_ATTIC_SPEED
 from atticsim.sensor import air as _air
 from atticsim.sensor import convection as _conv
@@ -247,20 +248,16 @@ def _sparrow(wind_speed, perimeter, area, roughness):
     return 2.537 * _WINDWARD * roughness * math.sqrt(perimeter * v / area)
 
 
-@numba.njit(cache=True, **_JIT)
-def _air_density(temp_c, pressure):
-    """Scalar :func:`atticsim.network.heat_transfer.air_density` [kg/m3]."""
-    # ideal gas rho = p / (R_d T), R_d = 287.055 J/kgK (ISO 2533)
-    return pressure / (287.055 * (temp_c + 273.15))
+_air_density = numba.njit(cache=True, **_JIT)(_moist_air.air_density)  # ideal gas, ISO 2533 R_d
 
 
 @numba.njit(cache=True, **_JIT)
 def _humidity_ratio(temp_dew, pressure):
-    """Scalar :func:`atticsim.network.model.humidity_ratio` [kg/kg]."""
+    """Scalar :func:`atticsim.air.humidity_ratio` [kg/kg]."""
     # saturation pressure at the dew point, Magnus form, Alduchov & Eskridge (1996) eq. 21
-    p_w = _MAGNUS_C_PA * math.exp(_MAGNUS_A * temp_dew / (temp_dew + _MAGNUS_B_C))
+    p_w = MAGNUS_C_PA * math.exp(MAGNUS_A * temp_dew / (temp_dew + MAGNUS_B_C))
     # W = 0.621945 p_w / (p - p_w) (ASHRAE Handbook Fundamentals, psychrometrics chapter, eq. 20 and 36)
-    return 0.621945 * p_w / (pressure - p_w)
+    return MOLAR_MASS_RATIO * p_w / (pressure - p_w)
 
 
 @numba.njit(cache=True, **_JIT)

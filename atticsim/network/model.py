@@ -37,10 +37,10 @@ import numpy as np
 
 from atticsim.airflow.model import AirflowModel
 from atticsim.constants import CP_AIR, GRAVITY, KELVIN, P_STANDARD, SIGMA
-from atticsim.io.weather_frame import saturation_vapour_pressure
+from atticsim.air import H_FG, air_density, humidity_ratio, humidity_ratio_from_rh
 from atticsim.materials import INSULATION, WOOD_SPECIFIC_HEAT
 from atticsim.network.placement import PLACEMENTS
-from atticsim.network.heat_transfer import (SURFACE_TEXTURE, air_density, forced_convection_sparrow,
+from atticsim.network.heat_transfer import (SURFACE_TEXTURE, forced_convection_sparrow,
                                             gray_two_surface_factor, natural_convection_walton,
                                             view_factors_tilted)
 
@@ -51,8 +51,6 @@ BOOKS = ("solar", "sky", "ground", "exterior_convection", "ventilation", "ceilin
 ATTIC_BOOKS = BOOKS[:7]
 #: Forcing channels before the per-plane irradiance channels.
 FORCING_BASE = ("temp_out", "temp_sky_k", "wind_speed", "temp_dew")
-#: Latent heat of vaporisation at 0 degC [J/kg] (ASHRAE Handbook Fundamentals, psychrometrics chapter).
-H_FG = 2501e3
 
 
 @dataclass
@@ -310,19 +308,6 @@ class _Context:
     intake_flow: object
     intake_area: float
     contact_conductance: float
-
-
-def humidity_ratio(temp_dew, pressure):
-    """Humidity ratio W = 0.621945 p_w / (p - p_w) [kg/kg], p_w the saturation pressure at the dew point
-    (ASHRAE Handbook Fundamentals, psychrometrics chapter, eq. 20 and 36)."""
-    p_w = saturation_vapour_pressure(temp_dew)
-    return 0.621945 * p_w / (pressure - p_w)
-
-
-def humidity_ratio_from_rh(temp, relative_humidity, pressure):
-    """Humidity ratio [kg/kg] at a temperature [degC] and relative humidity [%] (same source)."""
-    p_w = relative_humidity / 100.0 * saturation_vapour_pressure(temp)
-    return 0.621945 * p_w / (pressure - p_w)
 
 
 def sensor_power(scenario):

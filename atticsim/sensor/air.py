@@ -13,7 +13,7 @@ Sources
 .. [2] ASHRAE Handbook Fundamentals, psychrometrics chapter: c_p of dry air 1.006 kJ/(kg K)
        (atticsim.constants.CP_AIR; it varies by less than 0.4 % over 250-350 K).
 .. [3] Ideal-gas density rho = p / (R_d T), R_d = 287.055 J/(kg K) (ISO 2533), as
-       :func:`atticsim.network.heat_transfer.air_density`.
+       :func:`atticsim.air.air_density`.
 
 The tests compare [1] with the air table of Incropera & DeWitt, Fundamentals of Heat and Mass
 Transfer (Table A.4, air at 1 atm); the table's densities sit about 1.3 % below the ideal-gas value,
@@ -27,7 +27,7 @@ from typing import NamedTuple
 import numpy as np
 
 from atticsim.constants import CP_AIR, KELVIN, P_STANDARD
-from atticsim.network.heat_transfer import air_density
+from atticsim.air import air_density
 
 #: Range of air temperatures the property fits are used over [K].
 T_MIN_K = 200.0
