@@ -126,12 +126,16 @@ class _Context:
 class Legacy:
     """The old numpy flows and derivatives of a network."""
 
-    def __init__(self, net):
+    def __init__(self, net, room_temperature=24.0):
+        from atticsim.air import humidity_ratio_from_rh
+
+        self.room_temperature = room_temperature
+        self.room_humidity_ratio = humidity_ratio_from_rh(room_temperature, net.room_relative_humidity, net.pressure)
         for name in ("plane_names", "area", "cos_tilt", "perimeter", "roughness", "absorptance", "emittance",
                      "f_sky", "f_ground", "c_cover", "c_deck", "u_cover_deck", "g_deck_floor", "floor_area",
                      "c_air", "upper_fraction", "layers", "layer_mixing", "fan_mixing_ratio", "interface_area",
                      "framing_area", "c_framing", "c_ceiling_top", "c_gypsum", "r_insulation", "r_room",
-                     "room_temperature", "room_humidity_ratio", "placement", "sensor_body", "sensor_conductance",
+                     "placement", "sensor_body", "sensor_conductance",
                      "sensor_capacity", "sensor_power", "contact_conductance", "fan_area", "intake_area",
                      "enclosure_conductance", "c_enclosure", "triac_loss", "pressure", "node_names", "air",
                      "index", "i_lower", "i_upper", "f_up", "w_up", "i_enclosure", "n_planes", "n_nodes"):

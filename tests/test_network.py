@@ -83,7 +83,7 @@ def test_roof_surface_settles_near_handbook_sol_air():
 
     def balance(t_cov):
         temps = np.full((net.n_nodes, 1), t_cov)
-        f = np.array([[t_o], [t_o + 273.15], [wind], [t_o - 10.0]] + [[irr]] * P)
+        f = np.array([[t_o], [t_o + 273.15], [wind], [t_o - 10.0], [101325.0], [24.0]] + [[irr]] * P)
         net.air = net.airflow.solve(t_o, t_o, wind, False)
         q = net.flows(temps, f, np.array([False]))
         return float((q["solar"] + q["sky"] + q["ground"] + q["exterior_convection"])[0])

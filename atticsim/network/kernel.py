@@ -37,7 +37,7 @@ import numpy as np
 from atticsim import jitcache
 from atticsim.constants import CP_AIR, GRAVITY, KELVIN, SIGMA
 from atticsim import air as _moist_air
-from atticsim.air import H_FG, MAGNUS_A, MAGNUS_B_C, MAGNUS_C_PA, MOLAR_MASS_RATIO
+from atticsim.air import H_FG
 from atticsim.network import heat_transfer
 from atticsim.network.placement import PLACEMENTS
 from atticsim.sensor import air as _air
@@ -51,6 +51,19 @@ jitcache.route()  # this module's compiled functions cache in atticsim's own fol
 # as numpy would give them; no fast-math, so the arithmetic stays as written.
 _JIT = {"error_model": "numpy"}
 
+
+def compiled(function, **callees):
+    """``function`` compiled for the network (numba, cached), from its own source: the global names in
+    ``callees`` that it calls are bound to their compiled forms (so that a correlation calling another is
+    still written once)."""
+    import types
+
+    if callees:
+        scope = dict(function.__globals__)
+        scope.update(callees)
+        function = types.FunctionType(function.__code__, scope, function.__name__, function.__defaults__)
+    return numba.njit(cache=True, **_JIT)(function)
+
 # --- names ---------------------------------------------------------------------------------------------
 
 #: Names of the energy books, in state order after the temperatures.
@@ -59,7 +72,7 @@ BOOKS = ("solar", "sky", "ground", "exterior_convection", "ventilation", "ceilin
 #: Books that cross the attic's boundary (the energy closure uses these).
 ATTIC_BOOKS = BOOKS[:7]
 #: Forcing channels before the per-plane irradiance channels.
-FORCING_BASE = ("temp_out", "temp_sky_k", "wind_speed", "temp_dew")
+FORCING_BASE = ("temp_out", "temp_sky_k", "wind_speed", "temp_dew", "pressure", "temp_room")
 #: The named heat flows of :func:`flows` [W] (per-plane flows summed over the planes; ``*_upper`` and
 #: ``*_lower`` are the parts that reach each air layer; ``sensor_local_air`` [degC] and
 #: ``sensor_local_speed`` [m/s] are what the sensor's placement gives it).
@@ -76,10 +89,10 @@ PLANE_FLOWS = ("cover_net", "deck_net")
 
 #: Scalar parameters, rows of ``Packed.prm``.
 (_ABSORPTANCE, _EMITTANCE, _ROUGHNESS, _FLOOR_AREA, _C_AIR, _W_UP, _F_UP, _LAYER_MIXING, _FAN_MIXING,
- _INTERFACE_AREA, _FRAMING_AREA, _C_FRAMING, _C_CEILING_TOP, _C_GYPSUM, _R_INSULATION, _R_ROOM, _ROOM_T,
- _ROOM_W, _PRESSURE, _SENSOR_G, _SENSOR_C, _CONTACT_G, _FAN_AREA, _INTAKE_AREA, _ENCLOSURE_G, _C_ENCLOSURE,
- _TRIAC_LOSS, _BODY_SCALE, _BODY_AREA, _BODY_D, _BODY_EMITTANCE, _HEAT_T0, _HEAT_DT) = range(33)
-N_PRM = 33
+ _INTERFACE_AREA, _FRAMING_AREA, _C_FRAMING, _C_CEILING_TOP, _C_GYPSUM, _R_INSULATION, _R_ROOM,
+ _ROOM_RH, _SENSOR_G, _SENSOR_C, _CONTACT_G, _FAN_AREA, _INTAKE_AREA, _ENCLOSURE_G, _C_ENCLOSURE,
+ _TRIAC_LOSS, _BODY_SCALE, _BODY_AREA, _BODY_D, _BODY_EMITTANCE, _HEAT_T0, _HEAT_DT) = range(31)
+N_PRM = 31
 #: Per-plane parameters, columns of ``Packed.planes`` (one row per plane).
 (_AREA, _COS_TILT, _PERIMETER, _F_SKY, _F_GROUND, _C_COVER, _C_DECK, _U_COVER_DECK, _G_DECK_FLOOR,
  _DECK_SHARE) = range(10)
@@ -111,8 +124,9 @@ _BOOK_FLOWS = tuple(FLOWS.index(name) for name in BOOKS)
  _Q_FRAMING_UPPER, _Q_FRAMING_LOWER, _Q_CEILING_AIR, _Q_VENT_LOWER, _Q_VENT_UPPER, _Q_VENT, _Q_LAYER_EXCHANGE,
  _Q_INSULATION, _Q_CEILING_GAIN, _Q_SENSOR, _Q_FAN_ELECTRIC, _Q_HOUSE_SENSIBLE, _Q_HOUSE_LATENT, _Q_SELF_HEATING,
  _Q_TRIAC, _Q_ENCLOSURE_AIR, _Q_LOCAL_AIR, _Q_LOCAL_SPEED) = range(N_FLOWS)
-assert FORCING_BASE == ("temp_out", "temp_sky_k", "wind_speed", "temp_dew"), \
+assert FORCING_BASE == ("temp_out", "temp_sky_k", "wind_speed", "temp_dew", "pressure", "temp_room"), \
     "the kernel reads the forcing in this order"
+_U_T_OUT, _U_T_SKY_K, _U_WIND, _U_T_DEW, _U_PRESSURE, _U_T_ROOM = range(len(FORCING_BASE))
 
 #: Defaults the network relies on, read from their single source.
 _WINDWARD = inspect.signature(heat_transfer.forced_convection_sparrow).parameters["windward_factor"].default
@@ -161,7 +175,7 @@ def pack(network) -> Packed:
     prm[_INTERFACE_AREA], prm[_FRAMING_AREA] = network.interface_area, network.framing_area
     prm[_C_FRAMING], prm[_C_CEILING_TOP], prm[_C_GYPSUM] = network.c_framing, network.c_ceiling_top, network.c_gypsum
     prm[_R_INSULATION], prm[_R_ROOM] = network.r_insulation, network.r_room
-    prm[_ROOM_T], prm[_ROOM_W], prm[_PRESSURE] = network.room_temperature, network.room_humidity_ratio, network.pressure
+    prm[_ROOM_RH] = network.room_relative_humidity
     prm[_SENSOR_G], prm[_SENSOR_C] = network.sensor_conductance, network.sensor_capacity
     prm[_CONTACT_G], prm[_FAN_AREA], prm[_INTAKE_AREA] = (network.contact_conductance, network.fan_area,
                                                           network.intake_area)
@@ -247,22 +261,17 @@ _AirProperties = _air.AirProperties
 _NU_CONDUCTION_SPHERE = _conv.NU_CONDUCTION_SPHERE
 
 
-_walton = numba.njit(cache=True, **_JIT)(heat_transfer.walton_natural)    # Walton 1983, NBSIR 83-2655
-_sparrow = numba.njit(cache=True, **_JIT)(heat_transfer.forced_convection_sparrow)  # Sparrow et al. 1979
-_air_density = numba.njit(cache=True, **_JIT)(_moist_air.air_density)  # ideal gas, ISO 2533 R_d
+_walton = compiled(heat_transfer.walton_natural)                    # Walton 1983, NBSIR 83-2655
+_sparrow = compiled(heat_transfer.forced_convection_sparrow)         # Sparrow et al. 1979
+_air_density = compiled(_moist_air.air_density)                      # ideal gas, ISO 2533 R_d
 # the placements' local conditions, compiled from their records (atticsim.network.placement) in code order
-(_ridge, _mid, _exhaust, _intake, _deck, _board) = (numba.njit(cache=True, **_JIT)(p.function)
-                                                    for p in PLACEMENTS.values())
+(_ridge, _mid, _exhaust, _intake, _deck, _board) = (compiled(p.function) for p in PLACEMENTS.values())
 assert tuple(PLACEMENTS) == ("ridge", "mid", "exhaust", "intake", "deck", "board"), "_local's branches"
 
 
-@numba.njit(cache=True, **_JIT)
-def _humidity_ratio(temp_dew, pressure):
-    """Scalar :func:`atticsim.air.humidity_ratio` [kg/kg]."""
-    # saturation pressure at the dew point, Magnus form, Alduchov & Eskridge (1996) eq. 21
-    p_w = MAGNUS_C_PA * math.exp(MAGNUS_A * temp_dew / (temp_dew + MAGNUS_B_C))
-    # W = 0.621945 p_w / (p - p_w) (ASHRAE Handbook Fundamentals, psychrometrics chapter, eq. 20 and 36)
-    return MOLAR_MASS_RATIO * p_w / (pressure - p_w)
+_saturation = compiled(_moist_air.saturation_vapour_pressure)  # Alduchov & Eskridge (1996) eq. 21
+_humidity_ratio = compiled(_moist_air.humidity_ratio, saturation_vapour_pressure=_saturation)  # ASHRAE, psychrometrics
+_humidity_ratio_from_rh = compiled(_moist_air.humidity_ratio_from_rh, saturation_vapour_pressure=_saturation)
 
 
 @numba.njit(cache=True, **_JIT)
@@ -391,7 +400,7 @@ def _air_paths(t_lo, t_up, u, fan, air, prm, layers):
     in_lower, in_upper, out_lower = air[_IN_LOWER], air[_IN_UPPER], air[_OUT_LOWER]
     house_in, attic_to_house = air[_HOUSE_IN], air[_ATTIC_TO_HOUSE]
     # c_p m (T_in - T_layer) for the air entering each layer (enthalpy flow, common practice)
-    vent_lo = CP_AIR * (in_lower * (t_out - t_lo) + house_in * (prm[_ROOM_T] - t_lo))
+    vent_lo = CP_AIR * (in_lower * (t_out - t_lo) + house_in * (u[_U_T_ROOM] - t_lo))
     vent_up = CP_AIR * in_upper * (t_out - t_up)
     q_mix = 0.0
     if layers == 2:
@@ -407,7 +416,7 @@ def _air_paths(t_lo, t_up, u, fan, air, prm, layers):
         q_b = 0.055 * a_i * math.sqrt(GRAVITY * unstable / (0.5 * (t_lo + t_up) + KELVIN) * math.sqrt(a_i))
         # a stable base rate, the fan's stirring and the overturning
         q_mix_flow = prm[_LAYER_MIXING] + prm[_FAN_MIXING] * fan * air[_FAN_FLOW] + q_b
-        q_mix = _air_density(t_lo, prm[_PRESSURE]) * CP_AIR * q_mix_flow * (t_lo - t_up)
+        q_mix = _air_density(t_lo, u[_U_PRESSURE]) * CP_AIR * q_mix_flow * (t_lo - t_up)
     return vent_lo, vent_up, q_mix
 
 
@@ -415,10 +424,11 @@ def _air_paths(t_lo, t_up, u, fan, air, prm, layers):
 def _house_air(t_lo, u, air, prm):
     """Loads on the rooms of air exchanged through the ceiling [W]: (sensible c_p m dT, latent h_fg m dW)
     (ASHRAE Handbook Fundamentals, psychrometrics chapter)."""
-    room_t = prm[_ROOM_T]
+    room_t, pressure = u[_U_T_ROOM], u[_U_PRESSURE]
     house_in, attic_to_house = air[_HOUSE_IN], air[_ATTIC_TO_HOUSE]
-    q_s = CP_AIR * (house_in * (u[0] - room_t) + attic_to_house * (t_lo - room_t))
-    q_l = H_FG * (house_in + attic_to_house) * (_humidity_ratio(u[3], prm[_PRESSURE]) - prm[_ROOM_W])
+    q_s = CP_AIR * (house_in * (u[_U_T_OUT] - room_t) + attic_to_house * (t_lo - room_t))
+    w_room = _humidity_ratio_from_rh(room_t, prm[_ROOM_RH], pressure)
+    q_l = H_FG * (house_in + attic_to_house) * (_humidity_ratio(u[_U_T_DEW], pressure) - w_room)
     return q_s, q_l
 
 
@@ -426,7 +436,7 @@ def _house_air(t_lo, u, air, prm):
 def _local_at(x, u, fan, air, prm, ints, t_up, t_lo, t_deck_mean, t_ct, t_enc):
     """The sensor's local conditions (t_air, speed, t_rad, t_contact, g_contact) of its placement (speeds and
     mixing weights are engineering assumptions, common practice, no source)."""
-    intake_flow = air[_IN_LOWER] / _air_density(u[0], prm[_PRESSURE])
+    intake_flow = air[_IN_LOWER] / _air_density(u[_U_T_OUT], u[_U_PRESSURE])
     return _local(ints[_PLACEMENT], t_up, t_lo, t_deck_mean, t_ct, u[0], t_enc, fan > 0, air[_FAN_FLOW],
                   prm[_FAN_AREA], intake_flow, prm[_INTAKE_AREA], prm[_CONTACT_G])
 
@@ -435,7 +445,7 @@ def _local_at(x, u, fan, air, prm, ints, t_up, t_lo, t_deck_mean, t_ct, t_enc):
 def _sensor(x, u, fan, air, prm, ints, heat, t_up, t_lo, t_deck_mean, t_ct, t_enc):
     """The sensor: (heat from its surroundings [W], self-heating [W], local air [degC], local speed [m/s])."""
     t_s = x[ints[_I_SENSOR]]
-    pressure = prm[_PRESSURE]
+    pressure = u[_U_PRESSURE]
     t_air, speed, t_rad, t_contact, g_contact = _local_at(x, u, fan, air, prm, ints, t_up, t_lo, t_deck_mean,
                                                           t_ct, t_enc)
     shape = ints[_SHAPE]
@@ -456,7 +466,7 @@ def _sensor(x, u, fan, air, prm, ints, heat, t_up, t_lo, t_deck_mean, t_ct, t_en
 
 
 @numba.njit(cache=True, **_JIT)
-def _interior(x, fan, prm, ints, t_up, t_lo):
+def _interior(x, u, fan, prm, ints, t_up, t_lo):
     """Framing, attic floor, ceiling and control box flows [W]: (framing -> upper air, framing -> lower air,
     attic floor -> lower air, insulation top -> gypsum, ceiling gain to the rooms, triac heat, control box
     -> lower air, control box air temperature [degC])."""
@@ -468,7 +478,7 @@ def _interior(x, fan, prm, ints, t_up, t_lo):
     q_ceiling_air = _walton(t_ct - t_lo, 1.0, True) * floor_area * (t_ct - t_lo)
     # ceiling: insulation R-value, room film (plane-wall conduction, Incropera & DeWitt chapter 3)
     q_insulation = floor_area * (t_ct - t_gyp) / prm[_R_INSULATION]
-    q_room = floor_area * (t_gyp - prm[_ROOM_T]) / prm[_R_ROOM]
+    q_room = floor_area * (t_gyp - u[_U_T_ROOM]) / prm[_R_ROOM]
     # the triac's conduction loss heats the control box while the fan runs; the box loses to the lower air
     q_triac = fan * prm[_TRIAC_LOSS]
     i_enc = ints[_I_ENCLOSURE]
@@ -501,7 +511,7 @@ def _network(x, u, fan, air, prm, planes, ints, heat, plane_out, stride):
         deck_lo += q_lo
         deck_floor += q_fl
         t_deck_mean += planes[p, _DECK_SHARE] * x[n_p + p]
-    fr_up, fr_lo, ceiling_air, insulation, room, triac, enc_air, t_enc = _interior(x, fan, prm, ints, t_up, t_lo)
+    fr_up, fr_lo, ceiling_air, insulation, room, triac, enc_air, t_enc = _interior(x, u, fan, prm, ints, t_up, t_lo)
     vent_lo, vent_up, mix = _air_paths(t_lo, t_up, u, fan, air, prm, ints[_LAYERS])
     house_s, house_l = _house_air(t_lo, u, air, prm)
     q_s, p_self, t_air, speed = _sensor(x, u, fan, air, prm, ints, heat, t_up, t_lo, t_deck_mean, t_ct, t_enc)
@@ -518,9 +528,9 @@ def rhs(x, u, fan, air, prm, planes, ints, heat, out):
     ----------
     x : float64[n_nodes]
         Node temperatures [degC] in the network's node order.
-    u : float64[4 + P]
+    u : float64[6 + P]
         Forcing: :data:`FORCING_BASE` (temp_out [degC], temp_sky_k [K], wind_speed [m/s], temp_dew
-        [degC]), then the plane-of-array irradiance of each plane [W/m2].
+        [degC], pressure [Pa], temp_room [degC]), then the plane-of-array irradiance of each plane [W/m2].
     fan : float
         Fan state, 0.0 off or 1.0 on.
     air : float64[7]

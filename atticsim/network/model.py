@@ -27,7 +27,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from atticsim.airflow.model import AirflowModel
-from atticsim.air import air_density, humidity_ratio_from_rh
+from atticsim.air import air_density
 from atticsim.constants import CP_AIR, P_STANDARD
 from atticsim.materials import INSULATION, WOOD_SPECIFIC_HEAT
 from atticsim.network import kernel
@@ -68,8 +68,7 @@ class AtticNetwork:
     c_gypsum: float
     r_insulation: float          # m2K/W
     r_room: float                # m2K/W (room film + half gypsum)
-    room_temperature: float      # degC
-    room_humidity_ratio: float   # kg/kg
+    room_relative_humidity: float  # % in the rooms (their temperature is a forcing channel)
     airflow: object              # AirflowModel
     placement: str
     sensor_body: object          # atticsim.sensor.body.SensorBody or None
@@ -156,7 +155,7 @@ class AtticNetwork:
         temps : numpy.ndarray
             Node temperatures [degC], shape (n_nodes, m).
         forcing : numpy.ndarray
-            Forcing channels (:data:`FORCING_BASE` then one irradiance row per plane), shape (4 + P, m).
+            Forcing channels (:data:`FORCING_BASE` then one irradiance row per plane), shape (6 + P, m).
         fan_on : numpy.ndarray or bool
             Fan state, shape (m,) or one for all.
         air : AirflowState or namespace of per-column arrays, optional
@@ -293,9 +292,7 @@ def build_network(scenario, pressure: float = P_STANDARD) -> AtticNetwork:
         c_ceiling_top=0.5 * cap_ins * attic.floor_area,
         c_gypsum=(cap_gyp + 0.5 * cap_ins) * attic.floor_area,
         r_insulation=ceiling.insulation, r_room=ceiling.room_film + 0.5 * r_gyp,
-        room_temperature=ceiling.room_temperature,
-        room_humidity_ratio=float(humidity_ratio_from_rh(ceiling.room_temperature,
-                                                         scenario.house.indoor_relative_humidity, pressure)),
+        room_relative_humidity=scenario.house.indoor_relative_humidity,
         airflow=AirflowModel(scenario, pressure),
         placement=sensor.placement, sensor_body=body, sensor_conductance=sensor.dissipation_constant,
         sensor_capacity=body.heat_capacity if body is not None else sensor.dissipation_constant * sensor.time_constant,

@@ -16,7 +16,7 @@ import pandas as pd
 from atticsim.constants import KELVIN
 from atticsim.airflow.model import stack_states
 from atticsim.network.kernel import AIR_ORDER
-from atticsim.network.model import ATTIC_BOOKS, BOOKS
+from atticsim.network.model import ATTIC_BOOKS, BOOKS, FORCING_BASE
 
 J_PER_KWH = 3.6e6
 
@@ -171,7 +171,7 @@ def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
 
     cols = {"outdoor_air_c": f[0], "sky_c": f[1] - KELVIN, "wind_speed_m_s": f[2]}
     for i, p in enumerate(net.plane_names):
-        cols[f"poa_{p}_w_m2"] = f[4 + i]
+        cols[f"poa_{p}_w_m2"] = f[len(FORCING_BASE) + i]
     cols["attic_air_c"] = attic_air
     for name, i in idx.items():
         if name != "air":
