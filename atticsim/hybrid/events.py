@@ -19,7 +19,10 @@ import numpy as np
 from scipy.integrate import solve_ivp
 
 from atticsim.hybrid.threads import one_blas_thread
-from atticsim.network.model import BOOKS
+from atticsim.network.model import BOOKS, FORCING_BASE
+
+#: Forcing channels the loop reads for the airflow.
+_PRESSURE, _T_ROOM = FORCING_BASE.index("pressure"), FORCING_BASE.index("temp_room")
 
 
 @dataclass
@@ -105,7 +108,8 @@ def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_t
     while t < t_end:
         if airflow is not None:
             f = forcing.at(t)
-            network.air = airflow.solve(float(network.mean_air(y)), f[0], f[2], state["fan"], with_depressurisation=True)
+            network.air = airflow.solve(float(network.mean_air(y)), f[0], f[2], state["fan"], with_depressurisation=True,
+                                        pressure=f[_PRESSURE], temp_room=f[_T_ROOM])
             state["air"] = network.air_vector(network.air)
             updates.append((t, network.air))
         seg_end = min(t_end, (math.floor(t / update) + 1) * update) if math.isfinite(update) else t_end

@@ -105,8 +105,9 @@ N_INTS = 12
 #: Convection geometry codes of a sensor body (``ints[_SHAPE]``; -1: no body).
 SHAPE_CODES = {"sphere": 0, "cylinder": 1}
 #: Order of :func:`air_vector`.
-AIR_ORDER = ("in_lower", "in_upper", "out_lower", "house_in", "attic_to_house", "fan_flow", "fan_power")
-_IN_LOWER, _IN_UPPER, _OUT_LOWER, _HOUSE_IN, _ATTIC_TO_HOUSE, _FAN_FLOW, _FAN_POWER = range(7)
+AIR_ORDER = ("in_lower", "in_upper", "out_lower", "house_in", "attic_to_house", "fan_flow", "fan_power",
+             "fan_makeup")
+_IN_LOWER, _IN_UPPER, _OUT_LOWER, _HOUSE_IN, _ATTIC_TO_HOUSE, _FAN_FLOW, _FAN_POWER, _FAN_MAKEUP = range(8)
 
 #: Self-heating table for a ``sensor_power`` function: sensor temperatures HEAT_T_MIN..HEAT_T_MAX [degC]
 #: every HEAT_STEP [K], linear interpolation, clamped to the end values outside (a numerical choice of
@@ -242,7 +243,7 @@ _AIR_ORDER_VALUES = operator.attrgetter(*AIR_ORDER)  # (AIR_ORDER's fields of an
 
 
 def air_vector(air) -> np.ndarray:
-    """The air flows :func:`rhs` reads, from an AirflowState: float64[7] in :data:`AIR_ORDER`."""
+    """The air flows :func:`rhs` reads, from an AirflowState: float64[8] in :data:`AIR_ORDER`."""
     return np.array(_AIR_ORDER_VALUES(air), dtype=float)
 
 
@@ -393,12 +394,25 @@ def _plane(p, x, u, planes, prm, n_p, t_up, t_lo, k_ct4):
 
 
 @numba.njit(cache=True, **_JIT)
+def _mass_flows(t_lo, t_up, u, air):
+    """Mass flows [kg/s] of the held volume flows, each at the present density of the air it carries
+    (ideal gas at the present station pressure): (outdoor air into the lower layer, into the upper layer,
+    lower-layer air out to outdoors, room air into the lower layer, lower-layer air into the house). With
+    ``fan_makeup`` the fan's exhaust of upper-layer air is made up by outdoor air entering low."""
+    p = u[_U_PRESSURE]
+    rho_out = _air_density(u[_U_T_OUT], p)
+    rho_lo = _air_density(t_lo, p)
+    m_fan = air[_FAN_MAKEUP] * _air_density(t_up, p) * air[_FAN_FLOW]
+    return (rho_out * air[_IN_LOWER] + m_fan, rho_out * air[_IN_UPPER], rho_lo * air[_OUT_LOWER],
+            _air_density(u[_U_T_ROOM], p) * air[_HOUSE_IN], rho_lo * air[_ATTIC_TO_HOUSE])
+
+
+@numba.njit(cache=True, **_JIT)
 def _air_paths(t_lo, t_up, u, fan, air, prm, layers):
     """Enthalpy flows of the air paths into each layer and between them [W]: (ventilation into the lower
     layer, into the upper layer, lower -> upper exchange)."""
-    t_out = u[0]
-    in_lower, in_upper, out_lower = air[_IN_LOWER], air[_IN_UPPER], air[_OUT_LOWER]
-    house_in, attic_to_house = air[_HOUSE_IN], air[_ATTIC_TO_HOUSE]
+    t_out = u[_U_T_OUT]
+    in_lower, in_upper, out_lower, house_in, attic_to_house = _mass_flows(t_lo, t_up, u, air)
     # c_p m (T_in - T_layer) for the air entering each layer (enthalpy flow, common practice)
     vent_lo = CP_AIR * (in_lower * (t_out - t_lo) + house_in * (u[_U_T_ROOM] - t_lo))
     vent_up = CP_AIR * in_upper * (t_out - t_up)
@@ -421,11 +435,11 @@ def _air_paths(t_lo, t_up, u, fan, air, prm, layers):
 
 
 @numba.njit(cache=True, **_JIT)
-def _house_air(t_lo, u, air, prm):
+def _house_air(t_lo, t_up, u, air, prm):
     """Loads on the rooms of air exchanged through the ceiling [W]: (sensible c_p m dT, latent h_fg m dW)
     (ASHRAE Handbook Fundamentals, psychrometrics chapter)."""
     room_t, pressure = u[_U_T_ROOM], u[_U_PRESSURE]
-    house_in, attic_to_house = air[_HOUSE_IN], air[_ATTIC_TO_HOUSE]
+    _, _, _, house_in, attic_to_house = _mass_flows(t_lo, t_up, u, air)
     q_s = CP_AIR * (house_in * (u[_U_T_OUT] - room_t) + attic_to_house * (t_lo - room_t))
     w_room = _humidity_ratio_from_rh(room_t, prm[_ROOM_RH], pressure)
     q_l = H_FG * (house_in + attic_to_house) * (_humidity_ratio(u[_U_T_DEW], pressure) - w_room)
@@ -436,7 +450,8 @@ def _house_air(t_lo, u, air, prm):
 def _local_at(x, u, fan, air, prm, ints, t_up, t_lo, t_deck_mean, t_ct, t_enc):
     """The sensor's local conditions (t_air, speed, t_rad, t_contact, g_contact) of its placement (speeds and
     mixing weights are engineering assumptions, common practice, no source)."""
-    intake_flow = air[_IN_LOWER] / _air_density(u[_U_T_OUT], u[_U_PRESSURE])
+    # outdoor air entering the lower layer, at outdoor density
+    intake_flow = _mass_flows(t_lo, t_up, u, air)[0] / _air_density(u[_U_T_OUT], u[_U_PRESSURE])
     return _local(ints[_PLACEMENT], t_up, t_lo, t_deck_mean, t_ct, u[0], t_enc, fan > 0, air[_FAN_FLOW],
                   prm[_FAN_AREA], intake_flow, prm[_INTAKE_AREA], prm[_CONTACT_G])
 
@@ -513,7 +528,7 @@ def _network(x, u, fan, air, prm, planes, ints, heat, plane_out, stride):
         t_deck_mean += planes[p, _DECK_SHARE] * x[n_p + p]
     fr_up, fr_lo, ceiling_air, insulation, room, triac, enc_air, t_enc = _interior(x, u, fan, prm, ints, t_up, t_lo)
     vent_lo, vent_up, mix = _air_paths(t_lo, t_up, u, fan, air, prm, ints[_LAYERS])
-    house_s, house_l = _house_air(t_lo, u, air, prm)
+    house_s, house_l = _house_air(t_lo, t_up, u, air, prm)
     q_s, p_self, t_air, speed = _sensor(x, u, fan, air, prm, ints, heat, t_up, t_lo, t_deck_mean, t_ct, t_enc)
     return (solar, sky, ground, ext, cond, deck_up, deck_lo, deck_floor, fr_up, fr_lo, ceiling_air, vent_lo,
             vent_up, vent_lo + vent_up, mix, insulation, room, q_s, fan * air[_FAN_POWER], house_s, house_l,
@@ -533,7 +548,7 @@ def rhs(x, u, fan, air, prm, planes, ints, heat, out):
         [degC], pressure [Pa], temp_room [degC]), then the plane-of-array irradiance of each plane [W/m2].
     fan : float
         Fan state, 0.0 off or 1.0 on.
-    air : float64[7]
+    air : float64[8]
         Held air flows in :data:`AIR_ORDER` (:func:`air_vector`).
     prm, planes, ints, heat
         The network's :class:`Packed` arrays.
@@ -579,7 +594,7 @@ def flows(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
 
 @numba.njit(cache=True, **_JIT)
 def flows_columns(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
-    """:func:`flows` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (7, m), into q
+    """:func:`flows` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (8, m), into q
     (N_FLOWS, m) and q_planes (2 P, m)."""
     qj = np.empty(N_FLOWS)
     pj = np.empty(q_planes.shape[0])
@@ -607,7 +622,7 @@ def local_air_columns(x, u, fan, air, prm, planes, ints, out):
 
 @numba.njit(cache=True, **_JIT)
 def rhs_columns(x, u, fan, air, prm, planes, ints, heat, out):
-    """:func:`rhs` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (7, m), into out
+    """:func:`rhs` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (8, m), into out
     (n_out, m)."""
     oj = np.empty(out.shape[0])
     for j in range(x.shape[1]):
