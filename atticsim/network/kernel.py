@@ -39,6 +39,7 @@ from atticsim.constants import CP_AIR, GRAVITY, KELVIN, SIGMA
 from atticsim import air as _moist_air
 from atticsim.air import H_FG
 from atticsim.network import heat_transfer
+from atticsim.network.heat_transfer import _EPS2
 from atticsim.network.placement import PLACEMENTS
 from atticsim.sensor import air as _air
 from atticsim.sensor import convection as _conv
@@ -82,8 +83,12 @@ FLOWS = ("solar", "sky", "ground", "exterior_convection", "cover_deck", "deck_up
          "house_air_latent", "sensor_self_heating", "triac_heat", "enclosure_air", "sensor_local_air",
          "sensor_local_speed")
 N_FLOWS = len(FLOWS)
-#: Per roof plane: the net heat gained by its cover and by its deck [W].
-PLANE_FLOWS = ("cover_net", "deck_net")
+#: Per roof plane: the net heat gained by its cover and by its deck [W], the temperatures of its outer
+#: surface and of the deck's underside [degC].
+PLANE_FLOWS = ("cover_net", "deck_net", "roof_surface", "deck_underside")
+#: Newton steps for the massless surface temperatures, from the layer's own temperature (three leave an error
+#: below 1e-4 K from calm night to hot noon, two up to 0.006 K: tests/test_network_surfaces.py).
+SURFACE_STEPS = 3
 
 # --- layout of the packed parameters ----------------------------------------------------------------------
 
@@ -95,8 +100,8 @@ PLANE_FLOWS = ("cover_net", "deck_net")
 N_PRM = 31
 #: Per-plane parameters, columns of ``Packed.planes`` (one row per plane).
 (_AREA, _COS_TILT, _PERIMETER, _F_SKY, _F_GROUND, _C_COVER, _C_DECK, _U_COVER_DECK, _G_DECK_FLOOR,
- _DECK_SHARE) = range(10)
-N_PLANE_COLS = 10
+ _DECK_SHARE, _R_OUTER, _R_INNER) = range(12)
+N_PLANE_COLS = 12
 #: Integers, entries of ``Packed.ints`` (node indices; -1 for an absent node or body).
 (_N_PLANES, _LAYERS, _I_LOWER, _I_UPPER, _I_FRAMING, _I_CEILING_TOP, _I_GYPSUM, _I_ENCLOSURE, _I_SENSOR,
  _PLACEMENT, _SHAPE, _N_NODES) = range(12)
@@ -164,7 +169,8 @@ def pack(network) -> Packed:
     planes[:, _AREA] = area
     for col, value in ((_COS_TILT, network.cos_tilt), (_PERIMETER, network.perimeter), (_F_SKY, network.f_sky),
                        (_F_GROUND, network.f_ground), (_C_COVER, network.c_cover), (_C_DECK, network.c_deck),
-                       (_U_COVER_DECK, network.u_cover_deck), (_G_DECK_FLOOR, network.g_deck_floor)):
+                       (_U_COVER_DECK, network.u_cover_deck), (_G_DECK_FLOOR, network.g_deck_floor),
+                       (_R_OUTER, network.r_outer), (_R_INNER, network.r_inner)):
         planes[:, col] = np.broadcast_to(np.asarray(value, dtype=float).reshape(-1), (P,))
     planes[:, _DECK_SHARE] = area / area.sum()  # the sensor's area-weighted deck temperature, as flows()
 
@@ -358,39 +364,102 @@ def _local(code, t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fa
 
 
 @numba.njit(cache=True, **_JIT)
+def _walton_slope(delta_t, h):
+    """d(h dT)/d(dT) for Walton's h = c (dT^2 + eps^2)^(1/6) (c constant on each side of dT = 0):
+    h (1 + dT^2 / (3 (dT^2 + eps^2))) [W/(m2 K)]."""
+    d2 = delta_t * delta_t
+    return h * (1.0 + d2 / (3.0 * (d2 + _EPS2)))
+
+
+@numba.njit(cache=True, **_JIT)
+def _outer_surface(t_node, r_half, absorbed, t_out, k_sky4, k_out4, f_sky, f_ground, emittance, h_forced,
+                   cos_tilt):
+    """Temperature [degC] of a roof covering's outer surface, a massless surface between the covering's
+    centre (t_node, half the covering's resistance r_half [m2K/W] away) and the outdoors: absorbed sun
+    [W/m2] + long-wave to sky and ground + convection + conduction from the centre = 0, solved by Newton's
+    method from t_node (:data:`SURFACE_STEPS` steps)."""
+    t = t_node
+    for _ in range(SURFACE_STEPS):
+        k = t + KELVIN
+        k3 = k * k * k
+        d_t = t - t_out
+        h_nat = _walton(d_t, cos_tilt, True)
+        f = (absorbed + emittance * SIGMA * (f_sky * (k_sky4 - k3 * k) + f_ground * (k_out4 - k3 * k))
+             - (h_forced + h_nat) * d_t + (t_node - t) / r_half)
+        slope = (-4.0 * emittance * SIGMA * (f_sky + f_ground) * k3 - h_forced - _walton_slope(d_t, h_nat)
+                 - 1.0 / r_half)
+        t -= f / slope
+    return t
+
+
+@numba.njit(cache=True, **_JIT)
+def _inner_surface(t_node, r_half, cos_tilt, f_up, t_up, t_lo, g_floor, k_ct4):
+    """Temperature [degC] of a deck's underside, a massless surface between the sheathing's centre (t_node,
+    half its resistance r_half [m2K/W] away) and the attic: conduction from the centre = natural convection to
+    the upper (share f_up of the area) and lower air + long-wave to the attic floor (g_floor: the gray
+    exchange factor per unit deck area), solved by Newton's method from t_node (:data:`SURFACE_STEPS`
+    steps)."""
+    t = t_node
+    for _ in range(SURFACE_STEPS):
+        k = t + KELVIN
+        k3 = k * k * k
+        d_up, d_lo = t - t_up, t - t_lo
+        h_up = _walton(d_up, cos_tilt, False)
+        h_lo = _walton(d_lo, cos_tilt, False)
+        f = ((t_node - t) / r_half - f_up * h_up * d_up - (1.0 - f_up) * h_lo * d_lo
+             - SIGMA * g_floor * (k3 * k - k_ct4))
+        slope = (-1.0 / r_half - f_up * _walton_slope(d_up, h_up) - (1.0 - f_up) * _walton_slope(d_lo, h_lo)
+                 - 4.0 * SIGMA * g_floor * k3)
+        t -= f / slope
+    return t
+
+
+@numba.njit(cache=True, **_JIT)
 def _plane(p, x, u, planes, prm, n_p, t_up, t_lo, k_ct4):
-    """Heat flows of roof plane p [W]: (solar, sky, ground, exterior convection, cover -> deck, deck -> upper
-    air, deck -> lower air, deck -> attic floor)."""
+    """Heat flows of roof plane p [W] and its surface temperatures [degC]: (solar, sky, ground, exterior
+    convection, cover -> deck, deck -> upper air, deck -> lower air, deck -> attic floor, outer surface,
+    deck underside).
+
+    Each layer's node sits at its centre and reaches its surfaces through half its resistance; the films act
+    at the massless surfaces (a layer lumped at its centre: Incropera & DeWitt, finite-difference nodes,
+    chapter 4), so the path from outdoor air to attic air crosses the whole of both layers."""
     area = planes[p, _AREA]
     cos_tilt = planes[p, _COS_TILT]
     t_cov = x[p]
     t_deck = x[n_p + p]
-    t_out, t_sky_k = u[0], u[1]
-    k_cov = t_cov + KELVIN
-    k_cov4 = k_cov * k_cov * k_cov * k_cov
+    t_out, t_sky_k = u[_U_T_OUT], u[_U_T_SKY_K]
     k_out = t_out + KELVIN
+    k_out4 = k_out * k_out * k_out * k_out
+    k_sky4 = t_sky_k * t_sky_k * t_sky_k * t_sky_k
     emittance = prm[_EMITTANCE]
     f_up = prm[_F_UP]
-    # absorbed solar alpha I A (common practice)
-    q_solar = prm[_ABSORPTANCE] * u[_N_FORCING_BASE + p] * area
+    f_sky, f_ground = planes[p, _F_SKY], planes[p, _F_GROUND]
+    g_floor = planes[p, _G_DECK_FLOOR] / area
+    # absorbed solar alpha I (common practice)
+    absorbed = prm[_ABSORPTANCE] * u[_N_FORCING_BASE + p]
+    # exterior convection: the sum of Sparrow's forced and Walton's natural term (Walton 1983, NBSIR 83-2655)
+    h_forced = _sparrow(u[_U_WIND], planes[p, _PERIMETER], area, prm[_ROUGHNESS], _WINDWARD)
+    t_so = _outer_surface(t_cov, planes[p, _R_OUTER], absorbed, t_out, k_sky4, k_out4, f_sky, f_ground,
+                          emittance, h_forced, cos_tilt)
+    t_si = _inner_surface(t_deck, planes[p, _R_INNER], cos_tilt, f_up, t_up, t_lo, g_floor, k_ct4)
+    k_so = t_so + KELVIN
+    k_so4 = k_so * k_so * k_so * k_so
+    q_solar = absorbed * area
     # long-wave to sky and ground, eps sigma A F (T^4 - T_x^4), isotropic view factors
     # (Duffie & Beckman sect. 2.15 and 3.9), ground at air temperature
-    q_sky = emittance * SIGMA * area * planes[p, _F_SKY] * (t_sky_k * t_sky_k * t_sky_k * t_sky_k - k_cov4)
-    q_ground = emittance * SIGMA * area * planes[p, _F_GROUND] * (k_out * k_out * k_out * k_out - k_cov4)
-    # exterior convection: sum of Sparrow's forced and Walton's natural term (Walton 1983, NBSIR 83-2655)
-    h_ext = (_sparrow(u[2], planes[p, _PERIMETER], area, prm[_ROUGHNESS], _WINDWARD)
-             + _walton(t_cov - t_out, cos_tilt, True))
-    q_ext = h_ext * area * (t_out - t_cov)
-    # conduction cover -> deck (Incropera & DeWitt, plane wall, chapter 3)
+    q_sky = emittance * SIGMA * area * f_sky * (k_sky4 - k_so4)
+    q_ground = emittance * SIGMA * area * f_ground * (k_out4 - k_so4)
+    q_ext = (h_forced + _walton(t_so - t_out, cos_tilt, True)) * area * (t_out - t_so)
+    # conduction between the layers' centres, through half of each (Incropera & DeWitt, plane wall, chapter 3)
     q_cond = planes[p, _U_COVER_DECK] * area * (t_cov - t_deck)
     # deck underside -> each air layer by Walton natural convection, area shared by f_up
-    q_up = _walton(t_deck - t_up, cos_tilt, False) * f_up * area * (t_deck - t_up)
-    q_lo = _walton(t_deck - t_lo, cos_tilt, False) * (1 - f_up) * area * (t_deck - t_lo)
-    # deck <-> attic floor, gray two-surface exchange sigma G (T1^4 - T2^4) (Incropera & DeWitt, radiation
-    # exchange chapter)
-    k_deck = t_deck + KELVIN
-    q_floor = SIGMA * planes[p, _G_DECK_FLOOR] * (k_deck * k_deck * k_deck * k_deck - k_ct4)
-    return q_solar, q_sky, q_ground, q_ext, q_cond, q_up, q_lo, q_floor
+    q_up = _walton(t_si - t_up, cos_tilt, False) * f_up * area * (t_si - t_up)
+    q_lo = _walton(t_si - t_lo, cos_tilt, False) * (1 - f_up) * area * (t_si - t_lo)
+    # deck underside <-> attic floor, gray two-surface exchange sigma G (T1^4 - T2^4) (Incropera & DeWitt,
+    # radiation exchange chapter)
+    k_si = t_si + KELVIN
+    q_floor = SIGMA * planes[p, _G_DECK_FLOOR] * (k_si * k_si * k_si * k_si - k_ct4)
+    return q_solar, q_sky, q_ground, q_ext, q_cond, q_up, q_lo, q_floor, t_so, t_si
 
 
 @numba.njit(cache=True, **_JIT)
@@ -491,7 +560,9 @@ def _interior(x, u, fan, prm, ints, t_up, t_lo):
     q_fr_up = _walton(t_fr - t_up, 0.0, True) * f_up * a_fr * (t_fr - t_up)
     q_fr_lo = _walton(t_fr - t_lo, 0.0, True) * (1 - f_up) * a_fr * (t_fr - t_lo)
     q_ceiling_air = _walton(t_ct - t_lo, 1.0, True) * floor_area * (t_ct - t_lo)
-    # ceiling: insulation R-value, room film (plane-wall conduction, Incropera & DeWitt chapter 3)
+    # ceiling: the insulation top (a surface node) to the gypsum's centre through the insulation and half the
+    # gypsum, the gypsum's centre to the rooms through its other half and the room film (plane-wall conduction,
+    # Incropera & DeWitt chapter 3)
     q_insulation = floor_area * (t_ct - t_gyp) / prm[_R_INSULATION]
     q_room = floor_area * (t_gyp - u[_U_T_ROOM]) / prm[_R_ROOM]
     # the triac's conduction loss heats the control box while the fan runs; the box loses to the lower air
@@ -503,10 +574,12 @@ def _interior(x, u, fan, prm, ints, t_up, t_lo):
 
 
 @numba.njit(cache=True, _nrt=False, **_JIT)
-def _network(x, u, fan, air, prm, planes, ints, heat, plane_out, stride):
+def _network(x, u, fan, air, prm, planes, ints, heat, plane_out, stride, surfaces):
     """Every heat flow of the network at one state [W], in the order of :data:`FLOWS`; roof plane p's net
-    gains of its cover and deck go to ``plane_out[p]`` and ``plane_out[stride + p]``. The network's one
-    source of heat flows: :func:`rhs` and :func:`flows` both read it."""
+    gains of its cover and deck go to ``plane_out[p]`` and ``plane_out[stride + p]`` and, with ``surfaces``,
+    its outer surface and deck underside temperatures to ``plane_out[2 stride + p]`` and
+    ``plane_out[3 stride + p]``. The network's one source of heat flows: :func:`rhs` and :func:`flows` both
+    read it."""
     n_p = ints[_N_PLANES]
     t_lo, t_up = x[ints[_I_LOWER]], x[ints[_I_UPPER]]
     t_ct = x[ints[_I_CEILING_TOP]]
@@ -514,9 +587,13 @@ def _network(x, u, fan, air, prm, planes, ints, heat, plane_out, stride):
     k_ct4 = k_ct * k_ct * k_ct * k_ct
     solar = sky = ground = ext = cond = deck_up = deck_lo = deck_floor = t_deck_mean = 0.0
     for p in range(n_p):
-        q_sol, q_sky, q_gr, q_ext, q_cond, q_up, q_lo, q_fl = _plane(p, x, u, planes, prm, n_p, t_up, t_lo, k_ct4)
+        q_sol, q_sky, q_gr, q_ext, q_cond, q_up, q_lo, q_fl, t_so, t_si = _plane(p, x, u, planes, prm, n_p, t_up,
+                                                                                 t_lo, k_ct4)
         plane_out[p] = q_sol + q_sky + q_gr + q_ext - q_cond
         plane_out[stride + p] = q_cond - q_up - q_lo - q_fl
+        if surfaces:
+            plane_out[2 * stride + p] = t_so
+            plane_out[3 * stride + p] = t_si
         solar += q_sol
         sky += q_sky
         ground += q_gr
@@ -525,7 +602,7 @@ def _network(x, u, fan, air, prm, planes, ints, heat, plane_out, stride):
         deck_up += q_up
         deck_lo += q_lo
         deck_floor += q_fl
-        t_deck_mean += planes[p, _DECK_SHARE] * x[n_p + p]
+        t_deck_mean += planes[p, _DECK_SHARE] * t_si
     fr_up, fr_lo, ceiling_air, insulation, room, triac, enc_air, t_enc = _interior(x, u, fan, prm, ints, t_up, t_lo)
     vent_lo, vent_up, mix = _air_paths(t_lo, t_up, u, fan, air, prm, ints[_LAYERS])
     house_s, house_l = _house_air(t_lo, t_up, u, air, prm)
@@ -557,7 +634,7 @@ def rhs(x, u, fan, air, prm, planes, ints, heat, out):
     """
     n_p = ints[_N_PLANES]
     n = ints[_N_NODES]
-    q = _network(x, u, fan, air, prm, planes, ints, heat, out, n_p)
+    q = _network(x, u, fan, air, prm, planes, ints, heat, out, n_p, False)
     for p in range(n_p):
         out[p] = out[p] / planes[p, _C_COVER]
         out[n_p + p] = out[n_p + p] / planes[p, _C_DECK]
@@ -585,9 +662,9 @@ def rhs(x, u, fan, air, prm, planes, ints, heat, out):
 @numba.njit(cache=True, _nrt=False, **_JIT)
 def flows(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
     """The named flows of :data:`FLOWS` at one state into ``q`` [W; the local air in degC, its speed in m/s],
-    and each roof plane's net gains of cover and deck into ``q_planes`` (float64[2 P]: the covers, then the
-    decks). Arguments as :func:`rhs`."""
-    values = _network(x, u, fan, air, prm, planes, ints, heat, q_planes, ints[_N_PLANES])
+    and each roof plane's :data:`PLANE_FLOWS` into ``q_planes`` (float64[4 P]: the covers' and the decks' net
+    gains [W], the outer surfaces' and the deck undersides' temperatures [degC]). Arguments as :func:`rhs`."""
+    values = _network(x, u, fan, air, prm, planes, ints, heat, q_planes, ints[_N_PLANES], True)
     for j in range(N_FLOWS):
         q[j] = values[j]
 
@@ -595,7 +672,7 @@ def flows(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
 @numba.njit(cache=True, **_JIT)
 def flows_columns(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
     """:func:`flows` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (8, m), into q
-    (N_FLOWS, m) and q_planes (2 P, m)."""
+    (N_FLOWS, m) and q_planes (4 P, m)."""
     qj = np.empty(N_FLOWS)
     pj = np.empty(q_planes.shape[0])
     for j in range(x.shape[1]):
@@ -611,13 +688,43 @@ def local_air_columns(x, u, fan, air, prm, planes, ints, out):
     n_p = ints[_N_PLANES]
     for j in range(x.shape[1]):
         t_lo, t_up = x[ints[_I_LOWER], j], x[ints[_I_UPPER], j]
+        k_ct = x[ints[_I_CEILING_TOP], j] + KELVIN
+        k_ct4 = k_ct * k_ct * k_ct * k_ct
         t_deck_mean = 0.0
         for p in range(n_p):
-            t_deck_mean += planes[p, _DECK_SHARE] * x[n_p + p, j]
+            t_si = _inner_surface(x[n_p + p, j], planes[p, _R_INNER], planes[p, _COS_TILT], prm[_F_UP], t_up, t_lo,
+                                  planes[p, _G_DECK_FLOOR] / planes[p, _AREA], k_ct4)
+            t_deck_mean += planes[p, _DECK_SHARE] * t_si
         i_enc = ints[_I_ENCLOSURE]
         t_enc = x[i_enc, j] if i_enc >= 0 else t_lo
         out[j] = _local_at(x[:, j], u[:, j], fan[j], air[:, j], prm, ints, t_up, t_lo, t_deck_mean,
                            x[ints[_I_CEILING_TOP], j], t_enc)[0]
+
+
+@numba.njit(cache=True, **_JIT)
+def deck_underside_max(x, prm, planes, ints, order):
+    """The highest deck underside temperature [degC] over the columns of x (n_nodes, m), any plane.
+
+    The underside lies between its sheathing's centre and the attic's air layers and floor (its balance is a
+    weighted mean of them with positive weights), so it never exceeds the highest of those; ``order`` lists
+    the columns by that bound, highest first, and the search stops where the bound falls below the best
+    underside found (exact, and it solves only a few columns)."""
+    n_p = ints[_N_PLANES]
+    best = -math.inf
+    for j in order:
+        t_lo, t_up, t_ct = x[ints[_I_LOWER], j], x[ints[_I_UPPER], j], x[ints[_I_CEILING_TOP], j]
+        bound = max(t_lo, t_up, t_ct)
+        for p in range(n_p):
+            bound = max(bound, x[n_p + p, j])
+        if bound < best:
+            break
+        k_ct = t_ct + KELVIN
+        k_ct4 = k_ct * k_ct * k_ct * k_ct
+        for p in range(n_p):
+            t_si = _inner_surface(x[n_p + p, j], planes[p, _R_INNER], planes[p, _COS_TILT], prm[_F_UP], t_up, t_lo,
+                                  planes[p, _G_DECK_FLOOR] / planes[p, _AREA], k_ct4)
+            best = max(best, t_si)
+    return best
 
 
 @numba.njit(cache=True, **_JIT)

@@ -2,7 +2,9 @@
 
 Nodes (temperatures in degC in the state vector):
 
-- per roof plane p: ``cover_p`` (roofing layer, outer surface) and ``deck_p`` (sheathing, inner surface);
+- per roof plane p: ``cover_p`` (the roofing layer, at its centre) and ``deck_p`` (the sheathing, at its
+  centre); each reaches its massless surfaces (the outer surface, the deck's underside, where the films act)
+  through half its resistance;
 - ``air_lower``, ``air_upper`` (or one well-mixed ``air`` node), ``framing`` (rafters, trusses, gables);
 - ``ceiling_top`` (insulation top surface, carrying half the insulation's heat capacity) and
   ``gypsum`` (gypsum board plus the other half of the insulation);
@@ -53,7 +55,9 @@ class AtticNetwork:
     f_ground: np.ndarray
     c_cover: np.ndarray          # J/K
     c_deck: np.ndarray           # J/K
-    u_cover_deck: np.ndarray     # W/(m2 K)
+    u_cover_deck: np.ndarray     # W/(m2 K), between the covering's and the sheathing's centres
+    r_outer: np.ndarray          # m2K/W, the covering's centre to its outer surface (half its resistance)
+    r_inner: np.ndarray          # m2K/W, the sheathing's centre to its underside (half its resistance)
     g_deck_floor: np.ndarray     # m2 (radiative exchange factor)
     floor_area: float
     c_air: float                 # J/K, all attic air
@@ -66,8 +70,8 @@ class AtticNetwork:
     c_framing: float
     c_ceiling_top: float
     c_gypsum: float
-    r_insulation: float          # m2K/W
-    r_room: float                # m2K/W (room film + half gypsum)
+    r_insulation: float          # m2K/W, the insulation top to the gypsum's centre (insulation + half gypsum)
+    r_room: float                # m2K/W, the gypsum's centre to the rooms (half gypsum + room film)
     room_relative_humidity: float  # % in the rooms (their temperature is a forcing channel)
     airflow: object              # AirflowModel
     placement: str
@@ -164,15 +168,18 @@ class AtticNetwork:
         Returns
         -------
         dict of numpy.ndarray
-            The named flows of :data:`FLOWS`, shape (m,), and ``cover_net``, ``deck_net`` per plane, shape (P, m).
+            The named flows of :data:`FLOWS`, shape (m,), and those of :data:`PLANE_FLOWS` per plane, shape
+            (P, m): the cover's and the deck's net gains [W], the outer surface's and the deck underside's
+            temperatures [degC].
         """
         x, u, fan, a = self._columns(temps, forcing, fan_on, air)
         pk = self.packed
         q = np.empty((kernel.N_FLOWS, x.shape[1]))
-        qp = np.empty((2 * self.n_planes, x.shape[1]))
+        qp = np.empty((len(PLANE_FLOWS) * self.n_planes, x.shape[1]))
         kernel.flows_columns(x, u, fan, a, pk.prm, pk.planes, pk.ints, pk.heat, q, qp)
         out = dict(zip(FLOWS, q))
-        out["cover_net"], out["deck_net"] = qp[:self.n_planes], qp[self.n_planes:]
+        for i, name in enumerate(PLANE_FLOWS):
+            out[name] = qp[i * self.n_planes:(i + 1) * self.n_planes]
         return out
 
     def rate(self, x, u, fan_on, air) -> np.ndarray:
@@ -197,6 +204,16 @@ class AtticNetwork:
         out = np.empty(x.shape[1])
         kernel.local_air_columns(x, u, fan, a, pk.prm, pk.planes, pk.ints, out)
         return out
+
+    def deck_underside_max(self, temps) -> float:
+        """The highest deck underside temperature [degC] over columns of node temperatures (n_nodes, m), any
+        plane (exact: :func:`atticsim.network.kernel.deck_underside_max`)."""
+        x = np.ascontiguousarray(temps, dtype=float)
+        P = self.n_planes
+        rows = [x[self.i_lower], x[self.i_upper], x[self.index["ceiling_top"]], *x[P:2 * P]]
+        order = np.argsort(-np.max(rows, axis=0), kind="stable")
+        pk = self.packed
+        return float(kernel.deck_underside_max(x, pk.prm, pk.planes, pk.ints, order))
 
     def derivatives(self, temps, forcing, fan_on, air=None) -> np.ndarray:
         """Time derivatives of node temperatures [K/s] and of the books [W], shape (n_nodes + books, m)
@@ -283,6 +300,7 @@ def build_network(scenario, pressure: float = P_STANDARD) -> AtticNetwork:
         emittance=roof.emittance, f_sky=col(f_sky), f_ground=col(f_ground),
         c_cover=cap_cov * area, c_deck=cap_sh * area,
         u_cover_deck=np.full_like(area, 1.0 / (0.5 * r_cov + 0.5 * r_sh)),
+        r_outer=np.full_like(area, 0.5 * r_cov), r_inner=np.full_like(area, 0.5 * r_sh),
         g_deck_floor=g, floor_area=attic.floor_area, c_air=c_air,
         upper_fraction=attic.upper_volume_fraction, layers=attic.air_layers,
         layer_mixing=attic.layer_mixing_ach * attic.volume / 3600.0, fan_mixing_ratio=attic.fan_mixing_ratio,
@@ -291,7 +309,7 @@ def build_network(scenario, pressure: float = P_STANDARD) -> AtticNetwork:
         framing_area=attic.framing_area, c_framing=attic.framing_mass * WOOD_SPECIFIC_HEAT,
         c_ceiling_top=0.5 * cap_ins * attic.floor_area,
         c_gypsum=(cap_gyp + 0.5 * cap_ins) * attic.floor_area,
-        r_insulation=ceiling.insulation, r_room=ceiling.room_film + 0.5 * r_gyp,
+        r_insulation=ceiling.insulation + 0.5 * r_gyp, r_room=ceiling.room_film + 0.5 * r_gyp,
         room_relative_humidity=scenario.house.indoor_relative_humidity,
         airflow=AirflowModel(scenario, pressure),
         placement=sensor.placement, sensor_body=body, sensor_conductance=sensor.dissipation_constant,

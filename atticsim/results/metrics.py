@@ -138,7 +138,7 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "attic_air_mean_c": float(np.mean(attic_air)),
         "attic_upper_air_max_c": float(np.max(temps[net.i_upper])),
         "outdoor_air_max_c": float(np.max(f[0])),
-        "deck_max_c": float(np.max(temps[net.n_planes:2 * net.n_planes])),
+        "deck_max_c": net.deck_underside_max(temps),
         "sensor_max_c": float(np.max(temps[idx["sensor"]])),
         "ceiling_heat_gain_kwh": books["ceiling_gain"] / J_PER_KWH,
         "ceiling_heat_gain_no_fan_kwh": books_nf["ceiling_gain"] / J_PER_KWH if books_nf else None,
@@ -176,6 +176,9 @@ def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
     for name, i in idx.items():
         if name != "air":
             cols[name + "_c"] = temps[i]
+    for i, p in enumerate(net.plane_names):
+        cols[f"roof_surface_{p}_c"] = q["roof_surface"][i]
+        cols[f"deck_underside_{p}_c"] = q["deck_underside"][i]
     cols["sensor_local_air_c"] = q["sensor_local_air"]
     cols["fan_on"] = run.fan.astype(int)
     cols["outdoor_air_flow_m3_s"] = air["outdoor_flow"]
