@@ -12,8 +12,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from atticsim.forcing.sky import (sky_temperature_berdahl_martin, sky_temperature_from_ir,
-                                  sky_temperature_swinbank)
+from atticsim.forcing.sky import sky_temperature
 from atticsim.forcing.solar import plane_irradiance, solar_position
 
 
@@ -187,16 +186,9 @@ def build_forcing(frame: pd.DataFrame, meta, scenario, start=None, end=None, sou
 
     temp = part["temp_air"].to_numpy(float)
     dew = part["temp_dew"].to_numpy(float)
-    sky_ir = part["sky_ir"].to_numpy(float) if "sky_ir" in part else np.full(len(part), np.nan)
-    if np.all(np.isfinite(sky_ir)):
-        t_sky = sky_temperature_from_ir(sky_ir)
-        notes.append("sky temperature from the weather file's long-wave column")
-    elif scenario.weather.sky_model == "swinbank":
-        t_sky = sky_temperature_swinbank(temp)
-        notes.append("sky temperature: Swinbank (1963)")
-    else:
-        t_sky = sky_temperature_berdahl_martin(temp, dew)
-        notes.append("sky temperature: Berdahl & Martin (1984), clear-sky form")
+    t_sky, sky_notes = sky_temperature(part, scenario.weather.sky_model, lat, lon, alt,
+                                       source_format=getattr(meta, "source_format", None), context=frame)
+    notes += sky_notes
 
     pressure = part["pressure"].to_numpy(float) if "pressure" in part else None
     solpos = solar_position(part.index, lat, lon, alt, pressure=pressure, temperature=temp)
