@@ -330,7 +330,7 @@ def _column(frame, name):
 def _clearness_cloud_fraction(weather, context, latitude, longitude, altitude):
     """Cloud fraction on ``weather``'s rows from the clearness index of ``context`` (a day either side).
 
-    Returns (clf or None, number of reliable samples used)."""
+    Returns (clf or None, number of reliable samples used, whether the context widened the rows)."""
     import pandas as pd
 
     first, last = weather.index[0], weather.index[-1]
@@ -343,10 +343,10 @@ def _clearness_cloud_fraction(weather, context, latitude, longitude, altitude):
     clf, reliable = cloud_fraction_from_clearness(source.index, source["ghi"].to_numpy(dtype=float),
                                                   latitude, longitude, altitude)
     if clf is None:
-        return None, 0
+        return None, 0, source is not weather
     at = (weather.index - source.index[0]).total_seconds().to_numpy(dtype=float)
     grid = (source.index - source.index[0]).total_seconds().to_numpy(dtype=float)
-    return np.interp(at, grid, clf), int(reliable.sum())
+    return np.interp(at, grid, clf), int(reliable.sum()), source is not weather
 
 
 def sky_temperature(weather, sky_model, latitude, longitude, altitude, source_format=None, context=None):
@@ -411,13 +411,14 @@ def sky_temperature(weather, sky_model, latitude, longitude, altitude, source_fo
             f"sky: {sky}; clouds: {what}, mean {100.0 * cover.mean():.0f} %, "
             f"{int(np.count_nonzero(cover >= 0.8))} of {len(cover)} rows overcast (8 tenths or more), "
             f"Clark & Allen (1978) cloud factor"]
-    clf, used = _clearness_cloud_fraction(weather, context, latitude, longitude, altitude)
+    clf, used, widened = _clearness_cloud_fraction(weather, context, latitude, longitude, altitude)
     if clf is None:
         return sky_temperature_from_emissivity(temp, eps_clear), [
             f"sky: {sky}; clouds: none known (no sky cover or long-wave in the file, and the sun never "
             f"{MIN_CLEARNESS_ELEVATION_DEG:g} deg high to estimate them from): clear sky"]
     eps = cloudy_emissivity_crawford_duchon(eps_clear, clf)
     return sky_temperature_from_emissivity(temp, eps), [
-        f"sky: {sky}; clouds: estimated from the clearness index (GHI over Ineichen clear-sky GHI in "
-        f"{used} daylight samples with the sun at least {MIN_CLEARNESS_ELEVATION_DEG:g} deg high; nights and "
-        f"low sun interpolated between them), Crawford & Duchon (1999), mean cloud fraction {clf.mean():.2f}"]
+        f"sky: {sky}; clouds: estimated from the clearness index (GHI over Ineichen clear-sky GHI in the "
+        f"{used} daylight samples of the period{' and a day either side' if widened else ''} with the sun at least "
+        f"{MIN_CLEARNESS_ELEVATION_DEG:g} deg high; nights and low sun interpolated between them), "
+        f"Crawford & Duchon (1999), mean cloud fraction {clf.mean():.2f}"]
