@@ -207,9 +207,11 @@ def cloud_fraction_crawford_duchon(ghi, ghi_clear):
 
     Crawford, T. M. & Duchon, C. E. (1999), "An improved parameterization for estimating effective
     atmospheric emissivity for use in calculating daytime downwelling longwave radiation",
-    J. Appl. Meteor. 38, 474-480 (s: measured over clear-sky solar irradiance).  s is clipped to 0..1
-    (cloud enhancement gives s > 1 for minutes; it means no cloud here).  Daytime only: see
-    :func:`fill_unreliable` for the night.
+    J. Appl. Meteor. 38, 474-480 (s: measured over clear-sky solar irradiance; their clear-sky model is
+    replaced here by Ineichen's).  The forms clf = 1 - s and eps = clf + (1 - clf) eps_clear are from
+    memory and agree with an independent open-source compilation of long-wave parameterisations read for
+    this check; the paper itself was not seen.  s is clipped to 0..1 (cloud enhancement gives s > 1 for
+    minutes; it means no cloud here).  Daytime only: see :func:`fill_unreliable` for the night.
 
     Parameters
     ----------
@@ -417,8 +419,9 @@ def sky_temperature(weather, sky_model, latitude, longitude, altitude, source_fo
             f"sky: {sky}; clouds: none known (no sky cover or long-wave in the file, and the sun never "
             f"{MIN_CLEARNESS_ELEVATION_DEG:g} deg high to estimate them from): clear sky"]
     eps = cloudy_emissivity_crawford_duchon(eps_clear, clf)
+    around = " and a day either side" if widened else ""
     return sky_temperature_from_emissivity(temp, eps), [
         f"sky: {sky}; clouds: estimated from the clearness index (GHI over Ineichen clear-sky GHI in the "
-        f"{used} daylight samples of the period{' and a day either side' if widened else ''} with the sun at least "
+        f"{used} daylight samples of the period{around} with the sun at least "
         f"{MIN_CLEARNESS_ELEVATION_DEG:g} deg high; nights and low sun interpolated between them), "
         f"Crawford & Duchon (1999), mean cloud fraction {clf.mean():.2f}"]
