@@ -166,7 +166,7 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
     frame, meta = weather[0], weather[1]
     source = getattr(meta, "path", None) or scenario.weather.file
     start, end = resolve_period(frame, scenario, start, end, months, year)
-    t0, t1 = period_bounds(frame, start, end, str(source))
+    t0, t1 = period_bounds(frame, start, end, str(source), meta)
     forcing = _forcing(frame, meta, scenario, t0, t1, str(source), reuse_no_fan)
     base = forcing.times[0]
     period = Period(t0, t1, (t0 - base).total_seconds(), (t1 - base).total_seconds())
