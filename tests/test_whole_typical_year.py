@@ -94,7 +94,7 @@ def write_epw_year(path):
         if hour == 0:  # hour-ending 24 of the day before
             previous = stamp - pd.Timedelta(hours=1)
             month, day, hour = previous.month, previous.day, 24
-        doy = stamp.dayofyear
+        doy = stamp.day_of_year
         temp = round(20.0 + 8.0 * np.sin(2 * np.pi * (doy - 110) / 365) + 5.0 * np.sin(np.pi * (hour - 9) / 12), 1)
         ghi = max(0, round(800 * np.sin(np.pi * (hour - 6.5) / 13.0))) if 7 <= hour <= 19 else 0
         lines.append(
