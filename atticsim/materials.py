@@ -29,3 +29,35 @@ INSULATION = {"conductivity": 0.04, "density": 12.0, "specific_heat": 840.0}
 
 #: Softwood framing specific heat [J/(kg K)] (wood at ~12 % moisture ~1600-1900; from memory).
 WOOD_SPECIFIC_HEAT = 1880.0
+
+#: Roof coverings by material and finish: solar absorptance, thermal emittance and surface texture (the class
+#: for wind convection, atticsim.network.heat_transfer.SURFACE_TEXTURE). Typical values, each with its basis;
+#: a scenario's roof.absorptance, roof.emittance and roof.surface_texture override them. The first finish of
+#: each material is its default.
+COVERING_FINISHES: dict[str, dict[str, dict]] = {
+    "asphalt-shingle": {
+        # dark shingles reflect 0.03-0.08 of the sun (field-measured roofs, Parker, Sonne & Sherwin 2002,
+        # FSEC-CR-1220-00; from memory); asphalt emits like most non-metals, ~0.9 (ASHRAE Handbook
+        # Fundamentals, emittance table; from memory); mineral granules: the brick-like class
+        "dark": {"absorptance": 0.92, "emittance": 0.90, "surface_texture": "granular"},
+        # white shingles still reflect only ~0.25 (same study, from memory)
+        "light": {"absorptance": 0.75, "emittance": 0.90, "surface_texture": "granular"},
+    },
+    "metal": {
+        # bare galvanized steel: absorptance ~0.6, and a LOW thermal emittance, 0.05 new to ~0.25 weathered
+        # (ASHRAE Handbook Fundamentals, emittance table; from memory): it sheds little heat to the sky
+        "bare": {"absorptance": 0.60, "emittance": 0.25, "surface_texture": "glassy"},
+        # dark paint: absorptance ~0.85, paint emits ~0.85-0.9 (from memory)
+        "dark-paint": {"absorptance": 0.85, "emittance": 0.85, "surface_texture": "glassy"},
+        # white paint on metal reflects ~0.65-0.7 (Parker, Sonne & Sherwin 2002; from memory)
+        "white-paint": {"absorptance": 0.33, "emittance": 0.85, "surface_texture": "glassy"},
+    },
+    "tile": {
+        # terracotta (red clay) tile reflects ~0.34 (Parker, Sonne & Sherwin 2002; from memory)
+        "terracotta": {"absorptance": 0.66, "emittance": 0.90, "surface_texture": "textured"},
+        # white concrete tile reflects ~0.75 (same study; from memory)
+        "white": {"absorptance": 0.25, "emittance": 0.90, "surface_texture": "textured"},
+        # grey (natural) concrete tile, absorptance ~0.75 (common practice, no source)
+        "grey": {"absorptance": 0.75, "emittance": 0.90, "surface_texture": "textured"},
+    },
+}

@@ -142,6 +142,19 @@ def _forcing(frame, meta, scenario, t0, t1, source, reuse):
     return kept[1]
 
 
+def model_notes(scenario) -> list[str]:
+    """What the model took from presets and geometry rather than from the scenario's own keys."""
+    from atticsim.scenario.geometry import attic_geometry
+
+    g = attic_geometry(scenario)
+    how = f"inferred from its {len(scenario.roof.planes)} plane(s)" if g.inferred else "as given"
+    notes = [f"attic: {g.shape} roof ({how}), ridge {g.height:.2f} m above the floor"]
+    if scenario.attic.air_layers == 2:
+        notes.append(f"air layers: the upper holds {g.upper_volume_share:.0%} of the air and faces "
+                     f"{g.upper_deck_share:.0%} of the deck (interface {g.interface_height:.2f} m up)")
+    return notes + scenario.roof.optics()[1]
+
+
 def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, months=None,
             year=None, reuse_no_fan=False) -> RawRuns:
     """Integrate the scenario with the fan under thermostat control and, optionally, with no fan.
@@ -209,7 +222,7 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         without_fan, y_nofan = one(False)
     else:
         without_fan, y_nofan = None, None
-    notes = list(getattr(meta, "notes", [])) + list(forcing.notes)
+    notes = list(getattr(meta, "notes", [])) + list(forcing.notes) + model_notes(scenario)
     return RawRuns(network, forcing, period, output_times, with_fan, without_fan, y_fan, y_nofan,
                    controller=controller, notes=notes)
 

@@ -71,7 +71,8 @@ def test_run_writes_results_for_one_day(tmp_path):
     (('latitude = 29.3', 'latitude = 129.3'), "site.latitude", "less than or equal to 90"),
     # renamed keys name their successors
     (('action = "close-on-rise"', 'mode = "heat"'), "thermostat.mode", "use thermostat.action"),
-    (('surface_texture = "granular"', 'roughness = "rough"'), "roof.roughness", "use roof.surface_texture"),
+    (('underside_emittance = 0.90', 'underside_emittance = 0.90\nroughness = "rough"'), "roof.roughness",
+     "use roof.surface_texture"),
 ])
 def test_bad_scenarios_give_one_line_errors(tmp_path, change, key, reason):
     p = write_scenario(tmp_path, *change)

@@ -89,5 +89,5 @@ def test_roof_surface_settles_near_handbook_sol_air():
         return float((q["solar"] + q["sky"] + q["ground"] + q["exterior_convection"])[0])
 
     t_e = brentq(balance, t_o, t_o + 150.0)
-    h_equiv = sc.roof.absorptance * irr / (t_e - t_o)
+    h_equiv = sc.roof.optics()[0]["absorptance"] * irr / (t_e - t_o)
     assert h_equiv == pytest.approx(17.0, rel=0.25)

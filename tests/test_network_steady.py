@@ -61,7 +61,8 @@ def hand_worked(net, sc, poa):
     a_roof, a_floor = float(net.area.sum()), sc.attic.floor_area
     area, perimeter, cos_t = float(net.area[0, 0]), float(net.perimeter[0, 0]), float(net.cos_tilt[0, 0])
     g = float(net.g_deck_floor.sum())                                      # gray exchange factor [m2]
-    eps = roof.emittance
+    optics, _ = roof.optics()
+    eps, alpha = optics["emittance"], optics["absorptance"]
     h_f = forced_convection_sparrow(WIND, perimeter, area, net.roughness)  # Sparrow et al. 1979
     t_so, t_si, t_air, t_ct = T_OUT + 10, T_OUT + 5, T_OUT, T_OUT - 2
     for _ in range(60):
@@ -77,7 +78,7 @@ def hand_worked(net, sc, poa):
         # from the outer surface to the rooms: layers, inside, ceiling in series [K/W]
         r_in = r_layers / a_roof + 1.0 / u_inside + r_ceiling / a_floor
         # outer surface: absorbed sun + film from outdoors = flow inwards (sol-air form with the inward path)
-        t_so = (roof.absorptance * poa * a_roof + h_o * a_roof * T_OUT + T_ROOM / r_in) / (
+        t_so = (alpha * poa * a_roof + h_o * a_roof * T_OUT + T_ROOM / r_in) / (
             h_o * a_roof + 1.0 / r_in)
         q = (t_so - T_ROOM) / r_in                                                     # W, outer surface -> rooms
         t_si = t_so - q * r_layers / a_roof

@@ -47,6 +47,30 @@ def test_inner_surface_newton_against_brentq(r_half):
                 rng.uniform(0.3, 0.8), rng.uniform(5, 60))
         exact = brentq(inner_balance, -80, 200, args=args, xtol=1e-13)
         t_node, r, cos_t, f_up, t_up, t_lo, g, t_ct = args
-        got = kernel._inner_surface(t_node, r, cos_t, f_up, t_up, t_lo, g, (t_ct + KELVIN) ** 4)
+        got = kernel._inner_surface(t_node, r, cos_t, f_up, t_up, t_lo, g, (t_ct + KELVIN) ** 4, 0.0)
         worst = max(worst, abs(got - exact))
     assert worst < 1e-4
+
+
+def test_fan_driven_forced_convection_inside_is_the_flat_plate_correlation():
+    # The fan's flow over the attic's mean cross-section: V = Q / A_x along the attic's length L; average
+    # flat-plate Nusselt number, laminar Nu = 0.664 Re^(1/2) Pr^(1/3) (Incropera & DeWitt eq. 7.30), and for
+    # Re above 5e5 the mixed boundary layer Nu = (0.037 Re^(4/5) - 871) Pr^(1/3) (eq. 7.38). Air properties
+    # from atticsim.sensor.air (US Standard Atmosphere 1976 viscosity and conductivity, tested there).
+    from atticsim.sensor.air import properties
+
+    prm = np.zeros(kernel.N_PRM)
+    prm[kernel._CROSS_SECTION], prm[kernel._FLOW_LENGTH] = 12.5, 14.0
+    t_air = 40.0
+    p = properties(t_air)
+    for flow in (0.566, 20.0):  # 1200 cfm (laminar, about 0.05 m/s), and a flow fast enough to go turbulent
+        re = flow / 12.5 * 14.0 / p.kinematic_viscosity
+        nu = 0.664 * re**0.5 * p.prandtl ** (1 / 3) if re < 5e5 else (0.037 * re**0.8 - 871) * p.prandtl ** (1 / 3)
+        assert kernel._inside_forced(flow, t_air, 101325.0, prm) == pytest.approx(nu * p.conductivity / 14.0,
+                                                                                   rel=1e-9)
+    # 1200 cfm over the demo's 12.5 m2 section barely sweeps the surfaces: about 0.2 W/m2K
+    assert kernel._inside_forced(0.566, t_air, 101325.0, prm) == pytest.approx(0.22, abs=0.02)
+    assert kernel._inside_forced(0.0, t_air, 101325.0, prm) == 0.0
+    # mixed with natural convection: (h_n^3 + h_f^3)^(1/3) (Churchill & Usagi 1972)
+    assert kernel._mixed(3.0, 4.0) == pytest.approx((27.0 + 64.0) ** (1 / 3))
+    assert kernel._mixed(3.0, 0.0) == 3.0

@@ -102,7 +102,10 @@ class AirflowModel:
 
     def __init__(self, scenario, pressure: float = P_STANDARD):
         self.pressure = pressure
-        self.layer_height = scenario.attic.layer_height
+        from atticsim.scenario.geometry import attic_geometry
+
+        geometry = attic_geometry(scenario)
+        self.layer_height = geometry.interface_height if scenario.attic.air_layers == 2 else 0.0
         self.enabled = scenario.fan.enabled
         self.room_temperature = scenario.ceiling.room_temperature
         vents = scenario.vents

@@ -93,11 +93,12 @@ SURFACE_STEPS = 3
 # --- layout of the packed parameters ----------------------------------------------------------------------
 
 #: Scalar parameters, rows of ``Packed.prm``.
-(_ABSORPTANCE, _EMITTANCE, _ROUGHNESS, _FLOOR_AREA, _C_AIR, _W_UP, _F_UP, _LAYER_MIXING, _FAN_MIXING,
+(_ABSORPTANCE, _EMITTANCE, _ROUGHNESS, _FLOOR_AREA, _C_AIR, _W_UP, _F_UP, _F_UP_FRAMING, _LAYER_MIXING, _FAN_MIXING,
  _INTERFACE_AREA, _FRAMING_AREA, _C_FRAMING, _C_CEILING_TOP, _C_GYPSUM, _R_INSULATION, _R_ROOM,
  _ROOM_RH, _SENSOR_G, _SENSOR_C, _CONTACT_G, _FAN_AREA, _INTAKE_AREA, _ENCLOSURE_G, _C_ENCLOSURE,
- _TRIAC_LOSS, _BODY_SCALE, _BODY_AREA, _BODY_D, _BODY_EMITTANCE, _HEAT_T0, _HEAT_DT) = range(31)
-N_PRM = 31
+ _TRIAC_LOSS, _BODY_SCALE, _BODY_AREA, _BODY_D, _BODY_EMITTANCE, _HEAT_T0, _HEAT_DT, _CROSS_SECTION,
+ _FLOW_LENGTH) = range(34)
+N_PRM = 34
 #: Per-plane parameters, columns of ``Packed.planes`` (one row per plane).
 (_AREA, _COS_TILT, _PERIMETER, _F_SKY, _F_GROUND, _C_COVER, _C_DECK, _U_COVER_DECK, _G_DECK_FLOOR,
  _DECK_SHARE, _R_OUTER, _R_INNER) = range(12)
@@ -177,7 +178,8 @@ def pack(network) -> Packed:
     prm = np.zeros(N_PRM)
     prm[_ABSORPTANCE], prm[_EMITTANCE], prm[_ROUGHNESS] = network.absorptance, network.emittance, network.roughness
     prm[_FLOOR_AREA], prm[_C_AIR] = network.floor_area, network.c_air
-    prm[_W_UP], prm[_F_UP] = network.w_up, network.f_up
+    prm[_W_UP], prm[_F_UP], prm[_F_UP_FRAMING] = network.w_up, network.f_up, network.f_up_framing
+    prm[_CROSS_SECTION], prm[_FLOW_LENGTH] = network.cross_section, network.flow_length
     prm[_LAYER_MIXING], prm[_FAN_MIXING] = network.layer_mixing, network.fan_mixing_ratio
     prm[_INTERFACE_AREA], prm[_FRAMING_AREA] = network.interface_area, network.framing_area
     prm[_C_FRAMING], prm[_C_CEILING_TOP], prm[_C_GYPSUM] = network.c_framing, network.c_ceiling_top, network.c_gypsum
@@ -364,11 +366,37 @@ def _local(code, t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fa
 
 
 @numba.njit(cache=True, **_JIT)
-def _walton_slope(delta_t, h):
-    """d(h dT)/d(dT) for Walton's h = c (dT^2 + eps^2)^(1/6) (c constant on each side of dT = 0):
-    h (1 + dT^2 / (3 (dT^2 + eps^2))) [W/(m2 K)]."""
+def _mixed(h_natural, h_forced):
+    """Mixed convection h = (h_n^3 + h_f^3)^(1/3) [W/(m2 K)] (Churchill & Usagi 1972, AIChE J. 18, 1121, with
+    the exponent 3 Churchill (1977) gives for mixed convection)."""
+    if h_forced <= 0.0:
+        return h_natural
+    return (h_natural ** 3 + h_forced ** 3) ** (1.0 / 3.0)
+
+
+@numba.njit(cache=True, **_JIT)
+def _mixed_slope(delta_t, h_natural, h):
+    """d(h dT)/d(dT) for h = (h_n^3 + h_f^3)^(1/3), h_n = c (dT^2 + eps^2)^(1/6) (Walton; c constant on each
+    side of dT = 0) and h_f independent of dT: h + h_n^3 dT^2 / (3 h^2 (dT^2 + eps^2)) [W/(m2 K)]."""
     d2 = delta_t * delta_t
-    return h * (1.0 + d2 / (3.0 * (d2 + _EPS2)))
+    return h + h_natural ** 3 * d2 / (3.0 * h * h * (d2 + _EPS2))
+
+
+@numba.njit(cache=True, **_JIT)
+def _inside_forced(fan_flow, t_air, pressure, prm):
+    """Forced convection on the attic's inside surfaces while the fan runs [W/(m2 K)]: the fan's flow over the
+    attic's mean cross-section sets the speed V = Q / A_x along the attic's length L (a statement of the
+    model: the whole section sweeps the surfaces); average flat-plate Nusselt number, laminar
+    0.664 Re^(1/2) Pr^(1/3) below Re = 5e5, mixed boundary layer (0.037 Re^(4/5) - 871) Pr^(1/3) above
+    (Incropera & DeWitt, eqs. 7.30 and 7.38)."""
+    if fan_flow <= 0.0:
+        return 0.0
+    length = prm[_FLOW_LENGTH]
+    p = _properties_k(t_air + KELVIN, pressure)
+    re = fan_flow / prm[_CROSS_SECTION] * length / p.kinematic_viscosity
+    pr3 = p.prandtl ** (1.0 / 3.0)
+    nu = 0.664 * math.sqrt(re) * pr3 if re < 5e5 else (0.037 * re ** 0.8 - 871.0) * pr3
+    return nu * p.conductivity / length
 
 
 @numba.njit(cache=True, **_JIT)
@@ -386,36 +414,36 @@ def _outer_surface(t_node, r_half, absorbed, t_out, k_sky4, k_out4, f_sky, f_gro
         h_nat = _walton(d_t, cos_tilt, True)
         f = (absorbed + emittance * SIGMA * (f_sky * (k_sky4 - k3 * k) + f_ground * (k_out4 - k3 * k))
              - (h_forced + h_nat) * d_t + (t_node - t) / r_half)
-        slope = (-4.0 * emittance * SIGMA * (f_sky + f_ground) * k3 - h_forced - _walton_slope(d_t, h_nat)
+        slope = (-4.0 * emittance * SIGMA * (f_sky + f_ground) * k3 - h_forced - _mixed_slope(d_t, h_nat, h_nat)
                  - 1.0 / r_half)
         t -= f / slope
     return t
 
 
 @numba.njit(cache=True, **_JIT)
-def _inner_surface(t_node, r_half, cos_tilt, f_up, t_up, t_lo, g_floor, k_ct4):
+def _inner_surface(t_node, r_half, cos_tilt, f_up, t_up, t_lo, g_floor, k_ct4, h_fan):
     """Temperature [degC] of a deck's underside, a massless surface between the sheathing's centre (t_node,
-    half its resistance r_half [m2K/W] away) and the attic: conduction from the centre = natural convection to
-    the upper (share f_up of the area) and lower air + long-wave to the attic floor (g_floor: the gray
-    exchange factor per unit deck area), solved by Newton's method from t_node (:data:`SURFACE_STEPS`
-    steps)."""
+    half its resistance r_half [m2K/W] away) and the attic: conduction from the centre = convection to the
+    upper (share f_up of the area) and lower air (Walton's natural convection mixed with the fan's forced
+    convection h_fan) + long-wave to the attic floor (g_floor: the gray exchange factor per unit deck area),
+    solved by Newton's method from t_node (:data:`SURFACE_STEPS` steps)."""
     t = t_node
     for _ in range(SURFACE_STEPS):
         k = t + KELVIN
         k3 = k * k * k
         d_up, d_lo = t - t_up, t - t_lo
-        h_up = _walton(d_up, cos_tilt, False)
-        h_lo = _walton(d_lo, cos_tilt, False)
+        n_up, n_lo = _walton(d_up, cos_tilt, False), _walton(d_lo, cos_tilt, False)
+        h_up, h_lo = _mixed(n_up, h_fan), _mixed(n_lo, h_fan)
         f = ((t_node - t) / r_half - f_up * h_up * d_up - (1.0 - f_up) * h_lo * d_lo
              - SIGMA * g_floor * (k3 * k - k_ct4))
-        slope = (-1.0 / r_half - f_up * _walton_slope(d_up, h_up) - (1.0 - f_up) * _walton_slope(d_lo, h_lo)
+        slope = (-1.0 / r_half - f_up * _mixed_slope(d_up, n_up, h_up) - (1.0 - f_up) * _mixed_slope(d_lo, n_lo, h_lo)
                  - 4.0 * SIGMA * g_floor * k3)
         t -= f / slope
     return t
 
 
 @numba.njit(cache=True, **_JIT)
-def _plane(p, x, u, planes, prm, n_p, t_up, t_lo, k_ct4):
+def _plane(p, x, u, planes, prm, n_p, t_up, t_lo, k_ct4, h_fan):
     """Heat flows of roof plane p [W] and its surface temperatures [degC]: (solar, sky, ground, exterior
     convection, cover -> deck, deck -> upper air, deck -> lower air, deck -> attic floor, outer surface,
     deck underside).
@@ -441,7 +469,7 @@ def _plane(p, x, u, planes, prm, n_p, t_up, t_lo, k_ct4):
     h_forced = _sparrow(u[_U_WIND], planes[p, _PERIMETER], area, prm[_ROUGHNESS], _WINDWARD)
     t_so = _outer_surface(t_cov, planes[p, _R_OUTER], absorbed, t_out, k_sky4, k_out4, f_sky, f_ground,
                           emittance, h_forced, cos_tilt)
-    t_si = _inner_surface(t_deck, planes[p, _R_INNER], cos_tilt, f_up, t_up, t_lo, g_floor, k_ct4)
+    t_si = _inner_surface(t_deck, planes[p, _R_INNER], cos_tilt, f_up, t_up, t_lo, g_floor, k_ct4, h_fan)
     k_so = t_so + KELVIN
     k_so4 = k_so * k_so * k_so * k_so
     q_solar = absorbed * area
@@ -452,9 +480,10 @@ def _plane(p, x, u, planes, prm, n_p, t_up, t_lo, k_ct4):
     q_ext = (h_forced + _walton(t_so - t_out, cos_tilt, True)) * area * (t_out - t_so)
     # conduction between the layers' centres, through half of each (Incropera & DeWitt, plane wall, chapter 3)
     q_cond = planes[p, _U_COVER_DECK] * area * (t_cov - t_deck)
-    # deck underside -> each air layer by Walton natural convection, area shared by f_up
-    q_up = _walton(t_si - t_up, cos_tilt, False) * f_up * area * (t_si - t_up)
-    q_lo = _walton(t_si - t_lo, cos_tilt, False) * (1 - f_up) * area * (t_si - t_lo)
+    # deck underside -> each air layer by Walton's natural convection mixed with the fan's forced convection,
+    # the area shared by the layers' share of the deck f_up
+    q_up = _mixed(_walton(t_si - t_up, cos_tilt, False), h_fan) * f_up * area * (t_si - t_up)
+    q_lo = _mixed(_walton(t_si - t_lo, cos_tilt, False), h_fan) * (1 - f_up) * area * (t_si - t_lo)
     # deck underside <-> attic floor, gray two-surface exchange sigma G (T1^4 - T2^4) (Incropera & DeWitt,
     # radiation exchange chapter)
     k_si = t_si + KELVIN
@@ -550,16 +579,17 @@ def _sensor(x, u, fan, air, prm, ints, heat, t_up, t_lo, t_deck_mean, t_ct, t_en
 
 
 @numba.njit(cache=True, **_JIT)
-def _interior(x, u, fan, prm, ints, t_up, t_lo):
+def _interior(x, u, fan, prm, ints, t_up, t_lo, h_fan):
     """Framing, attic floor, ceiling and control box flows [W]: (framing -> upper air, framing -> lower air,
     attic floor -> lower air, insulation top -> gypsum, ceiling gain to the rooms, triac heat, control box
     -> lower air, control box air temperature [degC])."""
     t_fr, t_ct, t_gyp = x[ints[_I_FRAMING]], x[ints[_I_CEILING_TOP]], x[ints[_I_GYPSUM]]
-    f_up, a_fr, floor_area = prm[_F_UP], prm[_FRAMING_AREA], prm[_FLOOR_AREA]
-    # framing and attic floor to the air, Walton natural convection (vertical framing, floor facing up)
-    q_fr_up = _walton(t_fr - t_up, 0.0, True) * f_up * a_fr * (t_fr - t_up)
-    q_fr_lo = _walton(t_fr - t_lo, 0.0, True) * (1 - f_up) * a_fr * (t_fr - t_lo)
-    q_ceiling_air = _walton(t_ct - t_lo, 1.0, True) * floor_area * (t_ct - t_lo)
+    f_up, a_fr, floor_area = prm[_F_UP_FRAMING], prm[_FRAMING_AREA], prm[_FLOOR_AREA]
+    # framing (vertical) and attic floor (facing up) to the air: Walton's natural convection mixed with the
+    # fan's forced convection
+    q_fr_up = _mixed(_walton(t_fr - t_up, 0.0, True), h_fan) * f_up * a_fr * (t_fr - t_up)
+    q_fr_lo = _mixed(_walton(t_fr - t_lo, 0.0, True), h_fan) * (1 - f_up) * a_fr * (t_fr - t_lo)
+    q_ceiling_air = _mixed(_walton(t_ct - t_lo, 1.0, True), h_fan) * floor_area * (t_ct - t_lo)
     # ceiling: the insulation top (a surface node) to the gypsum's centre through the insulation and half the
     # gypsum, the gypsum's centre to the rooms through its other half and the room film (plane-wall conduction,
     # Incropera & DeWitt chapter 3)
@@ -585,10 +615,11 @@ def _network(x, u, fan, air, prm, planes, ints, heat, plane_out, stride, surface
     t_ct = x[ints[_I_CEILING_TOP]]
     k_ct = t_ct + KELVIN
     k_ct4 = k_ct * k_ct * k_ct * k_ct
+    h_fan = _inside_forced(fan * air[_FAN_FLOW], t_up, u[_U_PRESSURE], prm)
     solar = sky = ground = ext = cond = deck_up = deck_lo = deck_floor = t_deck_mean = 0.0
     for p in range(n_p):
         q_sol, q_sky, q_gr, q_ext, q_cond, q_up, q_lo, q_fl, t_so, t_si = _plane(p, x, u, planes, prm, n_p, t_up,
-                                                                                 t_lo, k_ct4)
+                                                                                 t_lo, k_ct4, h_fan)
         plane_out[p] = q_sol + q_sky + q_gr + q_ext - q_cond
         plane_out[stride + p] = q_cond - q_up - q_lo - q_fl
         if surfaces:
@@ -603,7 +634,7 @@ def _network(x, u, fan, air, prm, planes, ints, heat, plane_out, stride, surface
         deck_lo += q_lo
         deck_floor += q_fl
         t_deck_mean += planes[p, _DECK_SHARE] * t_si
-    fr_up, fr_lo, ceiling_air, insulation, room, triac, enc_air, t_enc = _interior(x, u, fan, prm, ints, t_up, t_lo)
+    fr_up, fr_lo, ceiling_air, insulation, room, triac, enc_air, t_enc = _interior(x, u, fan, prm, ints, t_up, t_lo, h_fan)
     vent_lo, vent_up, mix = _air_paths(t_lo, t_up, u, fan, air, prm, ints[_LAYERS])
     house_s, house_l = _house_air(t_lo, t_up, u, air, prm)
     q_s, p_self, t_air, speed = _sensor(x, u, fan, air, prm, ints, heat, t_up, t_lo, t_deck_mean, t_ct, t_enc)
@@ -682,19 +713,30 @@ def flows_columns(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
 
 
 @numba.njit(cache=True, **_JIT)
+def _undersides_mean(x, u, fan, air, prm, planes, ints, j):
+    """(area-weighted mean, highest) deck underside temperature [degC] in column j."""
+    n_p = ints[_N_PLANES]
+    t_lo, t_up = x[ints[_I_LOWER], j], x[ints[_I_UPPER], j]
+    k_ct = x[ints[_I_CEILING_TOP], j] + KELVIN
+    k_ct4 = k_ct * k_ct * k_ct * k_ct
+    h_fan = _inside_forced(fan[j] * air[_FAN_FLOW, j], t_up, u[_U_PRESSURE, j], prm)
+    mean = 0.0
+    top = -math.inf
+    for p in range(n_p):
+        t_si = _inner_surface(x[n_p + p, j], planes[p, _R_INNER], planes[p, _COS_TILT], prm[_F_UP], t_up, t_lo,
+                              planes[p, _G_DECK_FLOOR] / planes[p, _AREA], k_ct4, h_fan)
+        mean += planes[p, _DECK_SHARE] * t_si
+        top = max(top, t_si)
+    return mean, top
+
+
+@numba.njit(cache=True, **_JIT)
 def local_air_columns(x, u, fan, air, prm, planes, ints, out):
     """The sensor's local air temperature [degC] for each column j of x (n_nodes, m), u, fan and air (as
     :func:`flows_columns`), into out (m,): what :func:`flows` gives as ``sensor_local_air``, alone."""
-    n_p = ints[_N_PLANES]
     for j in range(x.shape[1]):
         t_lo, t_up = x[ints[_I_LOWER], j], x[ints[_I_UPPER], j]
-        k_ct = x[ints[_I_CEILING_TOP], j] + KELVIN
-        k_ct4 = k_ct * k_ct * k_ct * k_ct
-        t_deck_mean = 0.0
-        for p in range(n_p):
-            t_si = _inner_surface(x[n_p + p, j], planes[p, _R_INNER], planes[p, _COS_TILT], prm[_F_UP], t_up, t_lo,
-                                  planes[p, _G_DECK_FLOOR] / planes[p, _AREA], k_ct4)
-            t_deck_mean += planes[p, _DECK_SHARE] * t_si
+        t_deck_mean = _undersides_mean(x, u, fan, air, prm, planes, ints, j)[0]
         i_enc = ints[_I_ENCLOSURE]
         t_enc = x[i_enc, j] if i_enc >= 0 else t_lo
         out[j] = _local_at(x[:, j], u[:, j], fan[j], air[:, j], prm, ints, t_up, t_lo, t_deck_mean,
@@ -702,8 +744,9 @@ def local_air_columns(x, u, fan, air, prm, planes, ints, out):
 
 
 @numba.njit(cache=True, **_JIT)
-def deck_underside_max(x, prm, planes, ints, order):
-    """The highest deck underside temperature [degC] over the columns of x (n_nodes, m), any plane.
+def deck_underside_max(x, u, fan, air, prm, planes, ints, order):
+    """The highest deck underside temperature [degC] over the columns of x (n_nodes, m), any plane (u, fan,
+    air as :func:`flows_columns`).
 
     The underside lies between its sheathing's centre and the attic's air layers and floor (its balance is a
     weighted mean of them with positive weights), so it never exceeds the highest of those; ``order`` lists
@@ -712,18 +755,12 @@ def deck_underside_max(x, prm, planes, ints, order):
     n_p = ints[_N_PLANES]
     best = -math.inf
     for j in order:
-        t_lo, t_up, t_ct = x[ints[_I_LOWER], j], x[ints[_I_UPPER], j], x[ints[_I_CEILING_TOP], j]
-        bound = max(t_lo, t_up, t_ct)
+        bound = max(x[ints[_I_LOWER], j], x[ints[_I_UPPER], j], x[ints[_I_CEILING_TOP], j])
         for p in range(n_p):
             bound = max(bound, x[n_p + p, j])
         if bound < best:
             break
-        k_ct = t_ct + KELVIN
-        k_ct4 = k_ct * k_ct * k_ct * k_ct
-        for p in range(n_p):
-            t_si = _inner_surface(x[n_p + p, j], planes[p, _R_INNER], planes[p, _COS_TILT], prm[_F_UP], t_up, t_lo,
-                                  planes[p, _G_DECK_FLOOR] / planes[p, _AREA], k_ct4)
-            best = max(best, t_si)
+        best = max(best, _undersides_mean(x, u, fan, air, prm, planes, ints, j)[1])
     return best
 
 

@@ -34,6 +34,7 @@ from atticsim.constants import CP_AIR, P_STANDARD
 from atticsim.materials import INSULATION, WOOD_SPECIFIC_HEAT
 from atticsim.network import kernel
 from atticsim.network.heat_transfer import SURFACE_TEXTURE, gray_two_surface_factor, view_factors_tilted
+from atticsim.scenario.geometry import attic_geometry
 from atticsim.network.kernel import ATTIC_BOOKS, BOOKS, FLOWS, FORCING_BASE, PLANE_FLOWS  # noqa: F401
 
 #: Fields of AtticNetwork whose change leaves the packed parameters valid.
@@ -61,11 +62,15 @@ class AtticNetwork:
     g_deck_floor: np.ndarray     # m2 (radiative exchange factor)
     floor_area: float
     c_air: float                 # J/K, all attic air
-    upper_fraction: float        # share of the air (and of the deck and framing area) in the upper layer
+    upper_fraction: float        # share of the air in the upper layer
+    upper_deck_share: float      # share of each plane's deck facing the upper layer
+    upper_framing_share: float   # share of the framing in the upper layer
     layers: int                  # 1 or 2
     layer_mixing: float          # m3/s, exchange between layers in stable stratification
     fan_mixing_ratio: float      # extra exchange while the fan runs, x fan flow
     interface_area: float        # m2, horizontal area between the layers
+    cross_section: float         # m2, the attic's mean vertical section across its length (the fan's flow)
+    flow_length: float           # m, the attic's length, along which the fan's flow sweeps the surfaces
     framing_area: float
     c_framing: float
     c_ceiling_top: float
@@ -94,8 +99,10 @@ class AtticNetwork:
         one = self.layers == 1
         self.i_lower = self.index["air" if one else "air_lower"]
         self.i_upper = self.index["air" if one else "air_upper"]
-        self.f_up = 0.5 if one else self.upper_fraction  # deck/framing area share; irrelevant when one node
-        self.w_up = 0.0 if one else self.upper_fraction  # air volume share
+        # the upper layer's shares of the deck, the framing and the air (irrelevant with one node)
+        self.f_up = 0.5 if one else self.upper_deck_share
+        self.f_up_framing = 0.5 if one else self.upper_framing_share
+        self.w_up = 0.0 if one else self.upper_fraction
         self.i_enclosure = self.index.get("enclosure")
 
     def __setattr__(self, name, value):
@@ -205,15 +212,15 @@ class AtticNetwork:
         kernel.local_air_columns(x, u, fan, a, pk.prm, pk.planes, pk.ints, out)
         return out
 
-    def deck_underside_max(self, temps) -> float:
-        """The highest deck underside temperature [degC] over columns of node temperatures (n_nodes, m), any
-        plane (exact: :func:`atticsim.network.kernel.deck_underside_max`)."""
-        x = np.ascontiguousarray(temps, dtype=float)
+    def deck_underside_max(self, temps, forcing, fan_on, air=None) -> float:
+        """The highest deck underside temperature [degC] over columns of states, any plane (arguments as
+        :meth:`flows`; exact: :func:`atticsim.network.kernel.deck_underside_max`)."""
+        x, u, fan, a = self._columns(temps, forcing, fan_on, air)
         P = self.n_planes
         rows = [x[self.i_lower], x[self.i_upper], x[self.index["ceiling_top"]], *x[P:2 * P]]
         order = np.argsort(-np.max(rows, axis=0), kind="stable")
         pk = self.packed
-        return float(kernel.deck_underside_max(x, pk.prm, pk.planes, pk.ints, order))
+        return float(kernel.deck_underside_max(x, u, fan, a, pk.prm, pk.planes, pk.ints, order))
 
     def derivatives(self, temps, forcing, fan_on, air=None) -> np.ndarray:
         """Time derivatives of node temperatures [K/s] and of the books [W], shape (n_nodes + books, m)
@@ -287,25 +294,29 @@ def build_network(scenario, pressure: float = P_STANDARD) -> AtticNetwork:
         from atticsim.sensor.body import preset
 
         body = preset(sensor.body)
+    geometry = attic_geometry(scenario)
+    optics, _ = roof.optics()
     openings = scenario.vents.openings
     if openings:
-        intake_area = sum(o.net_free_area for o in openings if o.height < attic.layer_height or o.kind == "soffit")
+        layer_height = geometry.interface_height if attic.air_layers == 2 else 0.0
+        intake_area = sum(o.net_free_area for o in openings if o.height < layer_height or o.kind == "soffit")
     else:
         # Without described openings: the code minimum, half of 1/150 of the floor at the intakes
         # (IRC 2018 R806.2 with the usual half-high, half-low split).
         intake_area = attic.floor_area / 300.0
     return AtticNetwork(
         plane_names=[p.name for p in planes], area=area, cos_tilt=col(np.cos(np.radians(tilt))),
-        perimeter=perimeter, roughness=SURFACE_TEXTURE[roof.surface_texture], absorptance=roof.absorptance,
-        emittance=roof.emittance, f_sky=col(f_sky), f_ground=col(f_ground),
+        perimeter=perimeter, roughness=SURFACE_TEXTURE[optics["surface_texture"]],
+        absorptance=optics["absorptance"], emittance=optics["emittance"], f_sky=col(f_sky), f_ground=col(f_ground),
         c_cover=cap_cov * area, c_deck=cap_sh * area,
         u_cover_deck=np.full_like(area, 1.0 / (0.5 * r_cov + 0.5 * r_sh)),
         r_outer=np.full_like(area, 0.5 * r_cov), r_inner=np.full_like(area, 0.5 * r_sh),
         g_deck_floor=g, floor_area=attic.floor_area, c_air=c_air,
-        upper_fraction=attic.upper_volume_fraction, layers=attic.air_layers,
+        upper_fraction=geometry.upper_volume_share, upper_deck_share=geometry.upper_deck_share,
+        upper_framing_share=geometry.upper_framing_share, layers=attic.air_layers,
         layer_mixing=attic.layer_mixing_ach * attic.volume / 3600.0, fan_mixing_ratio=attic.fan_mixing_ratio,
-        # A gable attic's horizontal section at mid-height is half its floor (similar triangles).
-        interface_area=0.5 * attic.floor_area,
+        interface_area=geometry.interface_area, cross_section=geometry.cross_section,
+        flow_length=geometry.length,
         framing_area=attic.framing_area, c_framing=attic.framing_mass * WOOD_SPECIFIC_HEAT,
         c_ceiling_top=0.5 * cap_ins * attic.floor_area,
         c_gypsum=(cap_gyp + 0.5 * cap_ins) * attic.floor_area,

@@ -138,7 +138,7 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "attic_air_mean_c": float(np.mean(attic_air)),
         "attic_upper_air_max_c": float(np.max(temps[net.i_upper])),
         "outdoor_air_max_c": float(np.max(f[0])),
-        "deck_max_c": net.deck_underside_max(temps),
+        "deck_max_c": net.deck_underside_max(temps, f, run.fan, SimpleNamespace(**air)),
         "sensor_max_c": float(np.max(temps[idx["sensor"]])),
         "ceiling_heat_gain_kwh": books["ceiling_gain"] / J_PER_KWH,
         "ceiling_heat_gain_no_fan_kwh": books_nf["ceiling_gain"] / J_PER_KWH if books_nf else None,

@@ -13,7 +13,7 @@ import numpy as np
 
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, model_validator
 
-from atticsim.materials import MATERIALS
+from atticsim.materials import COVERING_FINISHES, MATERIALS
 from atticsim.scenario.thermostat import CircuitThermostat, SetpointThermostat
 from atticsim.units import to_si
 
@@ -87,9 +87,11 @@ class Weather(_Model):
 
 
 class Layer(_Model):
-    """One roof layer: a named material with optional overrides."""
+    """One roof layer: a named material with optional overrides (a covering also takes a finish)."""
 
     material: str
+    finish: str | None = Field(None, description="roof covering's finish or colour: its optics preset "
+                                                 "(see materials.COVERING_FINISHES); default the material's first")
     thickness: Length | None = Field(None, gt=0.0)
     density: Density | None = Field(None, gt=0.0)
     conductivity: Conductivity | None = Field(None, gt=0.0)
@@ -99,6 +101,10 @@ class Layer(_Model):
     def _known_material(self):
         if self.material not in MATERIALS:
             raise ValueError(f"unknown material {self.material!r}; known: {', '.join(sorted(MATERIALS))}")
+        finishes = COVERING_FINISHES.get(self.material, {})
+        if self.finish is not None and self.finish not in finishes:
+            known = ", ".join(finishes) if finishes else "none (it is not a roof covering)"
+            raise ValueError(f"unknown finish {self.finish!r} for {self.material}; known: {known}")
         return self
 
     def prop(self, name: str) -> float:
@@ -123,14 +129,42 @@ class Roof(_Model):
     planes: list[Plane] = Field(min_length=1)
     covering: Layer = Layer(material="asphalt-shingle")
     sheathing: Layer = Layer(material="osb")
-    absorptance: Fraction = Field(0.92, gt=0.0, le=1.0, description="solar absorptance of the covering")
-    emittance: Fraction = Field(0.90, gt=0.0, le=1.0, description="thermal emittance of the covering")
+    absorptance: Fraction | None = Field(
+        None, gt=0.0, le=1.0, description="solar absorptance of the covering (default: its finish's preset)")
+    emittance: Fraction | None = Field(
+        None, gt=0.0, le=1.0, description="thermal emittance of the covering (default: its finish's preset)")
     underside_emittance: Fraction = Field(0.90, gt=0.0, le=1.0,
                                           description="thermal emittance of the deck underside")
-    surface_texture: Literal["coarse", "granular", "textured", "planed", "fine", "glassy"] = Field(
-        "granular", description="texture of the covering for wind convection: coarse (stucco), granular "
-                                "(brick, granulated shingles), textured (concrete, tile), planed (wood), fine "
-                                "(smooth plaster), glassy (glass, smooth metal, paint)")
+    shape: Literal["gable", "hip"] | None = Field(
+        None, description="gable (a triangular section: one or two sloped planes) or hip (slopes on all sides); "
+                          "default inferred from the planes: one or two make a gable, more a hip")
+    surface_texture: Literal["coarse", "granular", "textured", "planed", "fine", "glassy"] | None = Field(
+        None, description="texture of the covering for wind convection: coarse (stucco), granular (brick, "
+                          "granulated shingles), textured (concrete, tile), planed (wood), fine (smooth plaster), "
+                          "glassy (glass, smooth metal, paint); default: the finish's preset")
+
+    @model_validator(mode="after")
+    def _has_optics(self):
+        self.optics()  # every optical property given, or a preset for it
+        return self
+
+    def optics(self) -> tuple[dict, list[str]]:
+        """The covering's absorptance, emittance and surface texture: each key given in the scenario, else its
+        finish's preset (materials.COVERING_FINISHES); and a note saying which came from the preset."""
+        finishes = COVERING_FINISHES.get(self.covering.material)
+        finish = self.covering.finish or (next(iter(finishes)) if finishes else None)
+        preset = finishes[finish] if finishes else {}
+        values, taken = {}, []
+        for key in ("absorptance", "emittance", "surface_texture"):
+            given = getattr(self, key)
+            if given is None and key not in preset:
+                raise ValueError(f"roof.{key}: needed (the covering {self.covering.material!r} has no preset)")
+            values[key] = given if given is not None else preset[key]
+            if given is None:
+                taken.append(f"{key} {values[key]}")
+        notes = ([f"roof covering {self.covering.material}, {finish}: {', '.join(taken)} from its preset"]
+                 if taken else [])
+        return values, notes
 
 
 class Attic(_Model):
@@ -142,24 +176,17 @@ class Attic(_Model):
     framing_area: Area = Field(gt=0.0, description="m2 of framing surface exposed to attic air")
     floor_emittance: Fraction = Field(0.90, gt=0.0, le=1.0,
                                       description="thermal emittance of the insulation top")
-    ridge_height: Length | None = Field(None, gt=0.0, description="m above the attic floor; default 2 V / A")
+    ridge_height: Length | None = Field(
+        None, gt=0.0, description="m above the attic floor; default the height that gives the volume for the "
+                                  "roof's shape (gable: 2 V / A)")
     air_layers: Literal[1, 2] = Field(2, description="1 = well-mixed attic air, 2 = upper and lower layers")
-    upper_volume_fraction: Fraction = Field(
-        0.25, gt=0.0, lt=1.0, description="share of the air above mid-height (gable: 1/4)")
+    upper_volume_fraction: Fraction | None = Field(
+        None, gt=0.0, lt=1.0, description="override: share of the air in the upper layer (default: the share "
+                                           "above mid-height from the roof's shape, a gable 1/4)")
     layer_mixing_ach: float = Field(
         1.0, ge=0.0, le=10000.0, description="1/h, exchange between layers in stable stratification")
     fan_mixing_ratio: float = Field(
         1.0, ge=0.0, le=100.0, description="extra exchange between layers while the fan runs, x fan flow")
-
-    @property
-    def height(self) -> float:
-        """Ridge height above the attic floor [m] (default 2 V / A, a gable attic's triangle)."""
-        return self.ridge_height if self.ridge_height else 2.0 * self.volume / self.floor_area
-
-    @property
-    def layer_height(self) -> float:
-        """Height of the interface between the lower and upper air layers [m] (mid-height)."""
-        return 0.5 * self.height if self.air_layers == 2 else 0.0
 
 
 class Ceiling(_Model):
