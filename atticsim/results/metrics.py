@@ -62,6 +62,68 @@ def fan_intervals(events, fan_at_start: bool, t_start: float, t_end: float):
     return intervals
 
 
+def max_starts_in_window(start_times_s, window_s: float = 3600.0) -> int:
+    """Largest number of starts inside any window of the given length (a sliding hour by default).
+
+    Counts starts in [t, t + window) for every start time t; the maximum over all windows is reached by a
+    window that opens at a start (common practice, no source: a motor's "starts per hour" limit applies to
+    any hour, not only clock hours).
+
+    Parameters
+    ----------
+    start_times_s : array_like
+        Fan start instants [s].
+    window_s : float
+        Window length [s], > 0.
+
+    Returns
+    -------
+    int
+    """
+    if not window_s > 0:
+        raise ValueError(f"window_s: must be greater than 0 s (got {window_s!r})")
+    t = np.sort(np.asarray(start_times_s, dtype=float))
+    if t.size == 0:
+        return 0
+    ends = np.searchsorted(t, t + window_s, side="left")
+    return int(np.max(ends - np.arange(t.size)))
+
+
+
+#: Share of complete runs that are short cycles from which a run warns [-] (common practice, no source: one
+#: run in ten shorter than the short-cycle time is already a thermostat that hunts, not an odd event).
+SHORT_CYCLE_WARN_SHARE = 0.10
+
+#: What helps against short-cycling, said after each cycling warning.
+CYCLING_REMEDIES = ("widen the hysteresis (switch-off further from switch-on), move the sensor where the air it "
+                    "reads changes less when the fan starts (sensor.placement), or give the thermostat a minimum "
+                    "run time")
+
+
+def cycling_warnings(summary: dict, starts_limit: float) -> list[str]:
+    """Warnings when the fan short-cycles: any hour over the starts limit, or 10 % or more of the complete
+    runs shorter than the short-cycle time (:data:`SHORT_CYCLE_WARN_SHARE`).
+
+    Parameters
+    ----------
+    summary : dict
+        ``max_starts_per_hour``, ``complete_runs``, ``short_cycles``, ``short_cycle_threshold_min``.
+    starts_limit : float
+        Starts the motor may make in any 60 minutes [1/h].
+    """
+    out = []
+    peak = summary.get("max_starts_per_hour") or 0
+    if peak > starts_limit:
+        out.append(f"The fan starts up to {peak} times in one hour, more than the motor's {starts_limit:g} "
+                   f"(fan.max_starts_per_hour); frequent starts overheat the winding and wear the capacitor: "
+                   f"{CYCLING_REMEDIES}.")
+    runs, short = summary.get("complete_runs") or 0, summary.get("short_cycles") or 0
+    if runs and short / runs >= SHORT_CYCLE_WARN_SHARE:
+        out.append(f"{short} of the {runs} complete fan runs ({100.0 * short / runs:.0f} %) are shorter than "
+                   f"{summary['short_cycle_threshold_min']:g} min (short cycles): {CYCLING_REMEDIES}.")
+    return out
+
+
 def energy_balance_error_pct(capacities, y_start, y_end, books_end, n_nodes) -> float:
     """Closure of the building's energy books [% of gross exchange].
 
@@ -80,6 +142,7 @@ def energy_balance_error_pct(capacities, y_start, y_end, books_end, n_nodes) -> 
 def _cycle_figures(intervals, short_cycle):
     runs = np.array([b - a for a, b, complete in intervals if complete])
     return {
+        "complete_runs": int(runs.size),
         "short_cycles": int(np.sum(runs < short_cycle)) if runs.size else 0,
         "cycle_minutes_median": float(np.median(runs) / 60.0) if runs.size else None,
     }
@@ -148,6 +211,8 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "energy_balance_error_no_fan_pct": (energy_balance_error_pct(
             net.capacities, raw.y_start_nofan, nofan.y_end, nofan.y_end[n:], n) if nofan else None),
         "short_cycle_threshold_min": sim.short_cycle / 60.0,
+        "max_starts_per_hour": max_starts_in_window([t for t, state, _ in run.events if state], 3600.0),
+        "starts_limit_per_hour": scenario.fan.max_starts_per_hour,
         "thermostat_kind": scenario.thermostat.kind,
         "switch_on_sensor_c": raw.controller.on,
         "switch_off_sensor_c": raw.controller.off,
@@ -155,6 +220,10 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "sensor_placement": scenario.sensor.placement,
         **airflow_figures(scenario, raw, air, books, books_nf),
     }
+    summary["short_cycle_share"] = (summary["short_cycles"] / summary["complete_runs"]
+                                    if summary["complete_runs"] else None)
+    summary["warnings"] = (list(getattr(scenario, "input_warnings", ())) +
+                           cycling_warnings(summary, scenario.fan.max_starts_per_hour) + summary["warnings"])
     notes = list(raw.notes)
     if summary_only:
         return SimulationResult(summary, None, ts, events, notes, scenario, None)
