@@ -128,7 +128,8 @@ def test_reused_forcing_is_the_one_a_fresh_build_gives(clear_week):
     third = pipeline.run_raw(steeper, weather=clear_week, start="2025-07-15", end="2025-07-15",
                              include_no_fan=False, reuse_no_fan=True)
     assert third.forcing is not first.forcing and len(pipeline._FORCINGS) == 2
-    assert not np.array_equal(third.forcing.values[4], first.forcing.values[4])
+    poa = len(pipeline.FORCING_BASE)  # the first plane's irradiance
+    assert not np.array_equal(third.forcing.values[poa], first.forcing.values[poa])
 
 
 def test_summary_only_result_has_the_full_summary(clear_week):

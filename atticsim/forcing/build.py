@@ -28,8 +28,9 @@ class Forcing:
     step : float
         Sample step [s].
     values : numpy.ndarray
-        Shape (channels, n): temp_out [degC], temp_sky_k [K], wind_speed [m/s], temp_dew [degC], then one
-        plane-of-array irradiance row per plane [W/m^2].
+        Shape (channels, n): temp_out [degC], temp_sky_k [K], wind_speed [m/s], temp_dew [degC], pressure
+        [Pa], temp_room [degC] (the rooms below the ceiling), then one plane-of-array irradiance row per
+        plane [W/m^2].
     channels : list of str
         Channel names.
     notes : list of str
@@ -203,6 +204,11 @@ def build_forcing(frame: pd.DataFrame, meta, scenario, start=None, end=None, sou
     poa = plane_irradiance(part.index, part["ghi"], part["dni"], part["dhi"], lat, lon,
                            [(p.tilt, p.azimuth) for p in scenario.roof.planes], altitude=alt,
                            albedo=site.ground_albedo, solpos=solpos)
-    values = np.vstack([temp, t_sky, part["wind_speed"].to_numpy(float), dew, poa])
-    channels = ["temp_out", "temp_sky_k", "wind_speed", "temp_dew"] + [f"poa_{p.name}" for p in scenario.roof.planes]
+    # station pressure (the weather file's, else the standard atmosphere at the site: atticsim.io fills it)
+    pressure = part["pressure"].to_numpy(float)
+    # the rooms below: held at the cooling setpoint
+    temp_room = np.full(len(part), scenario.ceiling.room_temperature)
+    values = np.vstack([temp, t_sky, part["wind_speed"].to_numpy(float), dew, pressure, temp_room, poa])
+    channels = (["temp_out", "temp_sky_k", "wind_speed", "temp_dew", "pressure", "temp_room"]
+                + [f"poa_{p.name}" for p in scenario.roof.planes])
     return Forcing(times=part.index, step=step, values=values, channels=channels, notes=notes)

@@ -15,7 +15,8 @@ import pandas as pd
 
 from atticsim.constants import KELVIN
 from atticsim.airflow.model import stack_states
-from atticsim.network.model import ATTIC_BOOKS, BOOKS
+from atticsim.network.kernel import AIR_ORDER
+from atticsim.network.model import ATTIC_BOOKS, BOOKS, FORCING_BASE
 
 J_PER_KWH = 3.6e6
 
@@ -163,9 +164,9 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
     attic_air = net.mean_air(temps)
     if summary_only:
         # what the summary reads: the outdoor air, the flows the sensor's placement and the airflow figures use
-        f = forcing.sample(run.t, channels=1)
-        air = stack_states(run.air, names=("fan_flow", "in_lower", "outdoor_flow"), runs=run.air_runs)
-        sensor_local_air = net.sensor_local(temps, f, run.fan, SimpleNamespace(**air)).t_air
+        f = forcing.sample(run.t)
+        air = stack_states(run.air, names=AIR_ORDER + ("outdoor_flow",), runs=run.air_runs)
+        sensor_local_air = net.sensor_local_air(temps, f, run.fan, SimpleNamespace(**air))
         ts = pd.DataFrame({"attic_air_c": attic_air, "fan_on": run.fan.astype(int)},
                           index=pd.DatetimeIndex(times, name="time"))
     else:
@@ -239,12 +240,12 @@ def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
 
     cols = {"outdoor_air_c": f[0], "sky_c": f[1] - KELVIN, "wind_speed_m_s": f[2]}
     for i, p in enumerate(net.plane_names):
-        cols[f"poa_{p}_w_m2"] = f[4 + i]
+        cols[f"poa_{p}_w_m2"] = f[len(FORCING_BASE) + i]
     cols["attic_air_c"] = attic_air
     for name, i in idx.items():
         if name != "air":
             cols[name + "_c"] = temps[i]
-    cols["sensor_local_air_c"] = q["sensor_local_air"] * np.ones(run.t.size)
+    cols["sensor_local_air_c"] = q["sensor_local_air"]
     cols["fan_on"] = run.fan.astype(int)
     cols["outdoor_air_flow_m3_s"] = air["outdoor_flow"]
     cols["fan_flow_m3_s"] = air["fan_flow"]
@@ -254,13 +255,13 @@ def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
     for j, name in enumerate(net.airflow.path_names):
         cols[f"flow_{name.replace(' ', '_')}_m3_s"] = air["path_flows"][:, j]
     cols["airflow_mass_residual"] = air["residual"]
-    cols["solar_absorbed_w"] = q["solar"].sum(axis=0)
-    cols["roof_longwave_w"] = (q["sky"] + q["ground"]).sum(axis=0)
-    cols["roof_convection_w"] = q["exterior_convection"].sum(axis=0)
+    cols["solar_absorbed_w"] = q["solar"]
+    cols["roof_longwave_w"] = q["sky"] + q["ground"]
+    cols["roof_convection_w"] = q["exterior_convection"]
     cols["ventilation_heat_w"] = q["ventilation"]
     cols["ceiling_heat_gain_w"] = q["ceiling_gain"]
-    cols["fan_power_w"] = q["fan_electric"] * np.ones(run.t.size)
-    cols["house_air_load_w"] = (q["house_air_sensible"] + q["house_air_latent"]) * np.ones(run.t.size)
+    cols["fan_power_w"] = q["fan_electric"]
+    cols["house_air_load_w"] = q["house_air_sensible"] + q["house_air_latent"]
     return pd.DataFrame(cols, index=pd.DatetimeIndex(times, name="time"))
 
 
