@@ -43,7 +43,10 @@ STUDY_JSON = "study.json"
 #: Every file a study writes into DIR (``--force`` removes these and nothing else).
 STUDY_FILES = (STUDY_JSON, JOURNAL, "points.csv", "points.parquet", "pareto.csv", "pareto.png",
                "recommendation.json", "short_cycling_map.png")
-NET_BENEFIT_BASIS = ("summary net_benefit_kwh when the model gives it, else (ceiling_heat_gain_no_fan_kwh - "
+NET_BENEFIT_BASIS = ("the run's net_benefit_kwh: electricity at the meter = cooling savings (ceiling heat kept out on "
+                     "cooled days / house.cooling_cop) - the cooling cost of conditioned air drawn - fan energy - "
+                     "the heating penalty when the heating runs on electricity (see each point's energy_basis in "
+                     "atticsim.results.metrics.season_summary); else (ceiling_heat_gain_no_fan_kwh - "
                      "ceiling_heat_gain_kwh) / COP - fan_energy_kwh with COP = house.cooling_cop or "
                      f"{DEFAULT_COOLING_COP:g} (common practice, no source)")
 
