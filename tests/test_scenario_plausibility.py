@@ -54,7 +54,7 @@ def test_fan_sizing_note_from_the_rule_of_thumb():
     # (1507 ft2) is 0.80 cfm/ft2, ordinary; 300 cfm is 0.20, under a third of the rule: a note
     assert not any("cfm per ft2" in w for w in demo_scenario().input_warnings)
     notes = [w for w in demo_scenario(['fan.flow="300 cfm"']).input_warnings if "cfm per ft2" in w]
-    assert len(notes) == 1 and "0.199 cfm per ft2" in notes[0] and "about 1,055 cfm" in notes[0]
+    assert len(notes) == 1 and "0.1991 cfm per ft2" in notes[0] and "about 1,055 cfm" in notes[0]
 
 
 def test_keys_without_effect_are_named():

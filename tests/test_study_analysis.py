@@ -160,3 +160,13 @@ def test_edges_name_the_key_and_the_way_to_widen():
     assert "below 36 degC (next: 34 degC)" in e[0]["advice"] and "above 3 K" in e[1]["advice"]
     assert edges(t, 2, axes) == []  # 38 degC and 2 K lie inside the ranges; text keys have no edge
     assert [x["side"] for x in edges(t, 3, axes)] == ["highest", "highest"]
+
+
+def test_edges_of_a_sampled_range_point_to_the_range_end():
+    from atticsim.study.spec import parse_vary
+
+    axes = [parse_vary("thermostat.on=36:44degC")]
+    t = pd.DataFrame({"point": [0, 1], "thermostat.on": [36.56, 41.2],
+                      "thermostat.on_given": ["36.56 degC", "41.2 degC"]})
+    (e,) = edges(t, 0, axes, sampled=True)
+    assert e["side"] == "lowest" and "the range ends at 36 degC" in e["advice"] and "near 36 degC" in e["advice"]

@@ -13,8 +13,11 @@ def season_lines(s: dict, energy, house, ip: bool = False) -> list[str]:
 
     if s.get("net_benefit_kwh") is None:
         return []
-    lines = [f"  seasons: {s['days_cooling']} cooling days, {s['days_heating']} heating days, "
-             f"{s['days_neither']} days of neither ({rule_label(house, ip)})"]
+    def days(k):
+        return f"{k} day" if k == 1 else f"{k} days"
+
+    lines = [f"  seasons: {days(s['days_cooling'])} cooled, {days(s['days_heating'])} heated, "
+             f"{days(s['days_neither'])} neither ({rule_label(house, ip)})"]
     air = s.get("airflow_model") == "balance"
     if s["days_cooling"]:
         lines.append(f"  while cooled: the fan keeps {energy(s['ceiling_heat_kept_out_cooling_kwh'])} of ceiling heat out "

@@ -169,7 +169,7 @@ def sizing_notes(scenario) -> list[str]:
     if SIZING_CFM_PER_FT2 / SIZING_SPAN <= ratio <= SIZING_CFM_PER_FT2 * SIZING_SPAN:
         return []
     usual = SIZING_CFM_PER_FT2 * area_ft2
-    return [f"The fan moves {_num(flow_cfm)} cfm for {_num(area_ft2)} ft2 of attic floor ({ratio:.3g} cfm per ft2); "
+    return [f"The fan moves {_num(flow_cfm)} cfm for {_num(area_ft2)} ft2 of attic floor ({_num(ratio)} cfm per ft2); "
             f"attic fans are usually sized near {SIZING_CFM_PER_FT2:g} cfm per ft2 (about {_num(usual)} cfm here; "
             f"common practice, from memory), so check the fan's flow and the floor area."]
 

@@ -251,7 +251,7 @@ def recommend(table, starts_limit: float, heat_column: str, short_cycles_allowed
     return out
 
 
-def edges(table, point: int, axes) -> list[dict]:
+def edges(table, point: int, axes, sampled: bool = False) -> list[dict]:
     """The varied numeric keys whose value at ``point`` is the lowest or highest the study tried.
 
     Parameters
@@ -262,6 +262,8 @@ def edges(table, point: int, axes) -> list[dict]:
         The chosen point.
     axes : list of Axis
         The study's axes (for the unit and step of the advice).
+    sampled : bool
+        The points were drawn from the ranges (Latin hypercube), not laid on their grid.
 
     Returns
     -------
@@ -285,16 +287,21 @@ def edges(table, point: int, axes) -> list[dict]:
             continue
         given = row.get(f"{ax.key}_given", v)
         way = "below" if side == "lowest" else "above"
+        unit = f" {ax.unit}" if ax.unit else ""
         nxt = ""
         numbers = [x.number for x in ax.values if x.number is not None]
         if ax.step is not None and numbers:
             edge = min(numbers) if side == "lowest" else max(numbers)
             beyond = edge - abs(ax.step) if side == "lowest" else edge + abs(ax.step)
             if not (min(numbers) > 0.0 >= beyond):  # no zero or negative widths, flows or ratios
-                nxt = f" (next: {beyond:g}{' ' + ax.unit if ax.unit else ''})"
-        out.append({"key": ax.key, "side": side, "value": given,
-                    "advice": f"{ax.key} = {given} is the {side} value the study tried: the best setting may lie "
-                              f"{way} it; widen the range {way} {given}{nxt} and run the study again."})
+                nxt = f" (next: {beyond:g}{unit})"
+        advice = (f"{ax.key} = {given} is the {side} value the study tried: the best setting may lie {way} it; "
+                  f"widen the range {way} {given}{nxt} and run the study again.")
+        if ax.is_range and (sampled or ax.step is None):  # a sampled range: the end itself may not have been tried
+            end = min(ax.start, ax.stop) if side == "lowest" else max(ax.start, ax.stop)
+            advice = (f"{ax.key} = {given} is the {side} value the study sampled (the range ends at {end:g}{unit}): "
+                      f"the best setting may lie {way} it; add points near {end:g}{unit} or widen the range {way} it.")
+        out.append({"key": ax.key, "side": side, "value": given, "advice": advice})
     return out
 
 

@@ -695,7 +695,7 @@ def run_study(study: Study, out, *, workers: int | None = None, scheduler: str |
         rec.update({k: v for k, v in describe(rec["point"]).items() if k != "point"})
         if rec.get("runner_up") is not None:
             rec["runner_up"] = describe(rec["runner_up"])
-        rec["edges"] = edges(table, rec["point"], study.axes)
+        rec["edges"] = edges(table, rec["point"], study.axes, sampled=study.sample == "lhs")
         rec["on_edge"] = [e["key"] for e in rec["edges"]]
         parts = circuit_parts(plan.points[rec["point"]].scenario)
         if parts is not None:
