@@ -41,6 +41,7 @@ KINDS: dict[str, tuple[str, str]] = {
     "capacitance": ("F", "a capacitance"),
     "frequency": ("Hz", "a frequency"),
     "dimensionless": ("dimensionless", "a plain number"),
+    "percent": ("percent", "a percentage"),
 }
 
 # 1 ft^2.degF.h/Btu_IT in m^2.K/W: (0.3048^2 m^2)(5/9 K)(3600 s) / 1055.05585262 J
@@ -66,10 +67,36 @@ def registry():
     """
     import pint
 
-    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=":auto:")
+    folder = _pint_cache_folder(pint)
+    try:
+        ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=folder)
+    except (OSError, ValueError, EOFError, AttributeError, ImportError):
+        # a damaged or stale cache entry: build the registry from pint's own files instead
+        ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
     ureg.define("cubic_foot_per_minute = foot**3/minute = cfm = CFM")
     ureg.define("inch_water_column = 249.0889 * pascal = in_wc = inWC = in_w_c")
     return ureg
+
+
+def _pint_cache_folder(pint):
+    """pint's parse cache in atticsim's own cache folder, keyed by this install and by pint's own files (its
+    entries hold paths into the environment that wrote them), or None (no disk cache) when there is none.
+    Never pint's user-wide ``:auto:`` folder, which every environment with the same pint version shares."""
+    import hashlib
+    from pathlib import Path
+
+    from atticsim.jitcache import folder
+
+    base = folder()
+    if base is None:
+        return None
+    tag = hashlib.sha1(f"{Path(pint.__file__).resolve()}|{pint.__version__}".encode()).hexdigest()[:12]
+    path = base.parent / f"pint-{tag}"
+    try:
+        path.mkdir(parents=True, exist_ok=True)
+    except OSError:
+        return None
+    return path
 
 
 def to_si(value, kind: str) -> float:
@@ -167,7 +194,7 @@ def _example(kind: str) -> str:
         "density": "500 kg/m3", "conductivity": "0.12 W/(m*K)", "specific_heat": "1880 J/(kg*K)",
         "r_value": "R-38", "conductance": "0.0015 W/K", "heat_capacity": "400 J/K", "velocity": "3 m/s", "voltage": "12 V",
         "resistance": "10 kohm", "current": "10 mA", "capacitance": "0.47 uF", "frequency": "60 Hz",
-        "dimensionless": "0.9",
+        "dimensionless": "0.9", "percent": "50 %",
     }[kind]
 
 

@@ -118,3 +118,56 @@ def test_design_refuses_what_the_parts_cannot_do():
     p = _parts(feedback_on="reference", action="close-on-rise", sense_fixed=1e3)
     with pytest.raises(ValueError, match="no feedback resistor"):
         design_circuit(p, 45.0, -60.0)
+
+
+# --- designing for the air temperature ----------------------------------------------------------------
+
+@pytest.mark.parametrize("feedback_on,action,on,off", [
+    ("reference", "close-on-rise", 45.0, 41.0), ("sense", "close-on-fall", 5.0, 8.0)])
+def test_design_for_the_air_puts_the_air_at_the_wanted_temperatures(feedback_on, action, on, off):
+    # Steady self-heating dT = P / delta (dissipation constant, thermistor makers' definition): at the
+    # switch-on point the thermistor sits P_on / delta above the air. Designed for the air, the trimmed
+    # circuit must switch when the AIR is at `on` exactly, the thermistor P_on / delta above it.
+    from atticsim.circuit import air_temperatures
+
+    delta = 1.0e-3  # W/K, an epoxy bead in still air (makers' application pages: 0.5-1 mW/K)
+    p = _parts(feedback_on=feedback_on, action=action, sense_fixed=500.0)
+    d = design_circuit(p, on, off, self_heating=delta, basis="air")
+    th = d.thresholds
+    assert d.air_on_c == pytest.approx(on, abs=1e-6)
+    assert th.on_c - d.air_on_c == pytest.approx(th.sense_power_on_w / delta, rel=1e-9)
+    # the circuit library's own air temperatures of the chosen parts agree
+    assert air_temperatures(th, d.params, delta)[0] == pytest.approx(on, abs=1e-6)
+    # the hysteresis of the air is at least the one asked (feedback rounded the safe way)
+    sign = 1.0 if action == "close-on-rise" else -1.0
+    assert (d.air_on_c - d.air_off_c) * sign >= abs(on - off) - 1e-9
+    # a 10 k NTC in a divider dissipates mW: the thermistor's thresholds differ from the air's by > 0.1 K,
+    # so a design for the thermistor would miss the air by that much
+    t = design_circuit(p, on, off, self_heating=delta)
+    assert t.thresholds.on_c == pytest.approx(on, abs=1e-6) and abs(t.air_on_c - on) > 0.1
+
+
+def test_air_and_thermistor_designs_agree_without_self_heating():
+    p = _parts(feedback_on="sense", action="close-on-rise", sense_fixed=1e3)
+    air = design_circuit(p, 40.0, 35.0, self_heating=lambda power, t_air: 0.0, basis="air")
+    th = design_circuit(p, 40.0, 35.0)
+    assert air.feedback_exact == pytest.approx(th.feedback_exact, rel=1e-9)
+    assert air.sense_trim == pytest.approx(th.sense_trim, rel=1e-9)
+    with pytest.raises(ValueError, match="self-heating"):
+        design_circuit(p, 40.0, 35.0, basis="air")
+
+
+def test_design_for_the_air_on_the_demo_circuit():
+    # Our demonstration circuit (invented values: 47 k B4100 NTC, 9.1 V rail, 1.5 mW/K): the thermistor
+    # dissipates about 0.43 mW at 40 degC, 0.29 K of self-heating (P / delta). Designed for the air, the
+    # thermistor's own threshold sits that much above the wanted 40 degC.
+    from pathlib import Path
+
+    from atticsim.scenario import load_scenario
+
+    sc = load_scenario(Path(__file__).resolve().parent.parent / "scenarios" / "heron_lane_circuit.toml")
+    delta = sc.sensor.dissipation_constant
+    d = design_circuit(sc.thermostat.circuit_params(), 40.0, 35.0, self_heating=delta, basis="air")
+    assert d.air_on_c == pytest.approx(40.0, abs=1e-6)
+    assert d.thresholds.on_c - 40.0 == pytest.approx(d.thresholds.sense_power_on_w / delta, rel=1e-9)
+    assert 0.2 < d.thresholds.on_c - 40.0 < 0.4

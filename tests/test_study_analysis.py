@@ -6,8 +6,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from atticsim.study.analysis import (degree_hours_above, max_starts_in_window, net_benefit_kwh, pareto_mask,
-                                     recommend)
+from atticsim.study.analysis import (degree_hours_above, edges, max_starts_in_window, net_benefit_kwh,
+                                     pareto_mask, recommend, rule_text)
 
 
 # --- degree-hours -------------------------------------------------------------------------------------
@@ -87,27 +87,86 @@ def test_pareto_mask_three_objectives():
     assert pareto_mask(f).tolist() == [False, True, True, True]
 
 
-# --- recommendation -----------------------------------------------------------------------------------
+# --- recommendation ---------------------------------------------------------------------------------
 
 def table(rows):
-    cols = ["point", "status", "max_starts_per_hour", "degree_hours_above_limit", "hysteresis_k", "fan_starts",
-            "fan_energy_kwh"]
+    cols = ["point", "status", "max_starts_per_hour", "short_cycles", "degree_hours_above_limit", "hysteresis_k",
+            "fan_starts", "fan_energy_kwh"]
     return pd.DataFrame(rows, columns=cols)
 
 
-def test_recommendation_respects_the_limit_then_heat_then_narrowest_hysteresis():
+def test_recommendation_qualifies_by_starts_and_short_cycles_then_takes_the_gentlest_of_the_tied():
+    # Applying the rule by hand (rule_text): step 1 drops points 0 (9 starts in an hour) and 2 (3 short
+    # cycles: within the starts limit, but the fan hunts); step 2: lowest qualifying heat 12.0, tolerance
+    # max(0.01, 1 % x 12.0) = 0.12, so 12.0, 12.05 and 12.1 tie and 12.5 does not; step 3: fewest starts
+    # among 1, 3 and 5 -> points 1 and 5 (5 starts each); widest hysteresis -> point 5 (4 K).
     t = table([
-        (0, "ok", 9, 10.0, 0.5, 30, 1.0),   # lowest heat but too many starts per hour
-        (1, "ok", 4, 12.0, 3.0, 5, 1.2),    # tied lowest heat within the limit, wide hysteresis
-        (2, "ok", 5, 12.05, 2.0, 8, 1.1),   # within 1 % of 12.0: tied, narrower -> chosen
-        (3, "ok", 2, 15.0, 1.0, 4, 1.0),    # narrowest, but more heat
-        (4, "error", None, None, 1.0, None, None),
+        (0, "ok", 9, 0, 10.0, 0.5, 30, 1.0),    # lowest heat, too many starts in one hour
+        (1, "ok", 2, 0, 12.05, 3.0, 5, 1.2),    # tied, 5 starts
+        (2, "ok", 3, 3, 11.9, 1.0, 12, 1.1),    # short-cycles (the old rule's pick: narrowest, lowest heat)
+        (3, "ok", 2, 0, 12.0, 2.0, 8, 1.1),     # tied, 8 starts
+        (4, "ok", 1, 0, 12.5, 5.0, 4, 1.3),     # the fewest starts, but not tied (12.5 > 12.12)
+        (5, "ok", 1, 0, 12.1, 4.0, 5, 1.4),     # tied, 5 starts, wider than point 1 -> chosen
+        (6, "error", None, None, None, 1.0, None, None),
     ])
     rec = recommend(t, starts_limit=6, heat_column="degree_hours_above_limit")
-    assert rec["point"] == 2 and rec["candidates"] == 3
+    assert rec["point"] == 5 and rec["candidates"] == 4 and rec["tied"] == 3
+    # the runner-up is the rule applied without point 5: of 1 and 3 (12.0, tolerance 0.12), point 1
+    assert rec["runner_up"] == 1
+    # allowing 3 short cycles lets point 2 in: lowest heat 11.9, tolerance 0.119, so only 2 and 3 (12.0 <=
+    # 12.019) tie, not 1 (12.05); the fewer starts of the two: point 3 (8 against 12)
+    rec = recommend(t, starts_limit=6, heat_column="degree_hours_above_limit", short_cycles_allowed=3)
+    assert rec["point"] == 3 and rec["candidates"] == 5 and rec["tied"] == 2
+    # with no tolerance beyond the 0.01 floor only point 2 has the lowest heat
+    rec = recommend(t, 6, "degree_hours_above_limit", short_cycles_allowed=3, rel_tol=0.0)
+    assert rec["point"] == 2 and rec["runner_up"] == 3
 
 
-def test_recommendation_when_no_point_respects_the_limit():
-    t = table([(0, "ok", 9, 10.0, 0.5, 30, 1.0), (1, "ok", 7, 12.0, 1.0, 20, 1.2)])
+def test_equal_starts_and_width_go_to_the_least_energy():
+    t = table([(0, "ok", 1, 0, 100.0, 3.0, 7, 12.5), (1, "ok", 1, 0, 100.5, 3.0, 7, 11.0)])
+    assert recommend(t, 6, "degree_hours_above_limit")["point"] == 1
+
+
+def test_recommendation_when_no_point_qualifies():
+    t = table([(0, "ok", 9, 0, 10.0, 0.5, 30, 1.0), (1, "ok", 5, 2, 12.0, 1.0, 20, 1.2)])
     rec = recommend(t, starts_limit=6, heat_column="degree_hours_above_limit")
-    assert rec["point"] is None and "point 1 with 7" in rec["reason"]
+    assert rec["point"] is None and rec["runner_up"] is None
+    assert "point 1 with 5 starts in one hour and 2 short cycles" in rec["reason"]
+    assert "--short-cycles-allowed" in rec["reason"]
+
+
+def test_rule_text_states_its_numbers():
+    text = rule_text(4.0, 2, "ceiling_heat_gain_kwh", 0.005)
+    assert "max_starts_per_hour <= 4" in text and "short_cycles <= 2" in text
+    assert "max(0.01, 0.5 % of the lowest)" in text and "ceiling_heat_gain_kwh" in text
+    assert text.index("fewest fan starts") < text.index("widest hysteresis") < text.index("least fan energy")
+
+
+# --- edges of the searched range ----------------------------------------------------------------------
+
+def test_edges_name_the_key_and_the_way_to_widen():
+    from atticsim.study.spec import parse_vary
+
+    axes = [parse_vary("thermostat.on=36:40:2degC"), parse_vary("thermostat.hysteresis=1,2,3K"),
+            parse_vary("weather.sky_model=berdahl-martin,swinbank")]
+    rows = []
+    for i, (on, w) in enumerate([(36, 1), (36, 3), (38, 2), (40, 3)]):
+        rows.append({"point": i, "thermostat.on": float(on), "thermostat.on_given": f"{on} degC",
+                     "thermostat.hysteresis": float(w), "thermostat.hysteresis_given": f"{w} K",
+                     "weather.sky_model": "swinbank", "weather.sky_model_given": "swinbank"})
+    t = pd.DataFrame(rows)
+    e = edges(t, 1, axes)  # 36 degC is the lowest switch-on tried, 3 K the widest hysteresis
+    assert [(x["key"], x["side"]) for x in e] == [("thermostat.on", "lowest"), ("thermostat.hysteresis", "highest")]
+    assert "below 36 degC (next: 34 degC)" in e[0]["advice"] and "above 3 K" in e[1]["advice"]
+    assert edges(t, 2, axes) == []  # 38 degC and 2 K lie inside the ranges; text keys have no edge
+    assert [x["side"] for x in edges(t, 3, axes)] == ["highest", "highest"]
+
+
+def test_edges_of_a_sampled_range_point_to_the_range_end():
+    from atticsim.study.spec import parse_vary
+
+    axes = [parse_vary("thermostat.on=36:44degC")]
+    t = pd.DataFrame({"point": [0, 1], "thermostat.on": [36.56, 41.2],
+                      "thermostat.on_given": ["36.56 degC", "41.2 degC"]})
+    (e,) = edges(t, 0, axes, sampled=True)
+    assert e["side"] == "lowest" and "the range ends at 36 degC" in e["advice"] and "near 36 degC" in e["advice"]

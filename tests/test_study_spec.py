@@ -7,7 +7,8 @@ import pytest
 
 from atticsim.scenario import demo_scenario
 from atticsim.study.spec import (Study, StudyError, grid_points, latin_hypercube, lhs_points, load_study_file,
-                                 parse_comfort_limit, parse_starts_limit, parse_vary, point_overrides)
+                                 parse_comfort_limit, parse_heat_tolerance, parse_short_cycles_allowed,
+                                 parse_starts_limit, parse_vary, point_overrides)
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -168,6 +169,36 @@ def test_hysteresis_width_must_be_positive():
         point_overrides({"thermostat.hysteresis": width}, demo_scenario())
 
 
+# --- a bigger fan is never free ----------------------------------------------------------------------
+
+def test_varied_flow_scales_the_fans_power_at_its_watts_per_flow():
+    # The demo fan: 180 W at 1200 cfm. 1500 cfm of the same kind: 180 x 1500 / 1200 = 225 W (proportion).
+    base = demo_scenario()
+    flow = parse_vary("fan.flow=1500cfm").values[0]
+    overrides = point_overrides({"fan.flow": flow}, base)
+    assert overrides[0] == 'fan.flow="1500 cfm"' and overrides[1].startswith("fan.power=")
+    assert demo_scenario(overrides).fan.power == pytest.approx(225.0, rel=1e-12)
+    # a varied power is the user's own figure: not scaled
+    power = parse_vary("fan.power=150W").values[0]
+    assert point_overrides({"fan.flow": flow, "fan.power": power}, base) == ['fan.flow="1500 cfm"',
+                                                                              'fan.power="150 W"']
+
+
+def test_speed_ratio_of_a_fan_without_a_curve_follows_the_fan_laws():
+    # Fan laws (Q ~ N, P ~ N^3; fan affinity laws, from memory): at 80 % speed the demo fan's 1200 cfm and
+    # 180 W become 960 cfm and 180 x 0.512 = 92.16 W.
+    ratio = parse_vary("fan.speed_ratio=0.8").values[0]
+    sc = demo_scenario(point_overrides({"fan.speed_ratio": ratio}, demo_scenario()))
+    assert sc.fan.flow == pytest.approx(0.8 * 1200 * 0.3048**3 / 60, rel=1e-12)
+    assert sc.fan.power == pytest.approx(92.16, rel=1e-12)
+    assert sc.input_warnings == ()  # derived values carry their units: nothing to question
+    # a fan described by its curve takes the ratio itself (the airflow model applies the laws on the curve)
+    curved = Path(__file__).resolve().parent.parent / "scenarios" / "starved_intakes.toml"
+    from atticsim.scenario import load_scenario
+
+    assert point_overrides({"fan.speed_ratio": ratio}, load_scenario(curved)) == ["fan.speed_ratio=0.8"]
+
+
 # --- limits and study files ---------------------------------------------------------------------------
 
 @pytest.mark.parametrize("text,per_hour", [("6", 6.0), ("6/h", 6.0), ("6 per hour", 6.0), ("0.1/min", 6.0), (4, 4.0)])
@@ -179,6 +210,17 @@ def test_starts_limit_forms(text, per_hour):
 def test_starts_limit_rejects_bad_text(text):
     with pytest.raises(StudyError, match="--starts-limit"):
         parse_starts_limit(text)
+
+
+def test_short_cycle_allowance_and_heat_tolerance():
+    assert parse_short_cycles_allowed("0") == 0 and parse_short_cycles_allowed(3) == 3
+    for bad in ("-1", "few", True):
+        with pytest.raises(StudyError, match="--short-cycles-allowed"):
+            parse_short_cycles_allowed(bad)
+    # a tolerance is a percentage, bare or with its sign: 1 and "1 %" are both 1 % = 0.01
+    assert parse_heat_tolerance(1) == pytest.approx(0.01) and parse_heat_tolerance("0.5 %") == pytest.approx(0.005)
+    with pytest.raises(StudyError, match="--heat-tolerance"):
+        parse_heat_tolerance("150 %")
 
 
 def test_comfort_limit_converts_fahrenheit():

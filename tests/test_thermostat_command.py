@@ -77,8 +77,14 @@ def test_thermostat_design_command():
                                  "--json"])
     assert r.exit_code == 0, r.output
     d = json.loads(r.output)
-    assert d["on_c"] == pytest.approx(42.0, abs=1e-6)
-    assert d["hysteresis_k"] >= 6.0 - 1e-9  # feedback rounded in the safe direction (wider)
+    # by default the wanted temperatures are the air's (self-heating included)
+    assert d["basis"] == "air" and d["on_air_c"] == pytest.approx(42.0, abs=1e-6)
+    assert d["on_air_c"] - d["off_air_c"] >= 6.0 - 1e-9  # feedback rounded in the safe direction (wider)
+    r = CliRunner().invoke(cli, ["thermostat", str(CIRCUIT), "--design", "--on", "42degC", "--off", "36degC",
+                                 "--basis", "thermistor", "--json"])
+    d = json.loads(r.output)
+    assert d["on_c"] == pytest.approx(42.0, abs=1e-6) and d["hysteresis_k"] >= 6.0 - 1e-9
+    assert d["on_air_c"] < d["on_c"]  # the air is cooler than the self-heated thermistor
 
 
 def test_contradictory_thermistor_position_is_refused(tmp_path):
@@ -99,3 +105,46 @@ def test_setpoint_scenario_is_refused_by_thermostat_command():
     r = CliRunner().invoke(cli, ["thermostat", str(setpoints)])
     assert r.exit_code == 2
     assert f"{setpoints}: thermostat.kind: is 'setpoints'" in r.output.strip().splitlines()[-1]
+
+
+def _air_at_first_switch_on(result):
+    """The sensor's local air at the first switch-on instant, extrapolated from the two rows before it."""
+    t_on = result.events[result.events.fan == "on"].time.iloc[0]
+    before = result.timeseries.loc[:t_on, "sensor_local_air_c"].iloc[-2:]
+    slope = (before.iloc[1] - before.iloc[0]) / (before.index[1] - before.index[0]).total_seconds()
+    return before.iloc[1] + slope * (t_on - before.index[1]).total_seconds()
+
+
+def test_design_for_the_air_written_and_simulated(tmp_path):
+    # Design for the AIR at 40 degC / 35 degC, write the scenario with the chosen parts, simulate it: the air
+    # around the sensor at the simulated switch-on is at 40 degC (within 0.2 K: the sensor lags the slowly
+    # warming air by well under that), while the thermistor itself switches about 0.3 K higher.
+    out = tmp_path / "designed.toml"
+    r = CliRunner().invoke(cli, ["thermostat", str(CIRCUIT), "--design", "--on", "40degC", "--off", "35degC",
+                                 "--json", "--write", str(out)])
+    assert r.exit_code == 0, r.output
+    d = json.loads(r.output[r.output.index("{"):r.output.rindex("}") + 1])
+    assert d["basis"] == "air" and d["on_air_c"] == pytest.approx(40.0, abs=1e-6)
+    assert d["on_c"] > 40.2
+    text = out.read_text()
+    assert "FICTIONAL" in text and "CAUTION" in text  # the user's comments are kept
+    sc = load_scenario(out, ["weather.start=2025-07-01", "weather.end=2025-07-01", "simulation.spinup_days=1"])
+    assert sc.thermostat.circuit.sense_trim == pytest.approx(d["sense_trim_ohm"], rel=1e-5)
+    assert sc.thermostat.circuit.feedback == d["feedback_ohm"]
+    result = simulate(sc, weather=load_weather(str(ROOT / "weather_demo" / "saltmarsh_point_2025.csv")))
+    # (the file gives the trimmer to 6 significant digits, 0.1 ohm: 2e-5 K on the threshold)
+    assert result.events[result.events.fan == "on"].sensor_c.iloc[0] == pytest.approx(d["on_c"], abs=1e-3)
+    assert _air_at_first_switch_on(result) == pytest.approx(40.0, abs=0.2)
+    # the file is not overwritten without --force
+    r = CliRunner().invoke(cli, ["thermostat", str(CIRCUIT), "--design", "--on", "41degC", "--off", "35degC",
+                                 "--write", str(out)])
+    assert r.exit_code == 2 and "--force" in r.output.strip().splitlines()[-1] and out.read_text() == text
+
+
+def test_design_text_in_ip_units_and_on_the_thermistor_basis():
+    r = CliRunner().invoke(cli, ["thermostat", str(CIRCUIT), "--design", "--on", "104degF", "--off", "95degF",
+                                 "--basis", "thermistor", "--units", "ip"])
+    assert r.exit_code == 0, r.output
+    assert "design for the THERMISTOR itself: ON at 104.0 °F, OFF at 95.0 °F" in r.output
+    # 104 degF = 40 degC on the thermistor; its self-heating puts the air about 0.3 K (0.5 degF) lower
+    assert "the AIR switches ON at 103.5 °F" in r.output and "°C" not in r.output.split("!")[0]

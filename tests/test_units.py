@@ -37,3 +37,11 @@ def test_pitch_and_shorthand():
 def test_wrong_units_are_rejected(value, kind):
     with pytest.raises(UnitError):
         to_si(value, kind)
+
+
+def test_percent_strings_mean_percent():
+    # a key held in percent takes "50 %" as 50 (not as the fraction 0.5); a fraction key takes it as 0.5
+    assert to_si("50 %", "percent") == pytest.approx(50.0)
+    assert to_si("50 percent", "percent") == pytest.approx(50.0)
+    assert to_si(50, "percent") == 50.0
+    assert to_si("50 %", "dimensionless") == pytest.approx(0.5)

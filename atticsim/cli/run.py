@@ -46,6 +46,8 @@ def run(scenario, out, weather, start, end, months, year, solver, overrides, uni
     from atticsim.results.output import write_outputs
     from atticsim.pipeline import simulate
 
+    for w in sc.input_warnings:  # said before a long run too; the summary repeats them
+        click.echo(f"atticsim: warning: {w}", err=True)
     click.echo(f"simulating {sc.house.name} ...", err=True)
     result = simulate(sc, start=start, end=end, months=months, year=year)
     files = write_outputs(out, result_writers(result, units), force=force)

@@ -32,28 +32,34 @@ from atticsim.cli.options import (force_option, out_option, period_options, scen
 @force_option
 @click.option("--starts-limit", metavar="N/h",
               help="Fan starts allowed in any hour [default: 6/h, common practice for small motors].")
+@click.option("--short-cycles-allowed", metavar="N",
+              help="Short cycles a recommended point may have [default: 0].")
 @click.option("--comfort-limit", metavar="TEMP", help="Attic air limit for the degree-hours [default: 38 degC].")
 @click.option("--heat-metric", type=click.Choice(["degree-hours", "ceiling-gain"]),
               help="Heat figure the recommendation minimises [default: degree-hours].")
+@click.option("--heat-tolerance", metavar="PCT",
+              help="Heat figures within this share of the lowest tie, and the gentler setting wins [default: 1%].")
 def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, weather, overrides, workers,
-          scheduler, resume, force, starts_limit, comfort_limit, heat_metric):
+          scheduler, resume, force, starts_limit, short_cycles_allowed, comfort_limit, heat_metric, heat_tolerance):
     """Run SCENARIO (the built-in demo house if omitted) at every point of a study and write the results to --out.
 
     Writes points.csv/points.parquet (every varied value and figure per point), study.json (versions, seed,
-    inputs), journal.jsonl (one line per finished point; --resume continues from it), pareto.csv,
-    recommendation.json and short_cycling_map.png.
+    inputs), journal.jsonl (one line per finished point; --resume continues from it), pareto.csv and
+    pareto.png (heat against fan electricity), recommendation.json (the rule, the chosen point, its runner-up,
+    range edges, warnings) and short_cycling_map.png.
 
     Example: atticsim sweep --vary thermostat.on=36:44:2degC --vary thermostat.hysteresis=1:5:1K
     --start 2025-07-01 --end 2025-07-07 --out hysteresis_study
     """
-    from atticsim.study.spec import Study, load_study_file, parse_comfort_limit, parse_starts_limit, parse_vary
+    from atticsim.study.spec import (Study, load_study_file, parse_comfort_limit, parse_heat_tolerance,
+                                     parse_short_cycles_allowed, parse_starts_limit, parse_vary)
 
     study = load_study_file(study_file) if study_file else Study()
     if scenario:
         study.scenario = str(Path(scenario).resolve())
     study.base_overrides = list(study.base_overrides) + list(overrides)
     if weather:
-        w = weather if weather.startswith("demo:") else str(Path(weather).resolve())
+        w = weather if weather.startswith(("demo:", "pvlib:")) else str(Path(weather).resolve())
         study.base_overrides.append(f'weather.file="{w}"')
     for text in vary:
         axis = parse_vary(text)
@@ -70,6 +76,10 @@ def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, wea
         study.end = end
     if starts_limit is not None:
         study.starts_limit = parse_starts_limit(starts_limit)
+    if short_cycles_allowed is not None:
+        study.short_cycles_allowed = parse_short_cycles_allowed(short_cycles_allowed)
+    if heat_tolerance is not None:
+        study.heat_tolerance = parse_heat_tolerance(heat_tolerance)
     if comfort_limit is not None:
         study.comfort_limit_c = parse_comfort_limit(comfort_limit)
     if heat_metric:

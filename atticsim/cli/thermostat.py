@@ -14,21 +14,37 @@ from atticsim.cli.options import scenario_argument, set_option, units_option
 @set_option
 @click.option("--json", "as_json", is_flag=True, help="Print the figures as JSON.")
 @click.option("--design", is_flag=True, help="Choose the trimmer and feedback resistor for --on/--off.")
-@click.option("--on", "on_", help='Wanted switch-on temperature, e.g. "40degC" (with --design).')
+@click.option("--on", "on_", help='Wanted switch-on temperature, e.g. "40degC" or "104degF" (with --design).')
 @click.option("--off", help='Wanted switch-off temperature (with --design).')
 @click.option("--hysteresis", help='Wanted hysteresis instead of --off, e.g. "5K" (with --design).')
+@click.option("--basis", type=click.Choice(["air", "thermistor"]), default="air", show_default=True,
+              help="With --design: the wanted temperatures are the AIR's around the sensor (its self-heating "
+                   "included) or the thermistor's own.")
 @click.option("--series", type=click.Choice(["E12", "E24", "E96"]), default="E24", show_default=True,
               help="Standard resistor series for the rounded parts.")
+@click.option("--write", "write_to", type=click.Path(dir_okay=False),
+              help="With --design: write SCENARIO with the chosen feedback resistor and trimmer setting to this "
+                   "file, ready to run.")
+@click.option("--force", is_flag=True, help="Overwrite the --write file if it exists.")
 @units_option
-def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, series, units):
+def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis, series, write_to, force, units):
     """Explain SCENARIO's circuit thermostat: the temperatures its parts really switch at (with
     self-heating and tolerances), its LED current and its mains-side supply; or, with --design, the parts
-    that give wanted temperatures."""
+    that give wanted temperatures (of the air by default: the thermistor's own dissipation included)."""
     from atticsim.report.thermostat import design_report, design_text, thermostat_report, thermostat_text
     from atticsim.scenario import load_scenario
     from atticsim.units import to_si
 
+    if write_to and not design:
+        raise click.UsageError("--write needs --design (it writes the parts the design chooses)")
+    if write_to and not force:
+        from pathlib import Path
+
+        if Path(write_to).exists():
+            raise FileExistsError(f"{write_to}: file exists; pass --force to overwrite it")
     sc = load_scenario(scenario, list(overrides))
+    for w in sc.input_warnings:
+        click.echo(f"atticsim: warning: {w}", err=True)
     if sc.thermostat.kind != "circuit":
         from atticsim.scenario.load import ScenarioError
 
@@ -41,8 +57,20 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, serie
         report = design_report(sc, to_si(on_, "temperature"),
                                off_c=to_si(off, "temperature") if off else None,
                                hysteresis_k=to_si(hysteresis, "temperature_difference") if hysteresis else None,
-                               series=series)
-        click.echo(json.dumps(report, indent=2) if as_json else design_text(report))
+                               series=series, basis=basis)
+        click.echo(json.dumps(report, indent=2) if as_json else design_text(report, units))
+        if write_to:
+            from atticsim.scenario.write import ohms, write_scenario
+
+            note = (f"chosen by atticsim thermostat --design for the {basis}: ON {report['wanted_on_c']:.2f} degC, "
+                    f"OFF {report['wanted_off_c']:.2f} degC ({report['series']})")
+            path = write_scenario(scenario, list(overrides),
+                                  {"thermostat.circuit.feedback": ohms(report["feedback_ohm"]),
+                                   "thermostat.circuit.sense_trim": ohms(report["sense_trim_ohm"])},
+                                  write_to, force=force, comment=note)
+            click.echo(f"wrote {path}: the scenario with feedback {report['feedback_ohm']:,.0f} ohm and the trimmer "
+                       f"set to {report['sense_trim_ohm']:,.0f} ohm; run it with: atticsim run {path} --out DIR",
+                       err=True)
     else:
         report = thermostat_report(sc)
         click.echo(json.dumps(report, indent=2) if as_json else thermostat_text(report, units))

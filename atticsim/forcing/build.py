@@ -12,6 +12,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from atticsim.forcing.seasons import day_seasons, room_temperature
 from atticsim.forcing.sky import sky_temperature
 from atticsim.forcing.solar import plane_irradiance, solar_position
 from atticsim.io.weather_frame import data_span
@@ -35,6 +36,8 @@ class Forcing:
         Channel names.
     notes : list of str
         What was decided while building (site used, sky model).
+    seasons : pandas.DataFrame or None
+        The house's season of each local day of the weather (:func:`atticsim.forcing.seasons.day_seasons`).
     """
 
     times: pd.DatetimeIndex
@@ -42,6 +45,7 @@ class Forcing:
     values: np.ndarray
     channels: list[str]
     notes: list[str]
+    seasons: pd.DataFrame | None = None
 
     def seconds(self) -> np.ndarray:
         """Sample instants as seconds from the first sample."""
@@ -232,9 +236,11 @@ def build_forcing(frame: pd.DataFrame, meta, scenario, start=None, end=None, sou
                            albedo=site.ground_albedo, solpos=solpos)
     # station pressure (the weather file's, else the standard atmosphere at the site: atticsim.io fills it)
     pressure = part["pressure"].to_numpy(float)
-    # the rooms below: held at the cooling setpoint
-    temp_room = np.full(len(part), scenario.ceiling.room_temperature)
+    # the rooms below: at the cooling or heating setpoint by the house's season of each local day, decided on
+    # the whole weather file's days (so a day's season does not depend on where the period starts)
+    seasons = day_seasons(frame.index, frame["temp_air"].to_numpy(float), scenario.house)
+    temp_room = room_temperature(part.index, seasons, scenario.house, scenario.ceiling.room_temperature)
     values = np.vstack([temp, t_sky, part["wind_speed"].to_numpy(float), dew, pressure, temp_room, poa])
     channels = (["temp_out", "temp_sky_k", "wind_speed", "temp_dew", "pressure", "temp_room"]
                 + [f"poa_{p.name}" for p in scenario.roof.planes])
-    return Forcing(times=part.index, step=step, values=values, channels=channels, notes=notes)
+    return Forcing(times=part.index, step=step, values=values, channels=channels, notes=notes, seasons=seasons)

@@ -6,6 +6,38 @@ from atticsim.report.cautions import caution_text
 from atticsim.units import IP_FACTORS, c_to_f, k_to_delta_f
 
 
+def season_lines(s: dict, energy, house, ip: bool = False) -> list[str]:
+    """The season books in a few lines: days of each season, what the fan saves while the rooms are cooled,
+    what it adds while they are heated, and the net at the meter (``energy`` formats kWh in the units)."""
+    from atticsim.forcing.seasons import rule_label
+
+    if s.get("net_benefit_kwh") is None:
+        return []
+    def days(k):
+        return f"{k} day" if k == 1 else f"{k} days"
+
+    lines = [f"  seasons: {days(s['days_cooling'])} cooled, {days(s['days_heating'])} heated, "
+             f"{days(s['days_neither'])} neither ({rule_label(house, ip)})"]
+    air = s.get("airflow_model") == "balance"
+    if s["days_cooling"]:
+        lines.append(f"  while cooled: the fan keeps {energy(s['ceiling_heat_kept_out_cooling_kwh'])} of ceiling heat out "
+                     f"of the rooms (saves {s['cooling_savings_kwh']:.2f} kWh of electricity at COP {s['cooling_cop']:g})"
+                     + (f"; the air it draws adds {energy(s['air_heat_added_cooling_kwh'])} (costs "
+                        f"{s['cooling_air_cost_kwh']:.2f} kWh)" if air else ""))
+    if s["days_heating"]:
+        lines.append(f"  while heated: extra heat lost with the fan {energy(s['ceiling_heat_loss_added_heating_kwh'])} "
+                     f"through the ceiling" + (f" and {energy(s['air_heat_loss_added_heating_kwh'])} with the air it "
+                                               f"draws" if air else "")
+                     + f": {s['heating_penalty_kwh']:.2f} kWh of {s['heating_penalty_carrier']} for heating "
+                       f"(efficiency {s['heating_efficiency']:g})")
+    fuel = s["heating_penalty_carrier"] == "fuel" and s["days_heating"]
+    lines.append(f"  net benefit of the fan: {s['net_benefit_kwh']:+.2f} kWh of electricity at the meter (savings"
+                 f"{' - air cost' if air else ''} - fan{' - heating' if not fuel and s['days_heating'] else ''}; "
+                 f"negative = costs more than it saves)"
+                 + (f", and {s['heating_penalty_kwh']:.2f} kWh of fuel besides" if fuel else ""))
+    return lines
+
+
 def summary_text(result, units: str = "si") -> str:
     """A few lines a technician reads at a glance.
 
@@ -39,8 +71,8 @@ def summary_text(result, units: str = "si") -> str:
     lines.append(f"  attic air: max {temp(s['attic_air_max_c'])} ({rise_txt} vs outdoor max), "
                  f"mean {temp(s['attic_air_mean_c'])}; roof deck max {temp(s['deck_max_c'])}")
     gain, nofan = s["ceiling_heat_gain_kwh"], s["ceiling_heat_gain_no_fan_kwh"]
-    saved = f", {energy(nofan - gain)} kept out by the fan" if nofan is not None else ""
-    lines.append(f"  ceiling heat gain: {energy(gain)} with the fan, {energy(nofan)} without{saved}")
+    lines.append(f"  ceiling heat flow into the rooms: {energy(gain)} with the fan, {energy(nofan)} without"
+                 + (" (negative: the rooms lose heat through the ceiling)" if min(gain, nofan or 0.0) < 0 else ""))
     if s.get("airflow_model") == "balance":
         def flow(q):
             return "n/a" if q is None else (f"{q * IP_FACTORS['flow'][0]:.0f} cfm" if ip else f"{q:.3f} m3/s")
@@ -55,9 +87,7 @@ def summary_text(result, units: str = "si") -> str:
                      f"(without the fan {vol(s['conditioned_air_drawn_no_fan_m3'])}), load on the rooms "
                      f"{energy(s['conditioned_air_load_kwh'])}; house depressurised by the fan up to "
                      f"{s['house_depressurisation_max_pa']:.2f} Pa")
-    if s.get("net_benefit_kwh") is not None:
-        lines.append(f"  net benefit of the fan: {s['net_benefit_kwh']:+.2f} kWh of electricity "
-                     f"(cooling COP {sc.house.cooling_cop:g}; negative = costs more than it saves)")
+    lines += season_lines(s, energy, sc.house, ip)
     lines.append(f"  energy books close to {s['energy_balance_error_pct']:.2e} %")
     for w in s.get("warnings", []):
         lines.append(f"  WARNING: {w}")

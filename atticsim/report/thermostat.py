@@ -6,6 +6,23 @@ from __future__ import annotations
 from atticsim.report.cautions import MAINS, caution_text
 
 
+def still_air_rise(scenario):
+    """The sensor's steady self-heating in still air as rise(power [W], air [degC]) -> K, and its description.
+
+    With ``sensor.body`` the body's own conductance in still air (its convection and radiation correlations,
+    :meth:`atticsim.sensor.body.SensorBody.self_heating_rise` at 0 m/s); else P / ``sensor.dissipation_constant``.
+    """
+    sensor = scenario.sensor
+    if sensor.body is not None:
+        from atticsim.sensor.body import preset
+
+        body = preset(sensor.body)
+        return (lambda power, air_c: float(body.self_heating_rise(power, 0.0, air_c)),
+                f"{sensor.body} in still air")
+    delta = sensor.dissipation_constant
+    return (lambda power, air_c: power / delta), f"dissipation constant {delta * 1e3:.2f} mW/K, still air"
+
+
 def thermostat_report(scenario) -> dict:
     """Everything the ``thermostat`` command prints about a circuit thermostat.
 
@@ -25,7 +42,12 @@ def thermostat_report(scenario) -> dict:
     params = th.circuit_params()
     t = th.thresholds()
     delta = scenario.sensor.dissipation_constant
-    on_air, off_air = air_temperatures(t, params, delta)
+    if scenario.sensor.body is None:
+        on_air, off_air = air_temperatures(t, params, delta)
+    else:
+        from atticsim.circuit.design import air_switching
+
+        on_air, off_air = air_switching(t, still_air_rise(scenario)[0])
     tol = tolerance_analysis(params, th.tolerance_spec(), samples=th.tolerances.samples, seed=th.tolerances.seed)
     out = {
         "action": th.action,
@@ -33,7 +55,7 @@ def thermostat_report(scenario) -> dict:
         "thermistor_position": params.position,
         "on_c": t.on_c, "off_c": t.off_c, "hysteresis_k": t.hysteresis_k,
         "on_air_c": float(on_air), "off_air_c": float(off_air),
-        "dissipation_constant_w_per_k": delta,
+        "dissipation_constant_w_per_k": delta, "self_heating_basis": still_air_rise(scenario)[1],
         "on_band_c": list(tol.on_band_c), "off_band_c": list(tol.off_band_c),
         "on_worst_c": list(tol.on_worst_c), "off_worst_c": list(tol.off_worst_c),
         "hysteresis_band_k": list(tol.hysteresis_band_k), "hysteresis_worst_k": list(tol.hysteresis_worst_k),
@@ -76,7 +98,7 @@ def thermostat_text(report: dict, units: str = "si") -> str:
         f"{r['thermistor_position']} position)",
         f"  thermistor switches the fan ON at {t(r['on_c'])} and OFF at {t(r['off_c'])} "
         f"(hysteresis {dt(r['hysteresis_k'])})",
-        f"  with self-heating ({r['dissipation_constant_w_per_k'] * 1e3:.2f} mW/K) the AIR is at {t(r['on_air_c'])} "
+        f"  with self-heating ({r.get('self_heating_basis', '')}) the AIR is at {t(r['on_air_c'])} "
         f"when it switches on and {t(r['off_air_c'])} when it switches off",
         f"  part tolerances: ON within {t(r['on_band_c'][0])} .. {t(r['on_band_c'][1])} (5-95 %), worst case "
         f"{t(r['on_worst_c'][0])} .. {t(r['on_worst_c'][1])}",
@@ -98,43 +120,69 @@ def thermostat_text(report: dict, units: str = "si") -> str:
 
 
 def design_report(scenario, on_c: float, off_c: float | None = None, hysteresis_k: float | None = None,
-                  series: str = "E24") -> dict:
+                  series: str = "E24", basis: str = "air") -> dict:
     """Choose the trimmer setting and feedback resistor for wanted switching temperatures.
 
     The user's other parts (rail, dividers, thermistor, LED) are kept; see
-    :func:`atticsim.circuit.design_circuit` for the rounding rules.
+    :func:`atticsim.circuit.design_circuit` for the rounding rules. With ``basis="air"`` (the default) the
+    wanted temperatures are those of the air around the sensor, its self-heating in still air included
+    (:func:`still_air_rise`); with ``basis="thermistor"`` those of the thermistor itself. Either way the
+    report gives both.
     """
     from atticsim.circuit import design_circuit
 
     th = scenario.thermostat
     if th.kind != "circuit":
         raise ValueError("thermostat: --design needs a circuit thermostat (kind = \"circuit\")")
-    d = design_circuit(th.circuit_params(), on_c, off_c=off_c, hysteresis_k=hysteresis_k, series=series)
-    out = {
+    rise, rise_text = still_air_rise(scenario)
+    d = design_circuit(th.circuit_params(), on_c, off_c=off_c, hysteresis_k=hysteresis_k, series=series,
+                       self_heating=rise, basis=basis)
+    return {
+        "basis": d.basis, "self_heating_basis": rise_text,
         "wanted_on_c": d.wanted_on_c, "wanted_off_c": d.wanted_off_c, "series": d.series,
         "feedback_exact_ohm": d.feedback_exact, "sense_trim_exact_ohm": d.sense_trim_exact,
         "feedback_ohm": d.feedback, "sense_trim_ohm": d.sense_trim,
         "on_c": d.thresholds.on_c, "off_c": d.thresholds.off_c, "hysteresis_k": d.thresholds.hysteresis_k,
+        "on_air_c": d.air_on_c, "off_air_c": d.air_off_c,
+        "sense_power_on_w": d.thresholds.sense_power_on_w, "sense_power_off_w": d.thresholds.sense_power_off_w,
         "sense_trim_fixed_ohm": d.sense_trim_fixed,
         "fixed_on_c": d.thresholds_fixed.on_c if d.thresholds_fixed else None,
         "fixed_off_c": d.thresholds_fixed.off_c if d.thresholds_fixed else None,
+        "fixed_on_air_c": d.fixed_air_on_c, "fixed_off_air_c": d.fixed_air_off_c,
         "findings": list(d.findings), "cautions": [MAINS],
     }
-    return out
 
 
-def design_text(r: dict) -> str:
-    """Terminal text for :func:`design_report`."""
+def design_text(r: dict, units: str = "si") -> str:
+    """Terminal text for :func:`design_report` (temperatures in degC, or degF with ``units="ip"``)."""
+    from atticsim.units import c_to_f, k_to_delta_f
+
+    ip = units == "ip"
+
+    def t(c):
+        return f"{c_to_f(c):.1f} °F" if ip else f"{c:.2f} °C"
+
+    def dt(k):
+        return f"{k_to_delta_f(k):.1f} °F" if ip else f"{k:.2f} K"
+
+    what = "AIR around the sensor" if r["basis"] == "air" else "THERMISTOR itself"
     lines = [
-        f"design for ON at {r['wanted_on_c']:.2f} °C, OFF at {r['wanted_off_c']:.2f} °C ({r['series']} values):",
+        f"design for the {what}: ON at {t(r['wanted_on_c'])}, OFF at {t(r['wanted_off_c'])} ({r['series']} values; "
+        f"self-heating: {r['self_heating_basis']}):",
         f"  feedback resistor: {r['feedback_ohm']:,.0f} ohm (exact {r['feedback_exact_ohm']:,.0f} ohm, rounded down: "
         f"hysteresis at least as wide as asked)",
-        f"  trimmer setting: {r['sense_trim_ohm']:,.0f} ohm -> ON {r['on_c']:.2f} °C, OFF {r['off_c']:.2f} °C "
-        f"(hysteresis {r['hysteresis_k']:.2f} K)",
+        f"  trimmer setting: {r['sense_trim_ohm']:,.0f} ohm -> the AIR switches ON at {t(r['on_air_c'])}, OFF at "
+        f"{t(r['off_air_c'])} (hysteresis {dt(abs(r['on_air_c'] - r['off_air_c']))})",
+        f"    the thermistor itself then switches ON at {t(r['on_c'])}, OFF at {t(r['off_c'])}: its own "
+        f"{r['sense_power_on_w'] * 1e3:.2f} mW warms it above the air",
     ]
     if r["sense_trim_fixed_ohm"] is not None:
-        lines.append(f"  or a fixed {r['sense_trim_fixed_ohm']:,.0f} ohm in place of the trimmer -> ON "
-                     f"{r['fixed_on_c']:.2f} °C, OFF {r['fixed_off_c']:.2f} °C")
-    lines += [f"  - {f}" for f in r["findings"]]
+        lines.append(f"  or a fixed {r['sense_trim_fixed_ohm']:,.0f} ohm in place of the trimmer -> AIR ON "
+                     f"{t(r['fixed_on_air_c'])}, OFF {t(r['fixed_off_air_c'])} (thermistor {t(r['fixed_on_c'])} / "
+                     f"{t(r['fixed_off_c'])})")
+    lines.append(f"  the feedback resistor is rounded down to the series, so the hysteresis is at least as wide as "
+                 f"asked ({dt(abs(r['wanted_on_c'] - r['wanted_off_c']))})")
+    # the design's own notes are said above in the chosen units; the circuit's checks follow
+    lines += [f"  - {f}" for f in r["findings"] if not f.startswith(("feedback ", "designed for the "))]
     lines.append(caution_text())
     return "\n".join(lines)

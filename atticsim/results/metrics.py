@@ -63,6 +63,68 @@ def fan_intervals(events, fan_at_start: bool, t_start: float, t_end: float):
     return intervals
 
 
+def max_starts_in_window(start_times_s, window_s: float = 3600.0) -> int:
+    """Largest number of starts inside any window of the given length (a sliding hour by default).
+
+    Counts starts in [t, t + window) for every start time t; the maximum over all windows is reached by a
+    window that opens at a start (common practice, no source: a motor's "starts per hour" limit applies to
+    any hour, not only clock hours).
+
+    Parameters
+    ----------
+    start_times_s : array_like
+        Fan start instants [s].
+    window_s : float
+        Window length [s], > 0.
+
+    Returns
+    -------
+    int
+    """
+    if not window_s > 0:
+        raise ValueError(f"window_s: must be greater than 0 s (got {window_s!r})")
+    t = np.sort(np.asarray(start_times_s, dtype=float))
+    if t.size == 0:
+        return 0
+    ends = np.searchsorted(t, t + window_s, side="left")
+    return int(np.max(ends - np.arange(t.size)))
+
+
+
+#: Share of complete runs that are short cycles from which a run warns [-] (common practice, no source: one
+#: run in ten shorter than the short-cycle time is already a thermostat that hunts, not an odd event).
+SHORT_CYCLE_WARN_SHARE = 0.10
+
+#: What helps against short-cycling, said after each cycling warning.
+CYCLING_REMEDIES = ("widen the hysteresis (switch-off further from switch-on), move the sensor where the air it "
+                    "reads changes less when the fan starts (sensor.placement), or give the thermostat a minimum "
+                    "run time")
+
+
+def cycling_warnings(summary: dict, starts_limit: float) -> list[str]:
+    """Warnings when the fan short-cycles: any hour over the starts limit, or 10 % or more of the complete
+    runs shorter than the short-cycle time (:data:`SHORT_CYCLE_WARN_SHARE`).
+
+    Parameters
+    ----------
+    summary : dict
+        ``max_starts_per_hour``, ``complete_runs``, ``short_cycles``, ``short_cycle_threshold_min``.
+    starts_limit : float
+        Starts the motor may make in any 60 minutes [1/h].
+    """
+    out = []
+    peak = summary.get("max_starts_per_hour") or 0
+    if peak > starts_limit:
+        out.append(f"The fan starts up to {peak} times in one hour, more than the motor's {starts_limit:g} "
+                   f"(fan.max_starts_per_hour); frequent starts overheat the winding and wear the capacitor: "
+                   f"{CYCLING_REMEDIES}.")
+    runs, short = summary.get("complete_runs") or 0, summary.get("short_cycles") or 0
+    if runs and short / runs >= SHORT_CYCLE_WARN_SHARE:
+        out.append(f"{short} of the {runs} complete fan runs ({100.0 * short / runs:.0f} %) are shorter than "
+                   f"{summary['short_cycle_threshold_min']:g} min (short cycles): {CYCLING_REMEDIES}.")
+    return out
+
+
 def energy_balance_error_pct(capacities, y_start, y_end, books_end, n_nodes) -> float:
     """Closure of the building's energy books [% of gross exchange].
 
@@ -81,6 +143,7 @@ def energy_balance_error_pct(capacities, y_start, y_end, books_end, n_nodes) -> 
 def _cycle_figures(intervals, short_cycle):
     runs = np.array([b - a for a, b, complete in intervals if complete])
     return {
+        "complete_runs": int(runs.size),
         "short_cycles": int(np.sum(runs < short_cycle)) if runs.size else 0,
         "cycle_minutes_median": float(np.median(runs) / 60.0) if runs.size else None,
     }
@@ -149,6 +212,8 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "energy_balance_error_no_fan_pct": (energy_balance_error_pct(
             net.capacities, raw.y_start_nofan, nofan.y_end, nofan.y_end[n:], n) if nofan else None),
         "short_cycle_threshold_min": sim.short_cycle / 60.0,
+        "max_starts_per_hour": max_starts_in_window([t for t, state, _ in run.events if state], 3600.0),
+        "starts_limit_per_hour": scenario.fan.max_starts_per_hour,
         "thermostat_kind": scenario.thermostat.kind,
         "switch_on_sensor_c": raw.controller.on,
         "switch_off_sensor_c": raw.controller.off,
@@ -156,10 +221,18 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "sensor_placement": scenario.sensor.placement,
         **airflow_figures(scenario, raw, air, books, books_nf),
     }
+    parts = season_days(raw, scenario, times)
+    summary.update(season_summary(parts, scenario, summary["fan_energy_kwh"]))
+    summary["warnings"] += season_warnings(summary, scenario)
+    summary["short_cycle_share"] = (summary["short_cycles"] / summary["complete_runs"]
+                                    if summary["complete_runs"] else None)
+    summary["warnings"] = (list(getattr(scenario, "input_warnings", ())) +
+                           cycling_warnings(summary, scenario.fan.max_starts_per_hour) + summary["warnings"])
     notes = list(raw.notes)
     if summary_only:
         return SimulationResult(summary, None, ts, events, notes, scenario, None)
     daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n)
+    daily = _daily_seasons(daily, parts, scenario)
     return SimulationResult(summary, daily, ts, events, notes, scenario, monthly_figures(daily))
 
 
@@ -200,15 +273,19 @@ def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
 
 
 def monthly_figures(daily: pd.DataFrame) -> pd.DataFrame:
-    """Per calendar month: run hours, starts, short cycles, fan kWh, ceiling gain with and without the fan
-    (sums of the days), and the peak attic air temperature (maximum of the days)."""
+    """Per calendar month: run hours, starts, short cycles, fan kWh, ceiling gain with and without the fan,
+    the season books (cooling savings, heating penalty, net benefit and their parts) and the days of each
+    season (sums of the days), and the peak attic air temperature (maximum of the days)."""
     if daily.empty:
         return daily
     month = pd.to_datetime(daily["date"]).dt.strftime("%Y-%m")
     sums = ["fan_run_hours", "fan_starts", "short_cycles", "fan_energy_kwh", "ceiling_heat_gain_kwh",
-            "ceiling_heat_gain_no_fan_kwh"]
+            "ceiling_heat_gain_no_fan_kwh"] + [c for c in SEASON_HEAT + SEASON_ENERGY if c in daily]
     g = daily.groupby(month)
     out = g[sums].sum(min_count=1)
+    if "season" in daily:
+        for code, name in SEASON_NAMES.items():
+            out[f"days_{name}"] = g["season"].apply(lambda x, name=name: int((x == name).sum()))
     out["attic_air_max_c"] = g["attic_air_max_c"].max()
     out["outdoor_air_max_c"] = g["outdoor_air_max_c"].max()
     out["days"] = g.size()
@@ -225,12 +302,8 @@ def held_integral(updates, t_end, name, positive=False):
 
 
 def airflow_figures(scenario, raw, air, books, books_nf):
-    """Airflow summary: fan flow, natural air changes, conditioned air drawn, depressurisation, net benefit.
-
-    ``net_benefit_kwh`` is on the basis of electricity at the meter: (ceiling heat gain avoided minus the
-    extra load of conditioned air drawn from the house) divided by the cooling system's COP
-    (``house.cooling_cop``), minus the fan's electric energy. Positive means the fan saves electricity.
-    """
+    """Airflow summary: fan flow, natural air changes, conditioned air drawn, depressurisation, and the vent
+    and depressurisation checks (the net benefit is the season books': :func:`season_summary`)."""
     from atticsim.airflow import checks
 
     run, period = raw.with_fan, raw.period
@@ -252,12 +325,6 @@ def airflow_figures(scenario, raw, air, books, books_nf):
         "conditioned_air_load_no_fan_kwh": load_nf,
         "house_depressurisation_max_pa": max(depress) if depress else 0.0,
     }
-    if books_nf:
-        avoided = (books_nf["ceiling_gain"] - books["ceiling_gain"]) / J_PER_KWH
-        figures["net_benefit_kwh"] = (avoided - (load - load_nf)) / scenario.house.cooling_cop - \
-            books["fan_electric"] / J_PER_KWH
-    else:
-        figures["net_benefit_kwh"] = None
     warnings = []
     openings = scenario.vents.openings
     if openings:
@@ -272,12 +339,172 @@ def airflow_figures(scenario, raw, air, books, books_nf):
     warnings += checks.check_house_depressurisation(figures["house_depressurisation_max_pa"],
                                                     scenario.house.depressurisation_limit,
                                                     scenario.house.atmospheric_appliances)
-    if figures["net_benefit_kwh"] is not None and figures["net_benefit_kwh"] < 0 and scenario.fan.enabled:
-        warnings.append(f"The fan costs more electricity than it saves over this period "
-                        f"(net benefit {figures['net_benefit_kwh']:.2f} kWh at the meter, "
-                        f"cooling COP {scenario.house.cooling_cop:g}).")
     figures["warnings"] = warnings
     return figures
+
+
+# --- the season books: cooling savings, heating penalty, net benefit ------------------------------------
+
+#: Heat figures of the season books [kWh of heat at the rooms], summed over the days by the sign of each day's
+#: net flow and the day's season. Flows into the rooms are positive (the ceiling gain and the house air books).
+SEASON_HEAT = ("ceiling_heat_kept_out_cooling_kwh", "air_heat_added_cooling_kwh",
+               "ceiling_heat_loss_added_heating_kwh", "air_heat_loss_added_heating_kwh",
+               "uncounted_ceiling_loss_added_cooling_kwh", "uncounted_ceiling_gain_kept_out_heating_kwh")
+#: Energy figures in their carriers [kWh]: electricity at the meter, or the heating's carrier.
+SEASON_ENERGY = ("cooling_savings_kwh", "cooling_air_cost_kwh", "heating_penalty_ceiling_kwh",
+                 "heating_penalty_air_kwh", "heating_penalty_kwh", "net_benefit_kwh")
+SEASON_NAMES = {1: "cooling", 0: "neither", -1: "heating"}
+
+
+def season_days(raw, scenario, times) -> pd.DataFrame | None:
+    """Per local day: its season and its season books [kWh of heat], from the energy books integrated with
+    the states, with and without the fan. None without a no-fan run.
+
+    Each day's net flows are summed first (the ceiling gain; the house air load, sensible + latent, and its
+    sensible part), with (f) and without (n) the fan; then, with pos(x) = max(x, 0) and neg(x) = max(-x, 0):
+
+    - cooling days: ceiling heat kept out pos(ceiling_n) - pos(ceiling_f); air heat added pos(air_f) -
+      pos(air_n); and, not counted, ceiling loss added neg(ceiling_f) - neg(ceiling_n)
+    - heating days: ceiling heat loss added neg(ceiling_f) - neg(ceiling_n); air heat loss added
+      neg(sensible_f) - neg(sensible_n) (the latent part is left out: no humidifier is assumed); and, not
+      counted, ceiling gain kept out pos(ceiling_n) - pos(ceiling_f)
+    - days of neither: nothing (the rooms are neither cooled nor heated)
+
+    A day, not each minute, is the unit (the rooms' heating or cooling makes up the day's net flow: a midday
+    gain on a heated day offsets the night's loss). It also keeps the solver's noise out: the with-fan and
+    no-fan runs differ by some 0.01-0.05 K for weeks after the fan's last switch (different segment grids of
+    the fast solver), a difference that follows the day's cycle; split minute by minute it added some
+    0.01 kWh of heating penalty a day in months the fan never ran (measured on the mixed-humid typical year);
+    a day's sums cancel it.
+    """
+    nofan = raw.without_fan
+    if nofan is None or raw.with_fan.t.size < 2:
+        return None
+    from atticsim.forcing.seasons import COOLING, HEATING, day_seasons, seasons_at
+
+    n = raw.network.n_nodes
+    forcing = raw.forcing
+    seasons = forcing.seasons if getattr(forcing, "seasons", None) is not None else \
+        day_seasons(forcing.times, forcing.values[0], scenario.house)
+
+    def inc(run, book):
+        return np.diff(run.y[n + BOOKS.index(book)]) / J_PER_KWH
+
+    start = pd.DatetimeIndex(times[:-1])
+    flows = pd.DataFrame({
+        "cf": inc(raw.with_fan, "ceiling_gain"), "cn": inc(nofan, "ceiling_gain"),
+        "sf": inc(raw.with_fan, "house_air_sensible"), "sn": inc(nofan, "house_air_sensible"),
+        "lf": inc(raw.with_fan, "house_air_latent"), "ln": inc(nofan, "house_air_latent")}, index=start)
+    d = flows.groupby(start.normalize()).sum()
+    code = seasons_at(d.index, seasons)
+    cool, heat = code == COOLING, code == HEATING
+    af, an = d["sf"] + d["lf"], d["sn"] + d["ln"]
+
+    def pos(x):
+        return np.maximum(x, 0.0)
+
+    def neg(x):
+        return np.maximum(-x, 0.0)
+
+    out = pd.DataFrame({
+        "season": code,
+        "ceiling_heat_kept_out_cooling_kwh": np.where(cool, pos(d["cn"]) - pos(d["cf"]), 0.0),
+        "air_heat_added_cooling_kwh": np.where(cool, pos(af) - pos(an), 0.0),
+        "ceiling_heat_loss_added_heating_kwh": np.where(heat, neg(d["cf"]) - neg(d["cn"]), 0.0),
+        "air_heat_loss_added_heating_kwh": np.where(heat, neg(d["sf"]) - neg(d["sn"]), 0.0),
+        "uncounted_ceiling_loss_added_cooling_kwh": np.where(cool, neg(d["cf"]) - neg(d["cn"]), 0.0),
+        "uncounted_ceiling_gain_kept_out_heating_kwh": np.where(heat, pos(d["cn"]) - pos(d["cf"]), 0.0),
+    }, index=d.index)
+    return out
+
+
+def season_energy(heat: dict, house, fan_energy_kwh: float) -> dict:
+    """Energy figures of the season books from their heat figures [kWh].
+
+    cooling_savings = ceiling heat kept out while cooling / cooling COP [electricity];
+    cooling_air_cost = air heat added while cooling / cooling COP [electricity];
+    heating_penalty = (ceiling heat loss added + air heat loss added while heating) / heating efficiency
+    [the heating's carrier: fuel for a furnace, electricity for resistance heat or a heat pump];
+    net_benefit = cooling_savings - cooling_air_cost - fan energy - heating_penalty when the heating runs on
+    electricity [electricity at the meter; positive: the fan saves] (common practice, no source: each
+    system delivers or removes heat at its efficiency).
+    """
+    cop, eff = house.cooling_cop, house.heating_efficiency
+    out = {
+        "cooling_savings_kwh": heat["ceiling_heat_kept_out_cooling_kwh"] / cop,
+        "cooling_air_cost_kwh": heat["air_heat_added_cooling_kwh"] / cop,
+        "heating_penalty_ceiling_kwh": heat["ceiling_heat_loss_added_heating_kwh"] / eff,
+        "heating_penalty_air_kwh": heat["air_heat_loss_added_heating_kwh"] / eff,
+    }
+    out["heating_penalty_kwh"] = out["heating_penalty_ceiling_kwh"] + out["heating_penalty_air_kwh"]
+    electric_heat = house.heating_energy_carrier == "electricity"
+    out["net_benefit_kwh"] = (out["cooling_savings_kwh"] - out["cooling_air_cost_kwh"] - fan_energy_kwh
+                              - (out["heating_penalty_kwh"] if electric_heat else 0.0))
+    return out
+
+
+def season_summary(parts, scenario, fan_energy_kwh: float) -> dict:
+    """The season books over the whole period, their days and how every figure is converted."""
+    from atticsim.forcing.seasons import rule_text
+
+    house = scenario.house
+    out = {"season_rule": rule_text(house, scenario.ceiling.room_temperature),
+           "cooling_cop": house.cooling_cop, "heating_efficiency": house.heating_efficiency,
+           "heating_penalty_carrier": house.heating_energy_carrier}
+    if parts is None:
+        return {**out, **{k: None for k in SEASON_HEAT + SEASON_ENERGY}}
+    for code, name in SEASON_NAMES.items():
+        out[f"days_{name}"] = int((parts["season"] == code).sum())
+    heat = {k: float(parts[k].sum()) for k in SEASON_HEAT}
+    out.update(heat)
+    out.update(season_energy(heat, house, fan_energy_kwh))
+    carrier = "fuel" if house.heating_energy_carrier == "fuel" else "electricity"
+    out["energy_basis"] = [
+        f"cooling_savings_kwh: electricity = ceiling_heat_kept_out_cooling_kwh / cooling COP {house.cooling_cop:g}",
+        f"cooling_air_cost_kwh: electricity = air_heat_added_cooling_kwh / cooling COP {house.cooling_cop:g}",
+        f"heating_penalty_kwh: {carrier} = (ceiling_heat_loss_added_heating_kwh + air_heat_loss_added_heating_kwh) "
+        f"/ heating efficiency {house.heating_efficiency:g}",
+        "net_benefit_kwh: electricity at the meter = cooling_savings_kwh - cooling_air_cost_kwh - fan_energy_kwh"
+        + (" - heating_penalty_kwh" if carrier == "electricity" else
+           " (the heating penalty is fuel, reported apart and not added)"),
+        "by season and sign, day by day: on a cooled day only a net flow into the rooms counts, on a heated day "
+        "only a net flow out of them; the opposite flows are given as uncounted_... figures",
+    ]
+    return out
+
+
+def season_warnings(summary: dict, scenario) -> list[str]:
+    """Warnings from the season books: the fan costs more electricity than it saves; it adds heating."""
+    out = []
+    if not scenario.fan.enabled or summary.get("net_benefit_kwh") is None:
+        return out
+    net, pen = summary["net_benefit_kwh"], summary.get("heating_penalty_kwh") or 0.0
+    fuel = summary["heating_penalty_carrier"] == "fuel"
+    if net < 0:
+        extra = (f", and it adds {pen:.2f} kWh of fuel for heating" if fuel and pen >= 0.005 else "")
+        out.append(f"The fan costs more electricity than it saves over this period (net benefit {net:.2f} kWh at "
+                   f"the meter, cooling COP {scenario.house.cooling_cop:g}{extra}); a lower-flow fan, a higher "
+                   f"switch-on temperature or more ceiling insulation changes the balance.")
+    if pen >= 0.005 and summary.get("days_heating"):
+        out.append(f"In the heating season the fan adds {pen:.2f} kWh of {summary['heating_penalty_carrier']} for "
+                   f"heating (heat drawn out through the ceiling and with the air it pulls from the house): "
+                   f"switch it off for the winter.")
+    return out
+
+
+def _daily_seasons(daily: pd.DataFrame, parts, scenario) -> pd.DataFrame:
+    """The daily table with each day's season and its season books (:func:`season_days`)."""
+    if parts is None or daily.empty:
+        return daily
+    sums = parts[list(SEASON_HEAT)].copy()
+    sums["season"] = parts["season"].map(SEASON_NAMES)
+    sums.index = [d.date().isoformat() for d in sums.index]
+    daily = daily.join(sums, on="date")
+    energy = season_energy({k: daily[k] for k in SEASON_HEAT}, scenario.house, daily["fan_energy_kwh"])
+    for k, v in energy.items():
+        daily[k] = v
+    cols = ["date", "season"] + [c for c in daily.columns if c not in ("date", "season")]
+    return daily[cols]
 
 
 def _daily(ts, run, nofan, intervals, forcing, period, short_cycle, n):

@@ -124,6 +124,10 @@ def scenario_from_dict(data: dict, source: str, base_dir: Path | None = None) ->
     if base_dir is not None and not wfile.startswith(("demo:", "pvlib:")) and not Path(wfile).is_absolute():
         weather = scenario.weather.model_copy(update={"file": str((base_dir / wfile).resolve())})
         scenario = scenario.model_copy(update={"weather": weather})
+    from atticsim.scenario.plausibility import plausibility_warnings
+
+    # kept on the scenario (not part of its content): the run's summary, the terminal and studies list them
+    scenario._input_warnings = tuple(plausibility_warnings(scenario, data))
     return scenario
 
 
@@ -153,7 +157,8 @@ def load_scenario(path: str | Path | None = None, overrides=()) -> Scenario:
     Returns
     -------
     Scenario
-        The validated scenario, all quantities in SI.
+        The validated scenario, all quantities in SI; ``scenario.input_warnings`` lists what validates but
+        looks wrong (:func:`atticsim.scenario.plausibility.plausibility_warnings`).
     """
     if path is None:
         text = resources.files("atticsim.data").joinpath("demo_house.toml").read_text()

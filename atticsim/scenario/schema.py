@@ -11,7 +11,7 @@ from typing import Annotated, Literal, Union
 
 import numpy as np
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, model_validator
+from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, PrivateAttr, model_validator
 
 from atticsim.materials import COVERING_FINISHES, MATERIALS
 from atticsim.scenario.thermostat import CircuitThermostat, SetpointThermostat
@@ -42,8 +42,35 @@ RValue = Annotated[float, _q("r_value")]
 Conductance = Annotated[float, _q("conductance")]
 Pressure = Annotated[float, _q("pressure")]
 Fraction = Annotated[float, _q("dimensionless")]
+Percent = Annotated[float, _q("percent")]
 # TOML dates (2025-07-01) and date-times arrive as date objects; keep them as ISO text.
 DateText = Annotated[str, BeforeValidator(lambda v: v.isoformat() if hasattr(v, "isoformat") else v)]
+
+
+_MONTHS = ("jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep", "oct", "nov", "dec")
+
+
+def month_set(text: str, where: str = "months") -> frozenset:
+    """The months (1-12) of a text such as ``"may-sep"``, ``"nov-mar"`` (wrapping the year end), ``"7"``,
+    ``"july"`` or a comma list of those (``"dec-feb, jul"``); an empty text is no month."""
+    def month(m):
+        m = m.strip().lower()
+        if m.isdigit() and 1 <= int(m) <= 12:
+            return int(m)
+        if m[:3] in _MONTHS and (len(m) == 3 or m in ("january", "february", "march", "april", "june", "july",
+                                                          "august", "september", "october", "november",
+                                                          "december", "sept")):
+            return _MONTHS.index(m[:3]) + 1
+        raise ValueError(f"{where}: {text!r} is not a month range such as may-sep (months jan..dec or 1..12)")
+
+    out = set()
+    for item in filter(None, (part.strip() for part in str(text).split(","))):
+        ends = item.split("-")
+        if len(ends) > 2 or not all(e.strip() for e in ends):
+            raise ValueError(f"{where}: {text!r} is not a month range such as may-sep")
+        a, b = month(ends[0]), month(ends[-1])
+        out.update(range(a, b + 1) if a <= b else [*range(a, 13), *range(1, b + 1)])
+    return frozenset(out)
 
 
 class _Model(BaseModel):
@@ -63,7 +90,40 @@ class House(_Model):
     depressurisation_limit: Pressure = Field(5.0, gt=0.0, description="Pa; warn above this")
     cooling_cop: float = Field(3.0, gt=0.5, le=10.0,
                                description="cooling system COP, W of heat removed per W electric")
-    indoor_relative_humidity: Fraction = Field(50.0, ge=0.0, le=100.0, description="% in the rooms")
+    indoor_relative_humidity: Percent = Field(50.0, ge=0.0, le=100.0, description="% in the rooms")
+    heating_setpoint: Temperature = Field(20.0, ge=5.0, le=30.0,
+                                          description="degC, the rooms' temperature in the heating season")
+    heating_efficiency: float = Field(
+        0.8, gt=0.3, le=6.0, description="furnace efficiency (0.8: heat per unit of fuel) or heat-pump COP")
+    heating_carrier: Literal["fuel", "electricity"] | None = Field(
+        None, description="what the heating burns; default: fuel below efficiency 1, electricity from 1")
+    season_rule: Literal["balance-point", "months"] = Field(
+        "balance-point", description="how each day's season is decided (atticsim.forcing.seasons)")
+    heating_balance_point: Temperature = Field(
+        18.3, ge=-10.0, le=30.0, description="degC; a day whose mean outdoor air is below it is heated")
+    cooling_balance_point: Temperature = Field(
+        18.3, ge=-10.0, le=35.0, description="degC; a day whose mean outdoor air is above it is cooled")
+    cooling_months: str = Field("may-sep", description="month range of the cooling season (season_rule months)")
+    heating_months: str = Field("nov-mar", description="month range of the heating season (season_rule months)")
+
+    @model_validator(mode="after")
+    def _seasons(self):
+        if self.heating_balance_point > self.cooling_balance_point:
+            raise ValueError(f"heating_balance_point ({self.heating_balance_point:g} degC) must not be above "
+                             f"cooling_balance_point ({self.cooling_balance_point:g} degC)")
+        cooling = month_set(self.cooling_months, "cooling_months")
+        heating = month_set(self.heating_months, "heating_months")
+        if cooling & heating:
+            raise ValueError(f"cooling_months and heating_months share month(s) {sorted(cooling & heating)}")
+        return self
+
+    @property
+    def heating_energy_carrier(self) -> str:
+        """What the heating system draws: the given carrier, else fuel for an efficiency below 1 (a furnace)
+        and electricity from 1 up (electric resistance at 1, a heat pump's COP above)."""
+        if self.heating_carrier is not None:
+            return self.heating_carrier
+        return "fuel" if self.heating_efficiency < 1.0 else "electricity"
 
 
 class Site(_Model):
@@ -239,6 +299,8 @@ class Fan(_Model):
     kind: Literal["gable", "roof-vent", "ridge"] = "gable"
     idle_area: Area = Field(0.0, ge=0.0, description="m2 free area through the stopped fan")
     diameter: Length = Field(0.36, gt=0.0, description="m, fan opening (sets the exhaust stream speed)")
+    max_starts_per_hour: float = Field(
+        6.0, gt=0.0, le=120.0, description="starts the motor may make in any 60 minutes (warn above)")
 
     @model_validator(mode="after")
     def _curve(self):
@@ -299,7 +361,19 @@ class Simulation(_Model):
 
 
 class Scenario(_Model):
-    """A complete scenario."""
+    """A complete scenario.
+
+    ``input_warnings`` holds what :func:`atticsim.scenario.load.load_scenario` found plausible but
+    suspicious in the input (a bare number that looks like an IP value, a fan far from the trade's sizing);
+    it is not part of the scenario's content (not dumped, not hashed).
+    """
+
+    _input_warnings: tuple = PrivateAttr(default=())
+
+    @property
+    def input_warnings(self) -> tuple:
+        """Plausibility warnings found when the scenario was loaded (plain sentences)."""
+        return self._input_warnings
 
     @model_validator(mode="after")
     def _airflow_needs(self):

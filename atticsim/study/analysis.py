@@ -10,15 +10,42 @@ import math
 
 import numpy as np
 
+from atticsim.results.metrics import max_starts_in_window  # noqa: F401 (part of this module's interface)
+
 #: Cooling COP used to turn avoided ceiling heat gain into avoided air-conditioner electricity when the
 #: scenario does not give ``house.cooling_cop`` [W heat / W electric]. A typical residential air
 #: conditioner (common practice, no source; from memory: SEER 10-13 units run at COP ~3-3.8).
 DEFAULT_COOLING_COP = 3.0
 
-#: The recommendation rule, printed and written to recommendation.json.
-RULE = ("Among points whose fan never starts more than the limit in any 60-minute window, take those with "
-        "the lowest heat figure (values within 1 % or 0.01 of the lowest count as equal); among them the "
-        "narrowest hysteresis, then the fewest starts, then the least fan energy, then the lowest point number.")
+#: Heat figures closer than this to the lowest always tie, in the figure's own unit (K*h or kWh): below it a
+#: difference is numerical noise, not a property of the setting (common practice, no source).
+HEAT_ABS_TOLERANCE = 0.01
+
+#: How each objective is named for people (axis labels, recommendation.json).
+OBJECTIVE_NAMES = {
+    "degree_hours_above_limit": "attic degree-hours above the comfort limit [K*h]",
+    "ceiling_heat_gain_kwh": "ceiling heat gain into the rooms [kWh]",
+    "fan_energy_kwh": "fan electricity [kWh]",
+    "starts_per_day": "fan starts per day",
+}
+
+
+def rule_text(starts_limit: float, short_cycles_allowed: int, heat_column: str, rel_tol: float,
+              abs_tol: float = HEAT_ABS_TOLERANCE) -> str:
+    """The recommendation rule in words, with its numbers, precise enough to apply by hand to points.csv."""
+    return (f"1. A point qualifies when it finished, its fan never starts more than {starts_limit:g} times in any "
+            f"60-minute window (max_starts_per_hour <= {starts_limit:g}) and it has at most {short_cycles_allowed} "
+            f"short cycles (short_cycles <= {short_cycles_allowed}: complete runs shorter than the scenario's "
+            f"simulation.short_cycle). 2. Among the qualifying points, every point whose {heat_column} is within "
+            f"max({abs_tol:g}, {100.0 * rel_tol:g} % of the lowest) of the lowest qualifying {heat_column} ties "
+            f"with it. 3. Of the tied points, the gentlest setting is chosen: the fewest fan starts (fan_starts), "
+            f"then the widest hysteresis (hysteresis_k), then the least fan energy (fan_energy_kwh), then the "
+            f"lowest point number. The runner-up is the point the same rule chooses when the chosen point is "
+            f"left out.")
+
+
+#: The rule with its default numbers (6 starts an hour, no short cycles, degree-hours within 1 %).
+RULE = rule_text(6.0, 0, "degree_hours_above_limit", 0.01)
 
 
 def degree_hours_above(temps_c, hours, limit_c: float) -> float:
@@ -63,33 +90,6 @@ def degree_hours_above(temps_c, hours, limit_c: float) -> float:
         tri = 0.5 * np.maximum(x0, x1) ** 2 * dt / np.abs(x1 - x0)
     area = np.where(cross, tri, area)
     return float(np.sum(area))
-
-
-def max_starts_in_window(start_times_s, window_s: float = 3600.0) -> int:
-    """Largest number of starts inside any window of the given length (a sliding hour by default).
-
-    Counts starts in [t, t + window) for every start time t; the maximum over all windows is reached by a
-    window that opens at a start (common practice, no source: a motor's "starts per hour" limit applies to
-    any hour, not only clock hours).
-
-    Parameters
-    ----------
-    start_times_s : array_like
-        Fan start instants [s].
-    window_s : float
-        Window length [s], > 0.
-
-    Returns
-    -------
-    int
-    """
-    if not window_s > 0:
-        raise ValueError(f"window_s: must be greater than 0 s (got {window_s!r})")
-    t = np.sort(np.asarray(start_times_s, dtype=float))
-    if t.size == 0:
-        return 0
-    ends = np.searchsorted(t, t + window_s, side="left")
-    return int(np.max(ends - np.arange(t.size)))
 
 
 def net_benefit_kwh(summary: dict, cop: float = DEFAULT_COOLING_COP) -> float:
@@ -156,71 +156,169 @@ def pareto_mask(objectives) -> np.ndarray:
 
 
 def pareto_columns(heat_column: str) -> list[str]:
-    """The objective columns of the Pareto set: starts per day, the heat figure and the fan energy."""
-    return ["starts_per_day", heat_column, "fan_energy_kwh"]
+    """The objectives of the Pareto front, both minimised: the heat figure and the fan's electricity (what a
+    cooler attic costs). Starts and short cycles are not traded: the front is drawn over qualifying points."""
+    return [heat_column, "fan_energy_kwh"]
 
 
-def recommend(table, starts_limit: float, heat_column: str, rel_tol: float = 0.01, abs_tol: float = 0.01):
-    """Pick one point by the rule :data:`RULE`.
+def qualifying(table, starts_limit: float, short_cycles_allowed: int, heat_column: str):
+    """Boolean mask of the points that qualify for the recommendation (step 1 of :func:`rule_text`)."""
+    import pandas as pd
+
+    def num(name):
+        return pd.to_numeric(table[name], errors="coerce") if name in table else pd.Series(np.nan, index=table.index)
+
+    heat, starts, short = num(heat_column), num("max_starts_per_hour"), num("short_cycles")
+    return ((table["status"] == "ok") & (starts <= starts_limit) & (short <= short_cycles_allowed)
+            & np.isfinite(heat)).to_numpy()
+
+
+def _choose(table, mask, heat_column, rel_tol, abs_tol):
+    """Steps 2 and 3 of the rule over the rows in ``mask``: (chosen index label, tied count, lowest heat)."""
+    import pandas as pd
+
+    rows = table[mask]
+    h = pd.to_numeric(rows[heat_column])
+    best = float(h.min())
+    tied = rows[h <= best + max(abs_tol, rel_tol * abs(best))]
+    hyst = pd.to_numeric(tied["hysteresis_k"], errors="coerce") if "hysteresis_k" in tied else \
+        pd.Series(np.nan, index=tied.index)
+    order = pd.DataFrame({
+        "starts": pd.to_numeric(tied["fan_starts"]), "hyst": -hyst.fillna(0.0),
+        "energy": pd.to_numeric(tied["fan_energy_kwh"]), "point": tied["point"]}, index=tied.index)
+    chosen = order.sort_values(["starts", "hyst", "energy", "point"], kind="mergesort").index[0]
+    return chosen, len(tied), best
+
+
+def recommend(table, starts_limit: float, heat_column: str, short_cycles_allowed: int = 0, rel_tol: float = 0.01,
+              abs_tol: float = HEAT_ABS_TOLERANCE):
+    """Pick one point, and a runner-up, by the rule :func:`rule_text`.
 
     Parameters
     ----------
     table : pandas.DataFrame
-        The points table (columns ``point``, ``status``, ``max_starts_per_hour``, ``hysteresis_k``,
-        ``fan_starts``, ``fan_energy_kwh`` and ``heat_column``).
+        The points table (columns ``point``, ``status``, ``max_starts_per_hour``, ``short_cycles``,
+        ``hysteresis_k``, ``fan_starts``, ``fan_energy_kwh`` and ``heat_column``).
     starts_limit : float
         Allowed starts in any hour [1/h].
     heat_column : str
         Column minimised (``degree_hours_above_limit`` [K*h] or ``ceiling_heat_gain_kwh`` [kWh]).
+    short_cycles_allowed : int
+        Short cycles a qualifying point may have.
     rel_tol, abs_tol : float
-        Heat figures within ``max(abs_tol, rel_tol * |best|)`` of the lowest count as equal.
+        Heat figures within ``max(abs_tol, rel_tol * |lowest|)`` of the lowest qualifying figure tie.
 
     Returns
     -------
     dict
-        ``point`` (the row's ``point`` number, or None when no point respects the limit), ``reason``,
-        ``candidates`` (number of points within the limit) and ``rule``.
+        ``point`` and ``runner_up`` (point numbers, or None), ``reason``, ``candidates`` (qualifying points),
+        ``tied``, ``rule`` and the rule's numbers.
     """
     import pandas as pd
 
-    ok = table[(table["status"] == "ok")]
-    heat = pd.to_numeric(ok[heat_column], errors="coerce")
-    starts = pd.to_numeric(ok["max_starts_per_hour"], errors="coerce")
-    within = ok[(starts <= starts_limit) & np.isfinite(heat)]
-    out = {"rule": RULE, "starts_limit_per_hour": starts_limit, "heat_column": heat_column,
-           "candidates": int(len(within))}
-    if within.empty:
+    mask = qualifying(table, starts_limit, short_cycles_allowed, heat_column)
+    out = {"rule": rule_text(starts_limit, short_cycles_allowed, heat_column, rel_tol, abs_tol),
+           "starts_limit_per_hour": starts_limit, "short_cycles_allowed": short_cycles_allowed,
+           "heat_column": heat_column, "heat_tolerance": rel_tol, "heat_tolerance_abs": abs_tol,
+           "candidates": int(mask.sum()), "runner_up": None}
+    ok = table[table["status"] == "ok"]
+    if not mask.any():
         if ok.empty:
             out.update(point=None, reason="no point finished without error")
-        else:
-            worst = ok.loc[starts.idxmin()] if starts.notna().any() else ok.iloc[0]
-            out.update(point=None, reason=(
-                f"no point keeps within {starts_limit:g} starts per hour; the fewest is point "
-                f"{int(worst['point'])} with {worst['max_starts_per_hour']} starts in one hour"))
+            return out
+        starts = pd.to_numeric(ok["max_starts_per_hour"], errors="coerce")
+        short = pd.to_numeric(ok["short_cycles"], errors="coerce") if "short_cycles" in ok else starts * np.nan
+        gentlest = ok.loc[(starts.fillna(np.inf) * 1e6 + short.fillna(np.inf)).idxmin()]
+        out.update(point=None, reason=(
+            f"no point keeps within {starts_limit:g} starts per hour with at most {short_cycles_allowed} short "
+            f"cycles; the gentlest is point {int(gentlest['point'])} with {gentlest['max_starts_per_hour']:g} starts "
+            f"in one hour and {gentlest.get('short_cycles', float('nan')):g} short cycles: widen the hysteresis "
+            f"range, or allow more short cycles (--short-cycles-allowed)"))
         return out
-    h = pd.to_numeric(within[heat_column])
-    best = float(h.min())
-    tied = within[h <= best + max(abs_tol, rel_tol * abs(best))]
-    hyst = pd.to_numeric(tied.get("hysteresis_k", pd.Series(np.nan, index=tied.index)), errors="coerce")
-    order = pd.DataFrame({
-        "hyst": hyst.fillna(np.inf), "starts": pd.to_numeric(tied["fan_starts"]),
-        "energy": pd.to_numeric(tied["fan_energy_kwh"]), "point": tied["point"]}, index=tied.index)
-    chosen = order.sort_values(["hyst", "starts", "energy", "point"], kind="mergesort").index[0]
-    out.update(point=int(table.loc[chosen, "point"]),
-               reason=f"{len(within)} of {len(table)} points keep within {starts_limit:g} starts per hour; "
-                      f"{len(tied)} share the lowest {heat_column} ({best:.4g})")
+    chosen, n_tied, best = _choose(table, mask, heat_column, rel_tol, abs_tol)
+    out["point"] = int(table.loc[chosen, "point"])
+    out["tied"] = n_tied
+    rest = mask & (table.index != chosen)
+    if rest.any():
+        out["runner_up"] = int(table.loc[_choose(table, rest, heat_column, rel_tol, abs_tol)[0], "point"])
+    n_limit = int(((table["status"] == "ok") & (pd.to_numeric(table["max_starts_per_hour"], errors="coerce")
+                                                 <= starts_limit)).sum())
+    out["reason"] = (f"{n_limit} of {len(table)} points keep within {starts_limit:g} starts per hour, "
+                     f"{int(mask.sum())} of them with {'no' if short_cycles_allowed == 0 else f'at most {short_cycles_allowed}'} "
+                     f"short cycles; {n_tied} of those "
+                     f"tie on {heat_column} (lowest {best:.4g}, tolerance "
+                     f"{max(abs_tol, rel_tol * abs(best)):.3g}); the gentlest of them is chosen")
     return out
 
 
-def recommendation_text(rec: dict, table, axes_keys: list[str]) -> str:
-    """A few lines for the terminal describing the recommended point."""
+def edges(table, point: int, axes, sampled: bool = False) -> list[dict]:
+    """The varied numeric keys whose value at ``point`` is the lowest or highest the study tried.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The points table (a column per varied key, in SI).
+    point : int
+        The chosen point.
+    axes : list of Axis
+        The study's axes (for the unit and step of the advice).
+    sampled : bool
+        The points were drawn from the ranges (Latin hypercube), not laid on their grid.
+
+    Returns
+    -------
+    list of dict
+        ``key``, ``side`` ("lowest" or "highest"), ``value`` (as given) and ``advice`` (one sentence).
+    """
+    import pandas as pd
+
+    out = []
+    row = table[table["point"] == point].iloc[0]
+    for ax in axes:
+        if ax.key not in table:
+            continue
+        values = pd.to_numeric(table[ax.key], errors="coerce")
+        v = pd.to_numeric(pd.Series([row[ax.key]]), errors="coerce").iloc[0]
+        if values.notna().sum() < 2 or values.nunique() < 2 or not np.isfinite(v):
+            continue
+        lo, hi = float(values.min()), float(values.max())
+        side = "lowest" if v <= lo else "highest" if v >= hi else None
+        if side is None:
+            continue
+        given = row.get(f"{ax.key}_given", v)
+        way = "below" if side == "lowest" else "above"
+        unit = f" {ax.unit}" if ax.unit else ""
+        nxt = ""
+        numbers = [x.number for x in ax.values if x.number is not None]
+        if ax.step is not None and numbers:
+            edge = min(numbers) if side == "lowest" else max(numbers)
+            beyond = edge - abs(ax.step) if side == "lowest" else edge + abs(ax.step)
+            if not (min(numbers) > 0.0 >= beyond):  # no zero or negative widths, flows or ratios
+                nxt = f" (next: {beyond:g}{unit})"
+        advice = (f"{ax.key} = {given} is the {side} value the study tried: the best setting may lie {way} it; "
+                  f"widen the range {way} {given}{nxt} and run the study again.")
+        if ax.is_range and (sampled or ax.step is None):  # a sampled range: the end itself may not have been tried
+            end = min(ax.start, ax.stop) if side == "lowest" else max(ax.start, ax.stop)
+            advice = (f"{ax.key} = {given} is the {side} value the study sampled (the range ends at {end:g}{unit}): "
+                      f"the best setting may lie {way} it; add points near {end:g}{unit} or widen the range {way} it.")
+        out.append({"key": ax.key, "side": side, "value": given, "advice": advice})
+    return out
+
+
+def recommendation_text(rec: dict, table, axes_keys: list[str], units: str = "si") -> str:
+    """A few lines for the terminal describing the recommended point, its runner-up and the range's edges."""
     lines = []
     if rec.get("point") is None:
         lines.append(f"recommendation: none - {rec['reason']}")
+        lines += [f"  WARNING: {w}" for w in rec.get("warnings", [])]
         return "\n".join(lines)
-    row = table[table["point"] == rec["point"]].iloc[0]
-    given = ", ".join(f"{k} = {row.get(k + '_given', row.get(k))}" for k in axes_keys)
-    lines.append(f"recommended point {rec['point']}: {given}")
+
+    def given(point):
+        row = table[table["point"] == point].iloc[0]
+        return row, ", ".join(f"{k} = {row.get(k + '_given', row.get(k))}" for k in axes_keys)
+
+    row, text = given(rec["point"])
+    lines.append(f"recommended point {rec['point']}: {text}")
     parts = rec.get("circuit_parts")
     if parts:
         fixed = (f"; or a fixed {parts['sense_trim_fixed_ohm']:,.0f} ohm -> ON {parts['fixed_on_c']:.2f} degC"
@@ -229,19 +327,34 @@ def recommendation_text(rec: dict, table, axes_keys: list[str]) -> str:
                      f"to {parts['sense_trim_ohm']:,.0f} ohm -> ON {parts['realised_on_c']:.2f} degC, OFF "
                      f"{parts['realised_off_c']:.2f} degC{fixed}")
 
-    def f(name, fmt, unit):
-        v = row.get(name)
+    def f(r, name, fmt, unit):
+        v = r.get(name)
         try:
             return f"{float(v):{fmt}} {unit}".rstrip()
         except (TypeError, ValueError):
             return "n/a"
 
-    lines.append(f"  starts {f('starts_per_day', '.1f', 'per day')}, at most {f('max_starts_per_hour', '.0f', '')} "
-                 f"in any hour (limit {rec['starts_limit_per_hour']:g}); short cycles {f('short_cycles', '.0f', '')}")
-    lines.append(f"  fan {f('fan_run_hours', '.1f', 'h')}, {f('fan_energy_kwh', '.2f', 'kWh')}; attic peak "
-                 f"{f('attic_air_max_c', '.1f', 'degC')}, {f('degree_hours_above_limit', '.1f', 'K*h')} above the "
-                 f"comfort limit; net benefit {f('net_benefit_kwh', '.2f', 'kWh')}")
+    ip = units == "ip"
+    peak = (f"{float(row['attic_air_max_c']) * 9 / 5 + 32:.1f} degF" if ip and row.get("attic_air_max_c") is not None
+            else f(row, 'attic_air_max_c', '.1f', 'degC'))
+    lines.append(f"  starts {f(row, 'starts_per_day', '.1f', 'per day')}, at most "
+                 f"{f(row, 'max_starts_per_hour', '.0f', '')} in any hour (limit {rec['starts_limit_per_hour']:g}); "
+                 f"short cycles {f(row, 'short_cycles', '.0f', '')} (allowed {rec.get('short_cycles_allowed', 0)})")
+    lines.append(f"  fan {f(row, 'fan_run_hours', '.1f', 'h')}, {f(row, 'fan_energy_kwh', '.2f', 'kWh')}; attic peak "
+                 f"{peak}, {f(row, 'degree_hours_above_limit', '.1f', 'K*h')} above the comfort limit; net benefit "
+                 f"{f(row, 'net_benefit_kwh', '.2f', 'kWh')}")
     lines.append(f"  why: {rec['reason']}")
+    runner_up = rec.get("runner_up")
+    runner_up = runner_up.get("point") if isinstance(runner_up, dict) else runner_up
+    if runner_up is not None:
+        r2, text2 = given(runner_up)
+        lines.append(f"  runner-up point {runner_up}: {text2} ({f(r2, 'fan_starts', '.0f', 'starts')}, "
+                     f"{f(r2, 'short_cycles', '.0f', 'short cycles')}, {f(r2, rec['heat_column'], '.4g', '')} "
+                     f"{rec['heat_column']}, {f(r2, 'fan_energy_kwh', '.2f', 'kWh')})")
+    for e in rec.get("edges", []):
+        lines.append(f"  EDGE: {e['advice']}")
+    for w in rec.get("warnings", []):
+        lines.append(f"  WARNING: {w}")
     return "\n".join(lines)
 
 

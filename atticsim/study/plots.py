@@ -1,5 +1,6 @@
-"""The short-cycling map: heatmaps of a study over a one- or two-key grid (e.g. switch-on temperature x
-hysteresis) with the cells that break the starts-per-hour limit hatched (matplotlib, drawn off-screen)."""
+"""A study's figures (matplotlib, drawn off-screen): the short-cycling map, heatmaps over a one- or two-key
+grid (e.g. switch-on temperature x hysteresis) with the cells that break the starts-per-hour limit hatched;
+and the Pareto front of the heat figure against the fan's electricity."""
 
 from __future__ import annotations
 
@@ -125,4 +126,68 @@ def short_cycling_map(table, keys: list[str], path: str | Path, starts_limit: fl
     fig.suptitle("Short-cycling map", fontsize=11)
     from atticsim.report.plots import save_figure
 
+    save_figure(fig, path)
+
+
+def pareto_figure(table, eligible, front, columns, path, rec) -> None:
+    """Draw the Pareto front of a study to a PNG: every finished point by its heat figure against its fan
+    electricity, the points that break the starts limit or short-cycle marked apart, the front joined, the
+    recommended point and the runner-up outlined.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The points table.
+    eligible, front : numpy.ndarray of bool
+        Which rows qualify (step 1 of the rule) and which of those are on the front.
+    columns : list of str
+        The two objectives: the heat figure (y) and the fan energy (x).
+    path : str or Path
+        PNG file to write.
+    rec : dict
+        The recommendation (``point``, ``runner_up``, ``starts_limit_per_hour``, ``short_cycles_allowed``).
+    """
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from matplotlib.figure import Figure
+
+    from atticsim.report.plots import save_figure
+    from atticsim.study.analysis import OBJECTIVE_NAMES
+
+    heat_col, energy_col = columns
+    ok = (table["status"] == "ok").to_numpy()
+    x = np.asarray(table[energy_col], dtype=float)
+    y = np.asarray(table[heat_col], dtype=float)
+    fig = Figure(figsize=(7.5, 5.2), layout="constrained")
+    ax = fig.subplots()
+    other = ok & ~eligible
+    ax.scatter(x[other], y[other], marker="x", color="0.6", s=22,
+               label=f"breaks the limits (> {rec['starts_limit_per_hour']:g} starts in an hour or "
+                     f"> {rec.get('short_cycles_allowed', 0)} short cycles)")
+    ax.scatter(x[eligible & ~front], y[eligible & ~front], color="#4a7ab5", s=22, label="qualifies")
+    order = np.argsort(x[front], kind="mergesort")
+    fx, fy = x[front][order], y[front][order]
+    if fx.size:
+        ax.step(fx, fy, where="post", color="#d9822b", lw=1.2, zorder=2)
+        ax.scatter(fx, fy, color="#d9822b", s=36, zorder=3, label="Pareto front (no qualifying point is better "
+                                                                   "in both)")
+        if fx.size <= 15:
+            for px, py, n in zip(fx, fy, table["point"].to_numpy()[front][order]):
+                ax.annotate(f"{n}", (px, py), textcoords="offset points", xytext=(4, 5), fontsize=7, color="#8a4a10")
+    points = table["point"].to_numpy()
+    for key, style, label in (("point", dict(marker="*", s=260, facecolors="none", edgecolors="#00a000", lw=1.8),
+                               "recommended"),
+                              ("runner_up", dict(marker="s", s=110, facecolors="none", edgecolors="#7a3fa0", lw=1.5),
+                               "runner-up")):
+        p = rec.get(key)
+        p = p.get("point") if isinstance(p, dict) else p
+        if p is not None and p in set(points):
+            k = int(np.flatnonzero(points == p)[0])
+            ax.scatter([x[k]], [y[k]], zorder=4, label=f"{label} (point {p})", **style)
+    ax.set_xlabel(OBJECTIVE_NAMES.get(energy_col, energy_col) + " (minimise)")
+    ax.set_ylabel(OBJECTIVE_NAMES.get(heat_col, heat_col) + " (minimise)")
+    ax.set_title("Study points: attic heat against fan electricity", fontsize=11)
+    ax.grid(True, color="0.9")
+    ax.legend(fontsize=7, loc="upper right", frameon=False)
     save_figure(fig, path)

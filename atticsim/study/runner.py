@@ -10,8 +10,9 @@ Files in the study folder ``DIR``:
 ``points.csv``, ``points.parquet``   the table: varied values (SI and as given), every summary figure and
                         the study figures (starts_per_day, max_starts_per_hour, degree_hours_above_limit,
                         net_benefit_kwh, hysteresis_k)
-``pareto.csv``          the Pareto-optimal points
-``recommendation.json`` the recommended point and the rule
+``pareto.csv``, ``pareto.png``   the Pareto front: the qualifying points no other qualifying point beats on
+                        both the heat figure and the fan's electricity
+``recommendation.json`` the recommended point, its runner-up, the range edges it sits on, warnings, the rule
 ``short_cycling_map.png``   heatmaps over a one- or two-key grid, limit violations hatched
 """
 
@@ -30,6 +31,8 @@ import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
+import numpy as np
+
 from atticsim.study.analysis import (DEFAULT_COOLING_COP, degree_hours_above, max_starts_in_window,
                                      net_benefit_kwh)
 from atticsim.study.spec import DERIVED, HEAT_METRICS, Study, StudyError, point_overrides
@@ -38,9 +41,12 @@ FORMAT = 1
 JOURNAL = "journal.jsonl"
 STUDY_JSON = "study.json"
 #: Every file a study writes into DIR (``--force`` removes these and nothing else).
-STUDY_FILES = (STUDY_JSON, JOURNAL, "points.csv", "points.parquet", "pareto.csv", "recommendation.json",
-               "short_cycling_map.png")
-NET_BENEFIT_BASIS = ("summary net_benefit_kwh when the model gives it, else (ceiling_heat_gain_no_fan_kwh - "
+STUDY_FILES = (STUDY_JSON, JOURNAL, "points.csv", "points.parquet", "pareto.csv", "pareto.png",
+               "recommendation.json", "short_cycling_map.png")
+NET_BENEFIT_BASIS = ("the run's net_benefit_kwh: electricity at the meter = cooling savings (ceiling heat kept out on "
+                     "cooled days / house.cooling_cop) - the cooling cost of conditioned air drawn - fan energy - "
+                     "the heating penalty when the heating runs on electricity (see each point's energy_basis in "
+                     "atticsim.results.metrics.season_summary); else (ceiling_heat_gain_no_fan_kwh - "
                      "ceiling_heat_gain_kwh) / COP - fan_energy_kwh with COP = house.cooling_cop or "
                      f"{DEFAULT_COOLING_COP:g} (common practice, no source)")
 
@@ -138,6 +144,7 @@ def run_point(task: dict) -> dict:
                           reuse_no_fan=True, summary_only=True)
         out["summary"] = {k: _plain(v) for k, v in result.summary.items()
                           if not isinstance(v, (list, dict, tuple))}
+        out["warnings"] = [str(w) for w in result.summary.get("warnings", [])]
         out["metrics"] = {k: _plain(v) for k, v in point_metrics(result, sc, task["comfort_limit_c"]).items()}
     except Exception as exc:  # a failed point is recorded, the study goes on
         out["status"] = "error"
@@ -175,6 +182,26 @@ class Plan:
     base: object
     points: list[PlannedPoint]
     fingerprint: str
+    warnings: list[str] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+
+
+def _input_warnings(base, points: list[PlannedPoint]) -> list[str]:
+    """The scenarios' plausibility warnings, each once: as it stands when the base scenario or every point has
+    it, else prefixed with the points that have it."""
+    where: dict[str, list[int]] = {}
+    for p in points:
+        for w in p.scenario.input_warnings:
+            where.setdefault(w, []).append(p.index)
+    out = []
+    for w in dict.fromkeys(list(base.input_warnings) + list(where)):
+        idx = where.get(w, [])
+        if w in base.input_warnings or len(idx) == len(points):
+            out.append(w)
+        else:
+            shown = ", ".join(str(i) for i in idx[:8]) + (", ..." if len(idx) > 8 else "")
+            out.append(f"point{'s' if len(idx) > 1 else ''} {shown}: {w}")
+    return out
 
 
 def _dump_value(dump, key: str):
@@ -229,9 +256,19 @@ def plan_study(study: Study) -> Plan:
         key = _hash({"scenario": dump, "start": study.start, "end": study.end, "comfort_c": study.comfort_limit_c})
         points.append(PlannedPoint(i, key, overrides, {k: v.display for k, v in p.items()}, si, sc))
     for spec in sorted({pt.scenario.weather.file for pt in points}):
-        if not spec.startswith("demo:") and not Path(spec).is_file():
+        if not spec.startswith(("demo:", "pvlib:")) and not Path(spec).is_file():
             raise StudyError(f"weather.file: {spec}: file not found")
-    return Plan(study, base, points, _hash([pt.key for pt in points]))
+    notes = []
+    keys = {ax.key for ax in study.axes}
+    if "fan.flow" in keys and not keys & {"fan.power", "fan.speed_ratio"}:
+        base_flow = base.fan.flow if base.fan.flow is not None else base.fan.rated_flow
+        notes.append(f"fan.power scales with fan.flow at the base fan's {base.fan.power / base_flow:.4g} W per m3/s "
+                     f"({base.fan.power:g} W at {base_flow:.4g} m3/s): a bigger fan of the same kind; vary fan.power "
+                     f"too to give other figures")
+    if "fan.speed_ratio" in keys and base.fan.curve_flow is None:
+        notes.append("fan.speed_ratio sets the fan's flow (x N) and power (x N^3) by the fan laws: the fan has no "
+                     "curve")
+    return Plan(study, base, points, _hash([pt.key for pt in points]), _input_warnings(base, points), notes)
 
 
 # --- journal ------------------------------------------------------------------------------------------
@@ -452,6 +489,8 @@ def _study_record(plan: Plan, previous: dict | None, command) -> dict:
         "scenario_source": study.scenario or "<built-in demo house>",
         "scenario": plan.base.model_dump(mode="json"),
         "net_benefit_basis": NET_BENEFIT_BASIS,
+        "warnings": list(plan.warnings),
+        "notes": list(plan.notes),
         "points": [{"point": p.index, "key": p.key, "given": p.given, "overrides": p.overrides}
                    for p in plan.points],
         "runs": list((previous or {}).get("runs", [])),
@@ -472,6 +511,7 @@ def build_table(plan: Plan, records: dict):
         row.update(rec.get("summary") or {})
         row.update(rec.get("metrics") or {})
         row["error"] = rec.get("error")
+        row["warnings"] = " | ".join(rec.get("warnings") or [])
         row["overrides"] = json.dumps(p.overrides)
         rows.append(row)
     table = pd.DataFrame(rows)
@@ -611,7 +651,8 @@ def run_study(study: Study, out, *, workers: int | None = None, scheduler: str |
             close()
     wall = time.perf_counter() - t_start
 
-    from atticsim.study.analysis import circuit_parts, pareto_columns, pareto_mask, recommend
+    from atticsim.study.analysis import (OBJECTIVE_NAMES, circuit_parts, edges, pareto_columns, pareto_mask,
+                                         qualifying, recommend)
 
     table = build_table(plan, done)
     files = []
@@ -623,30 +664,49 @@ def run_study(study: Study, out, *, workers: int | None = None, scheduler: str |
     put("points.csv", lambda p: table.to_csv(p, index=False))
     put("points.parquet", lambda p: table.to_parquet(p, index=False))
     heat_col = HEAT_METRICS[study.heat_metric]
-    ok = (table["status"] == "ok").to_numpy()
+    rec = recommend(table, study.starts_limit, heat_col, study.short_cycles_allowed, study.heat_tolerance)
+    # the Pareto front over the qualifying points (the trade-off left once the fan does not short-cycle)
     cols = pareto_columns(heat_col)
-    mask = pareto_mask(table[cols].to_numpy(dtype=float)) & ok if all(c in table for c in cols) else ok & False
-    put("pareto.csv", lambda p: table[mask].to_csv(p, index=False))
-    rec = recommend(table, study.starts_limit, heat_col)
-    rec["pareto_points"] = [int(i) for i in table.loc[mask, "point"]]
-    rec["pareto_objectives"] = cols
+    eligible = qualifying(table, study.starts_limit, study.short_cycles_allowed, heat_col)
+    mask = np.zeros(len(table), bool)
+    if eligible.any() and all(c in table for c in cols):
+        mask[eligible] = pareto_mask(table.loc[eligible, cols].to_numpy(dtype=float))
+    front = table[mask].sort_values("fan_energy_kwh", kind="mergesort")
+    put("pareto.csv", lambda p: front.to_csv(p, index=False))
+    rec["pareto_points"] = [int(i) for i in front["point"]]
+    rec["pareto_objectives"] = [{"column": c, "meaning": OBJECTIVE_NAMES.get(c, c), "goal": "minimise"}
+                                for c in cols]
+    rec["pareto_among"] = "qualifying points (step 1 of the rule)"
+
+    def describe(point):
+        row = table[table["point"] == point].iloc[0]
+        return {"point": int(point),
+                "values": {k: _plain(row[k]) for k in plan.points[0].given},
+                "given": {k: row[f"{k}_given"] for k in plan.points[0].given},
+                "figures": {k: _plain(row[k]) for k in (
+                    "starts_per_day", "fan_starts", "max_starts_per_hour", "short_cycles", "cycle_minutes_median",
+                    "fan_run_hours", "fan_energy_kwh", "attic_air_max_c", "degree_hours_above_limit",
+                    "ceiling_heat_gain_kwh", "net_benefit_kwh", "hysteresis_k") if k in row},
+                "overrides": plan.points[point].overrides}
+
+    rec["on_edge"], rec["edges"] = [], []
+    point_warnings = []
     if rec.get("point") is not None:
-        row = table[table["point"] == rec["point"]].iloc[0]
-        rec["values"] = {k: _plain(row[k]) for k in plan.points[0].given}
-        rec["given"] = {k: row[f"{k}_given"] for k in plan.points[0].given}
-        rec["figures"] = {k: _plain(row[k]) for k in (
-            "starts_per_day", "max_starts_per_hour", "short_cycles", "fan_run_hours", "fan_energy_kwh",
-            "attic_air_max_c", "degree_hours_above_limit", "ceiling_heat_gain_kwh", "net_benefit_kwh",
-            "hysteresis_k") if k in row}
-        rec["overrides"] = plan.points[rec["point"]].overrides
+        rec.update({k: v for k, v in describe(rec["point"]).items() if k != "point"})
+        if rec.get("runner_up") is not None:
+            rec["runner_up"] = describe(rec["runner_up"])
+        rec["edges"] = edges(table, rec["point"], study.axes, sampled=study.sample == "lhs")
+        rec["on_edge"] = [e["key"] for e in rec["edges"]]
         parts = circuit_parts(plan.points[rec["point"]].scenario)
         if parts is not None:
             rec["circuit_parts"] = parts
+        point_warnings = list(done.get(plan.points[rec["point"]].key, {}).get("warnings") or [])
+    rec["warnings"] = list(dict.fromkeys(plan.warnings + point_warnings))
     rec["comfort_limit_c"] = study.comfort_limit_c
     put("recommendation.json", lambda p: p.write_text(json.dumps(rec, indent=2, default=_plain) + "\n"))
-    notes = []
+    notes = list(plan.notes)
     if plots:
-        from atticsim.study.plots import map_axes, short_cycling_map
+        from atticsim.study.plots import map_axes, pareto_figure, short_cycling_map
 
         keys, why = map_axes(study)
         if keys:
@@ -654,6 +714,7 @@ def run_study(study: Study, out, *, workers: int | None = None, scheduler: str |
                 table, keys, p, study.starts_limit, rec.get("point"), study.comfort_limit_c))
         else:
             notes.append(f"no short-cycling map: {why}")
+        put("pareto.png", lambda p: pareto_figure(table, eligible, mask, cols, p, rec))
     if failed or (table["status"] != "ok").any():
         bad = table[table["status"] != "ok"]
         notes.append(f"{len(bad)} point(s) failed, e.g. point {int(bad['point'].iloc[0])}: {bad['error'].iloc[0]}"

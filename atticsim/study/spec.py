@@ -7,6 +7,10 @@ A varied *axis* is one scenario key and its values::
     fan.flow=1000,1200,1500cfm       comma list, the unit written once at the end
     weather.sky_model=berdahl-martin,swinbank       text values (TOML syntax if it parses, else plain text)
     thermostat.hysteresis=1:6:1K     derived: off = on - width (closes on rise) or on + width (closes on fall)
+    fan.speed_ratio=0.6:1:0.2        derived for a fan without a curve: flow ~ N, power ~ N^3 (fan laws)
+
+A point that varies ``fan.flow`` but not ``fan.power`` gets the base fan's watts per m3/s times its flow (a
+bigger fan of the same kind is never free; :func:`scaled_fan_power`).
 
 Any scenario key can vary: a point is a list of ``"dotted.key=value"`` overrides handed to
 :func:`atticsim.scenario.load_scenario`, which validates it like ``--set``.
@@ -36,6 +40,13 @@ DEFAULT_STARTS_PER_HOUR = 6.0
 #: Default comfort limit of attic air for the degree-hour figure [degC]. 38 degC (100 degF) is a round
 #: figure chosen for this project (common practice, no source); set it with --comfort-limit.
 DEFAULT_COMFORT_LIMIT_C = 38.0
+
+#: Short cycles a point may have and still be recommended (none: a recommended setting should not hunt).
+DEFAULT_SHORT_CYCLES_ALLOWED = 0
+
+#: Heat figures within this fraction of the lowest tie [-] (1 %: closer than the model's own accuracy for
+#: attic air, common practice, no source); set it with --heat-tolerance.
+DEFAULT_HEAT_TOLERANCE = 0.01
 
 #: Heat figures the recommendation can minimise: name -> column of the points table.
 HEAT_METRICS = {"degree-hours": "degree_hours_above_limit", "ceiling-gain": "ceiling_heat_gain_kwh"}
@@ -379,21 +390,63 @@ def _hysteresis_overrides(width: Value, point: dict[str, Value], base) -> list[s
     return [f"thermostat.off={off!r}"]
 
 
+def _speed_overrides(ratio: Value, point: dict[str, Value], base) -> list[str]:
+    """fan.speed_ratio -> the key itself for a fan described by its curve (the airflow model applies the fan
+    laws), else the rated flow and power at that speed by the fan laws: Q ~ N, P ~ N^3 (fan affinity laws,
+    e.g. ASHRAE Handbook HVAC Systems and Equipment, fans chapter; from memory). The simple airflow form
+    does not read the speed ratio, so a study of it on a fan without a curve would change nothing."""
+    from atticsim.units import UnitError, to_si
+
+    where = "fan.speed_ratio"
+    try:
+        n = to_si(ratio.display, "dimensionless")
+    except UnitError as exc:
+        raise StudyError(f"{where}: {exc}") from None
+    if not 0.0 < n <= 2.0:
+        raise StudyError(f"{where}: must be greater than 0 and at most 2 (got {ratio.display})")
+    fan = base.fan
+    if fan.curve_flow is not None:
+        return [f"fan.speed_ratio={n!r}"]
+    # with their units: derived values are not bare numbers the plausibility checks should question
+    return [f'fan.flow="{fan.flow * n!r} m3/s"', f'fan.power="{fan.power * n**3!r} W"']
+
+
 #: Derived keys: name -> (function(value, point, base_scenario) -> overrides, keys it sets, SI kind).
 DERIVED = {
     "thermostat.hysteresis": (_hysteresis_overrides, ("thermostat.off",), "temperature_difference"),
+    "fan.speed_ratio": (_speed_overrides, ("fan.flow", "fan.power"), "dimensionless"),
 }
 
 
+def scaled_fan_power(point: dict[str, Value], base) -> list[str]:
+    """fan.power for a point that varies fan.flow but not fan.power (nor fan.speed_ratio): the base fan's
+    watts per m3/s times the point's flow (a bigger fan of the same kind, common practice, no source: the
+    power of fans of one kind and static pressure grows about in proportion to their flow). A bigger fan
+    is never free. Empty when the point does not vary fan.flow or sets the power itself."""
+    from atticsim.units import UnitError, to_si
+
+    if "fan.flow" not in point or "fan.power" in point or "fan.speed_ratio" in point:
+        return []
+    base_flow = base.fan.flow if base.fan.flow is not None else base.fan.rated_flow
+    try:
+        flow = to_si(point["fan.flow"].display, "flow")
+    except UnitError as exc:
+        raise StudyError(f"fan.flow: {exc}") from None
+    if not flow > 0.0:
+        return []  # the scenario's own check refuses it, naming the key
+    return [f'fan.power="{base.fan.power * flow / base_flow!r} W"']
+
+
 def point_overrides(point: dict[str, Value], base) -> list[str]:
-    """The ``dotted.key=value`` overrides for one point (derived keys resolved against ``base``)."""
+    """The ``dotted.key=value`` overrides for one point (derived keys resolved against ``base``; the fan's
+    power scaled with a varied flow, see :func:`scaled_fan_power`)."""
     out = []
     for key, value in point.items():
         if key in DERIVED:
             out.extend(DERIVED[key][0](value, point, base))
         else:
             out.append(f"{key}={value.literal}")
-    return out
+    return out + scaled_fan_power(point, base)
 
 
 # --- the study ----------------------------------------------------------------------------------------
@@ -420,10 +473,16 @@ class Study:
         Period (ISO dates, local standard time); None: the scenario's own.
     starts_limit : float
         Starts per hour a motor may make [1/h].
+    short_cycles_allowed : int
+        Short cycles (complete runs shorter than ``simulation.short_cycle``) a point may have and still
+        qualify for the recommendation.
     comfort_limit_c : float
         Attic air temperature above which degree-hours are counted [degC].
     heat_metric : str
         Key of :data:`HEAT_METRICS` minimised by the recommendation.
+    heat_tolerance : float
+        Heat figures within this fraction of the lowest (or 0.01 in the figure's unit, whichever is larger)
+        tie [-].
     source : str
         Where the study came from (file name or "command line").
     """
@@ -437,8 +496,10 @@ class Study:
     start: str | None = None
     end: str | None = None
     starts_limit: float = DEFAULT_STARTS_PER_HOUR
+    short_cycles_allowed: int = DEFAULT_SHORT_CYCLES_ALLOWED
     comfort_limit_c: float = DEFAULT_COMFORT_LIMIT_C
     heat_metric: str = "degree-hours"
+    heat_tolerance: float = DEFAULT_HEAT_TOLERANCE
     source: str = "command line"
 
     def check(self) -> None:
@@ -463,6 +524,12 @@ class Study:
         if not (math.isfinite(self.starts_limit) and self.starts_limit > 0):
             raise StudyError(f"--starts-limit: must be a positive number of starts per hour "
                              f"(got {self.starts_limit!r})")
+        if isinstance(self.short_cycles_allowed, bool) or not isinstance(self.short_cycles_allowed, int) \
+                or self.short_cycles_allowed < 0:
+            raise StudyError(f"--short-cycles-allowed: must be a whole number, 0 or more "
+                             f"(got {self.short_cycles_allowed!r})")
+        if not (math.isfinite(self.heat_tolerance) and 0.0 <= self.heat_tolerance < 1.0):
+            raise StudyError(f"--heat-tolerance: must be from 0 % to under 100 % (got {self.heat_tolerance!r})")
         if self.heat_metric not in HEAT_METRICS:
             raise StudyError(f"--heat-metric: must be one of {', '.join(HEAT_METRICS)} (got {self.heat_metric!r})")
 
@@ -481,8 +548,9 @@ class Study:
             "source": self.source, "scenario": self.scenario, "set": list(self.base_overrides),
             "sample": self.sample, "points": self.points, "seed": self.seed,
             "period": {"start": self.start, "end": self.end},
-            "limits": {"starts_per_hour": self.starts_limit, "comfort_c": self.comfort_limit_c},
-            "heat_metric": self.heat_metric,
+            "limits": {"starts_per_hour": self.starts_limit, "short_cycles": self.short_cycles_allowed,
+                       "comfort_c": self.comfort_limit_c},
+            "heat_metric": self.heat_metric, "heat_tolerance": self.heat_tolerance,
             "vary": [ax.describe() for ax in self.axes],
         }
 
@@ -501,6 +569,32 @@ def parse_starts_limit(text, option: str = "--starts-limit") -> float:
     if not (math.isfinite(value) and value > 0):
         raise StudyError(f"{option}: must be greater than 0 starts per hour (got {text!r})")
     return value
+
+
+def parse_short_cycles_allowed(text, option: str = "--short-cycles-allowed") -> int:
+    """Parse the short cycles a recommended point may have: a whole number, 0 or more."""
+    if isinstance(text, bool):
+        raise StudyError(f"{option}: expected a whole number of short cycles such as 0, got {text!r}")
+    try:
+        value = int(str(text).strip()) if not isinstance(text, int) else text
+    except ValueError:
+        raise StudyError(f"{option}: expected a whole number of short cycles such as 0, got {text!r}") from None
+    if value < 0:
+        raise StudyError(f"{option}: must be 0 or more (got {text!r})")
+    return value
+
+
+def parse_heat_tolerance(text, option: str = "--heat-tolerance") -> float:
+    """Parse the heat figures' tie tolerance: ``1`` or ``"1 %"`` (a bare number is a percentage) -> fraction."""
+    from atticsim.units import UnitError, to_si
+
+    try:
+        value = to_si(text, "percent")
+    except UnitError as exc:
+        raise StudyError(f"{option}: {exc}") from None
+    if not (math.isfinite(value) and 0.0 <= value < 100.0):
+        raise StudyError(f"{option}: must be from 0 % to under 100 % (got {text!r})")
+    return value / 100.0
 
 
 def parse_comfort_limit(text, option: str = "--comfort-limit") -> float:
@@ -528,8 +622,8 @@ def load_study_file(path: str | Path) -> Study:
         set = ["simulation.spinup_days=1"]      # optional overrides applied to every point
         [period]    start = "2025-07-01"  end = "2025-07-07"
         [sampling]  method = "grid" | "lhs"  points = 50  seed = 1
-        [limits]    starts_per_hour = 6  comfort = "38 degC"
-        [recommend] heat = "degree-hours" | "ceiling-gain"
+        [limits]    starts_per_hour = 6  short_cycles = 0  comfort = "38 degC"
+        [recommend] heat = "degree-hours" | "ceiling-gain"  heat_tolerance = "1 %"
         [[vary]]    key = "thermostat.on"  start = 36  stop = 44  step = 2  unit = "degC"
         [[vary]]    key = "thermostat.hysteresis"  values = [1, 2, 4]  unit = "K"
 
@@ -582,13 +676,17 @@ def load_study_file(path: str | Path) -> Study:
         if v is not None and (isinstance(v, bool) or not isinstance(v, int)):
             raise StudyError(f"{path}: sampling.{name}: must be a whole number")
         setattr(study, name, v)
-    limits = table("limits", {"starts_per_hour", "comfort"})
+    limits = table("limits", {"starts_per_hour", "short_cycles", "comfort"})
     if "starts_per_hour" in limits:
         study.starts_limit = parse_starts_limit(limits["starts_per_hour"], f"{path}: limits.starts_per_hour")
+    if "short_cycles" in limits:
+        study.short_cycles_allowed = parse_short_cycles_allowed(limits["short_cycles"], f"{path}: limits.short_cycles")
     if "comfort" in limits:
         study.comfort_limit_c = parse_comfort_limit(limits["comfort"], f"{path}: limits.comfort")
-    rec = table("recommend", {"heat"})
+    rec = table("recommend", {"heat", "heat_tolerance"})
     study.heat_metric = rec.get("heat", study.heat_metric)
+    if "heat_tolerance" in rec:
+        study.heat_tolerance = parse_heat_tolerance(rec["heat_tolerance"], f"{path}: recommend.heat_tolerance")
     vary = data.get("vary", [])
     if not isinstance(vary, list):
         raise StudyError(f"{path}: vary: must be an array of tables ([[vary]])")
