@@ -29,7 +29,7 @@ _ROOT = Path(__file__).resolve().parent
 #: The modules whose code or constants end up in compiled functions.
 SOURCES = ("constants.py", "air.py", "jitcache.py", "network/kernel.py", "network/model.py", "network/heat_transfer.py",
            "network/placement.py", "sensor/air.py", "sensor/convection.py", "sensor/body.py",
-           "io/weather_frame.py", "hybrid/blocks.py", "hybrid/compiled.py", "hybrid/fast.py",
+           "io/weather_frame.py", "hybrid/blocks.py", "hybrid/compiled.py",
            "airflow/balance_kernel.py")
 _STAMP = "atticsim-jit.stamp"
 _checked = False

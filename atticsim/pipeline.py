@@ -20,7 +20,7 @@ from atticsim.forcing.build import build_forcing, period_bounds
 from atticsim.forcing.weather import load_weather
 from atticsim.network.model import BOOKS, FORCING_BASE, build_network
 from atticsim.hybrid.controller import controller_from_scenario
-from atticsim.hybrid.events import HybridRun, integrate
+from atticsim.hybrid.driver import HybridRun, integrate
 
 DAY = 86400.0
 
@@ -51,39 +51,21 @@ class RawRuns:
     notes: list = field(default_factory=list)
 
 
-def integrator(sim):
-    """The integration function the scenario's ``simulation.solver`` asks for, with its settings bound:
-    f(network, forcing, controller, t_start, t_end, y0, fan_on, output_times) -> HybridRun."""
-    if sim.solver == "fast":
-        from atticsim.hybrid.compiled import integrate_compiled
-        from atticsim.hybrid.fast import integrate_fast
-
-        check = min(60.0, sim.max_step)
-
-        def fast(*a):
-            # the compiled solver when the outputs lie on one grid (always, from run_raw), else the windows
-            run = integrate_compiled(*a, check_step=check, tol=sim.fast_tolerance)
-            return run if run is not None else integrate_fast(*a, max_step=check)
-
-        return fast
-    return lambda *a: integrate(*a, rtol=sim.rtol, max_step=sim.max_step)
-
-
-def _spin_up(network, forcing, controller, period, y, fan_on, days, step):
+def _spin_up(network, forcing, controller, period, y, days, simulation):
     """Repeat the period's first day ``days`` times to approach a periodic start state.
 
-    The books are reset after each repetition; the returned state is the start state of the run.
+    The books are reset after each repetition; the returned state is the start state of the run (the
+    controller starts afresh from it).
     """
     span = min(DAY, period.t_end - period.t_start)
     n_nodes = network.n_nodes
     for _ in range(days):
         t1 = period.t_start + span
-        run = step(network, forcing, controller, period.t_start, t1, y, fan_on, np.array([t1]))
+        run = integrate(network, forcing, controller, period.t_start, t1, y, np.array([period.t_start, t1]),
+                        simulation)
         y = run.y_end.copy()
         y[n_nodes:] = 0.0
-        if controller is not None:
-            fan_on = controller.initial_state(y[network.index["sensor"]])
-    return y, fan_on
+    return y
 
 
 def resolve_period(frame, scenario, start=None, end=None, months=None, year=None):
@@ -198,10 +180,8 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
     def one(enabled: bool):
         net = network if enabled else build_network(no_fan_scenario, pressure=pressure)
         ctl = controller if enabled else None
-        fan0 = ctl.initial_state(y0[net.index["sensor"]]) if ctl else False
-        step = integrator(sim)
-        y_start, fan0 = _spin_up(net, forcing, ctl, period, y0.copy(), fan0, sim.spinup_days, step)
-        run = step(net, forcing, ctl, period.t_start, period.t_end, y_start, fan0, output_times)
+        y_start = _spin_up(net, forcing, ctl, period, y0.copy(), sim.spinup_days, sim)
+        run = integrate(net, forcing, ctl, period.t_start, period.t_end, y_start, output_times, sim)
         return run, y_start
 
     with_fan, y_fan = one(scenario.fan.enabled)
@@ -216,13 +196,14 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
             _NO_FAN_RUNS[key] = (run, y_run)
         kept, y_nofan = _NO_FAN_RUNS[key]
         # the arrays are shared (read-only); fresh lists for this caller (the airflow states are frozen)
-        without_fan = dataclasses.replace(kept, air=list(kept.air), events=list(kept.events),
-                                          air_updates=list(kept.air_updates))
+        without_fan = dataclasses.replace(kept, events=list(kept.events), air_updates=list(kept.air_updates),
+                                          notes=list(kept.notes))
     elif include_no_fan:
         without_fan, y_nofan = one(False)
     else:
         without_fan, y_nofan = None, None
-    notes = list(getattr(meta, "notes", [])) + list(forcing.notes) + model_notes(scenario)
+    notes = (list(getattr(meta, "notes", [])) + list(forcing.notes) + model_notes(scenario) + with_fan.notes
+             + (without_fan.notes if without_fan is not None else []))
     return RawRuns(network, forcing, period, output_times, with_fan, without_fan, y_fan, y_nofan,
                    controller=controller, notes=notes)
 

@@ -16,7 +16,8 @@ import pytest
 
 from atticsim.constants import KELVIN, SIGMA
 from atticsim.forcing.build import Forcing
-from atticsim.hybrid.compiled import integrate_compiled
+from atticsim.hybrid.compiled import CompiledStepper
+from atticsim.hybrid.driver import simulate_hybrid
 from atticsim.network.heat_transfer import forced_convection_sparrow, walton_natural
 from atticsim.network.model import BOOKS, FORCING_BASE, build_network
 from atticsim.scenario import demo_scenario
@@ -43,7 +44,8 @@ def steady_run(net, poa):
     y0 = np.concatenate([np.full(net.n_nodes, T_OUT), np.zeros(len(BOOKS))])
     t_end = (n - 1) * step
     out = np.arange(0.0, t_end + 1.0, 86400.0)  # daily outputs on one grid from the start
-    run = integrate_compiled(net, forcing, None, 0.0, t_end, y0, False, out)
+    run = simulate_hybrid(net, forcing, None, 0.0, t_end, y0, out,
+                          CompiledStepper(net, forcing, out, np.empty((len(y0), out.size))))
     x0, x1 = run.y[:net.n_nodes, -2], run.y[:net.n_nodes, -1]
     assert np.max(np.abs(x1 - x0)) < 1e-4  # steady: the last day changed nothing
     q = net.flows(x1[:, None], forcing.values[:, -1:], False)

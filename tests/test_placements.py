@@ -6,7 +6,9 @@ from click.testing import CliRunner
 
 from atticsim.cli.main import cli
 from atticsim.forcing.build import build_forcing
-from atticsim.hybrid.events import integrate
+from atticsim.hybrid.controller import HeldFan
+from atticsim.hybrid.driver import simulate_hybrid
+from atticsim.hybrid.reference import ReferenceStepper
 from atticsim.network.model import BOOKS, build_network
 from atticsim.pipeline import run_raw
 from atticsim.results.metrics import build_result
@@ -58,7 +60,8 @@ def test_bead_step_response_in_the_network_matches_its_correlation_time_constant
         speed = max(fan_flow / net.fan_area, 0.15) if fan_on else 0.15
         tau = body.time_constant(speed, 40.0, radiation=True)
         t_out = np.linspace(0.0, 3 * tau, 31)
-        run = integrate(net, forcing, None, 0.0, t_out[-1], y0, fan_on, t_out, rtol=1e-9)
+        stepper = ReferenceStepper(net, forcing, t_out, np.empty((len(y0), t_out.size)), rtol=1e-9)
+        run = simulate_hybrid(net, forcing, HeldFan(fan_on), 0.0, t_out[-1], y0, t_out, stepper)
         expected = 40.0 - 1.0 * np.exp(-t_out / tau)
         assert np.max(np.abs(run.y[net.index["sensor"]] - expected)) < 0.01, placement
 

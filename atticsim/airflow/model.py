@@ -70,21 +70,15 @@ class AirflowState:
 AIR_FIELDS = tuple(f.name for f in fields(AirflowState) if f.name != "path_flows")
 
 
-def stack_states(states, names=AIR_FIELDS, runs=None) -> dict:
-    """A list of AirflowState -> dict of numpy arrays, one per scalar field in ``names`` (default all),
-    plus ``path_flows`` (shape (n, paths)) when all fields are asked for and the states carry per-path
-    flows. ``runs``: (row starts, states) of the runs of one state in ``states`` when known
-    (``HybridRun.air_runs``), which saves finding them."""
-    # The solvers hold one state over long runs of output rows: read each run's state once, then repeat it.
-    if runs is not None:
-        starts, held = runs
-    else:
-        ids = np.fromiter(map(id, states), dtype=np.int64, count=len(states))
-        starts = np.flatnonzero(np.concatenate(([True], ids[1:] != ids[:-1]))) if ids.size else ids
-        held = [states[i] for i in starts]
-    lengths = np.diff(np.append(starts, len(states)))
+def stack_states(runs, n_rows, names=AIR_FIELDS) -> dict:
+    """The held airflow states of a run's output rows as arrays: one per scalar field in ``names`` (default
+    all), plus ``path_flows`` (shape (n, paths)) when all fields are asked for and the states carry per-path
+    flows. ``runs``: (row starts, states), where each run of one held state begins among the ``n_rows`` rows
+    (``HybridRun.air_runs``)."""
+    starts, held = runs
+    lengths = np.diff(np.append(np.asarray(starts, dtype=np.int64), n_rows))
     out = {name: np.repeat(np.array([getattr(s, name) for s in held], dtype=float), lengths) for name in names}
-    if names is AIR_FIELDS and states and states[0].path_flows:
+    if names is AIR_FIELDS and held and held[0].path_flows:
         out["path_flows"] = np.repeat(np.array([s.path_flows for s in held], dtype=float), lengths, axis=0)
     return out
 

@@ -47,11 +47,10 @@ interpolant of the sensor's exact values and slopes over that step (error of ord
 millisecond); the state there comes from the Taylor series of the segment's solution. (A crossing and a
 return within one check step are not seen, as in the other solvers.)
 
-The right-hand side is :func:`atticsim.network.kernel.rhs`, a compiled mirror of
-:meth:`atticsim.network.model.AtticNetwork.derivatives` (tests hold the two equal). With the simple
-airflow form the switch loop is compiled too (:func:`run_simple`); with the pressure balance the Python
-driver :func:`integrate_compiled` re-solves the airflow between compiled calls. The reference solver
-(``atticsim.hybrid.events.integrate``) stays the accuracy standard.
+The right-hand side is :func:`atticsim.network.kernel.rhs`, the network's one source of heat flows.
+:class:`CompiledStepper` is this solver's face to the hybrid driver (:mod:`atticsim.hybrid.driver`), which
+owns the events, the airflow updates and the records; the reference stepper
+(:mod:`atticsim.hybrid.reference`, LSODA) stays the accuracy standard.
 """
 
 from __future__ import annotations
@@ -64,8 +63,7 @@ import numpy as np
 from atticsim import jitcache
 from atticsim.hybrid.blocks import (BLOCKS, base_step, block_mv, block_mv_add, blocks_for, chain_into, matmul, matvec,
                                     taylor)
-from atticsim.hybrid.events import HybridRun
-from atticsim.hybrid.fast import FD_STEP  # the Python solvers' finite-difference step
+from atticsim.hybrid.driver import StepperFailed
 from atticsim.network import kernel
 
 jitcache.route()  # this module's compiled functions cache in atticsim's own folder (atticsim.jitcache)
@@ -81,12 +79,11 @@ SEGMENT = 1200.0
 KINK_SPAN = 60.0
 #: Blocks kept per linearisation (step lengths met repeatedly: segment, half segment, check step...).
 _CACHE = 64
+#: Relative finite-difference step for the Jacobians (numerical choice, ours).
+FD_STEP = 1e-4
 
-#: Forcing channels the Python loop reads for the airflow.
-_PRESSURE, _T_ROOM = kernel.FORCING_BASE.index("pressure"), kernel.FORCING_BASE.index("temp_room")
-
-# Status codes of :func:`advance` (and FULL of :func:`run_simple`: its interval arrays are full).
-DONE, SWITCH, OFF_GRID, FAILED, FULL = 0, 1, -1, -2, 2
+# Status codes of :func:`advance`.
+DONE, SWITCH, OFF_GRID, FAILED = 0, 1, -1, -2
 
 
 @nb.njit(cache=True, _nrt=False)
@@ -709,55 +706,10 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
 
 
 
-@nb.njit(cache=True)
-def run_simple(t, t_end, origin, segment, q_step, x, books, fan, after, prm, planes, ints, heat, f_values,
-               f_step, out_t, k, out_y, out_fan, i_sensor, levels, directions, simple, tol, tol_iter, drift, age,
-               unit_halvings, lin_off, lin_on, slow_iters, iv_t, iv_k, ev_t, ev_s):
-    """The switch loop of :func:`integrate_compiled` for the simple airflow form, compiled: :func:`advance`
-    from switch to switch with the held flows of the fan state (``simple[j]``, the air vector of fan state
-    j, 0 off, 1 on).
-
-    ``levels[j]``, ``directions[j]``: the switching level and direction that end fan state j.
-    Interval i (a stretch of one fan state) starts at iv_t[i], output row iv_k[i]; the fan state alternates
-    from ``fan``. Switch e is at ev_t[e] with the sensor at ev_s[e].
-    Returns (status, t, k, fan, after, n_intervals, n_switches, n_rhs): status DONE at t_end, FULL when
-    the interval arrays are full (call again to go on), or advance's OFF_GRID or FAILED.
-    """
-    n_iv = 0
-    n_ev = 0
-    calls = 0
-    while t < t_end - 1e-9:
-        if n_iv >= iv_t.size or n_ev >= ev_t.size:
-            return FULL, t, k, fan, after, n_iv, n_ev, calls
-        iv_t[n_iv] = t
-        iv_k[n_iv] = k
-        n_iv += 1
-        j = 1 if fan else 0
-        k0 = k
-        status, t, k, n_rhs, _, _, _ = advance(
-            t, t_end, origin, segment, q_step, x, books, 1.0 if fan else 0.0, simple[j], prm, planes, ints, heat,
-            f_values, f_step, out_t, k, out_y, i_sensor, levels[j], directions[j], tol, tol_iter, drift, age,
-            unit_halvings, lin_on if fan else lin_off, after, slow_iters)
-        calls += n_rhs
-        for i in range(k0, k):
-            out_fan[i] = fan
-        if status == OFF_GRID or status == FAILED:
-            return status, t, k, fan, after, n_iv, n_ev, calls
-        after = status == SWITCH
-        if after:
-            fan = not fan
-            ev_t[n_ev] = t
-            ev_s[n_ev] = x[i_sensor]
-            n_ev += 1
-    return DONE, t, k, fan, after, n_iv, n_ev, calls
-
-
 jitcache.restore()
 
 #: Longest doubling chain kept (base steps down to 2^-40 of the segment).
 _MAX_LEVELS = 40
-#: Fan-state intervals recorded per call of :func:`run_simple` (it is called again when they are full).
-_INTERVALS = 4096
 
 
 def new_linearisation(n_nodes: int, n_books: int) -> tuple:
@@ -770,62 +722,6 @@ def new_linearisation(n_nodes: int, n_books: int) -> tuple:
     return (np.zeros((n, n)), np.zeros((nb_, n)), np.zeros((_MAX_LEVELS + 1, BLOCKS, n, n)),
             np.zeros((_CACHE, BLOCKS, n, n)), np.zeros(_CACHE), np.zeros(5), np.array([0, -1], dtype=np.int64),
             np.zeros(n), np.zeros(len(kernel.AIR_ORDER)), np.zeros((nb_, n)))
-
-
-def _integrate_simple(network, t_end, fan, args) -> HybridRun | None:
-    """The rest of :func:`integrate_compiled` for the simple airflow form: :func:`run_simple`, then the
-    airflow states, events and per-row records the other solvers give, built from its interval arrays."""
-    (origin, seg, q_step, x, books, packed, f_values, f_step, out, out_y, fans, i_sensor, controller, airflow,
-     tol, tol_iter, drift, age, lins, slow_iters) = args
-    n_nodes = x.size
-    ends = [controller.next_switch(state) for state in (False, True)]  # what ends fan off, fan on
-    levels = np.array([e[0] for e in ends], dtype=float)
-    directions = np.array([e[1] for e in ends], dtype=np.int64)
-    simple = np.array([kernel.air_vector(airflow.simple_state(running)) for running in (False, True)])
-    size = _INTERVALS + 2
-    iv_t, iv_k = np.empty(size), np.empty(size, dtype=np.int64)
-    ev_t, ev_s = np.empty(size), np.empty(size)
-    airs = [None] * out.size
-    events, updates = [], []
-    run_starts, run_states = [], []  # the runs of one held state in airs (HybridRun.air_runs)
-    t, k, after, calls = origin, 0, False, 0
-    state = None
-    while True:
-        fan0 = fan
-        status, t, k, fan, after, n_iv, n_ev, n_rhs = run_simple(
-            t, t_end, origin, seg, q_step, x, books, fan, after, packed.prm, packed.planes, packed.ints,
-            packed.heat, f_values, f_step, out, k, out_y, fans, i_sensor, levels, directions, simple, tol,
-            tol_iter, drift, age, 6, lins[False], lins[True], slow_iters, iv_t, iv_k, ev_t, ev_s)
-        calls += n_rhs
-        if status in (OFF_GRID, FAILED):
-            return None  # as integrate_compiled: the caller runs the window solver
-        running = fan0
-        for i in range(n_iv):
-            state = airflow.simple_state(running and airflow.enabled)  # as solve()
-            k0, k1 = int(iv_k[i]), (int(iv_k[i + 1]) if i + 1 < n_iv else k)
-            if k1 > k0:
-                airs[k0:k1] = [state] * (k1 - k0)
-                if not run_states or run_states[-1] is not state:
-                    run_starts.append(k0)
-                    run_states.append(state)
-            updates.append((float(iv_t[i]), state))
-            running = not running
-        events.extend((float(ev_t[e]), bool(fan0) != (e % 2 == 0), float(ev_s[e])) for e in range(n_ev))
-        if status != FULL:
-            break
-    network.air = state if state is not None else network.air
-    if k < out.size and abs(out[k] - t) < 1e-6:
-        out_y[:n_nodes, k], out_y[n_nodes:, k] = x, books
-        fans[k], airs[k] = fan, state  # (as the Python loop: the flows held last)
-        if not run_states or run_states[-1] is not state:
-            run_starts.append(k)
-            run_states.append(state)
-        k += 1
-    starts = np.array(run_starts, dtype=np.int64)
-    starts.setflags(write=False)
-    return HybridRun(t=out[:k].copy(), y=out_y if k == out.size else out_y[:, :k].copy(), fan=fans[:k],
-                     air=airs[:k], events=events, y_end=np.concatenate([x, books]), n_rhs=calls,
-                     air_updates=updates, air_runs=(starts, run_states))
 
 
 def grid_steps(output_times, t_start, max_segment=SEGMENT, check_step=CHECK_STEP):
@@ -851,100 +747,68 @@ def grid_steps(output_times, t_start, max_segment=SEGMENT, check_step=CHECK_STEP
     return dto, q, segment
 
 
-def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on, output_times,
-                       segment=SEGMENT, check_step=CHECK_STEP, tol=5e-3, tol_iter=3e-5, drift=40.0,
-                       age=21600.0, slow_iters=6, compiled_loop=True) -> HybridRun | None:
-    """Integrate the hybrid system like :func:`atticsim.hybrid.events.integrate`, compiled.
+class CompiledStepper:
+    """The compiled stepper of the hybrid driver (:mod:`atticsim.hybrid.driver`): :func:`advance` from one
+    event or airflow update to the next, keeping a linearisation (and its block cache) per fan state.
 
     Parameters
     ----------
-    network, forcing, controller, t_start, t_end, y0, fan_on, output_times
-        As for :func:`atticsim.hybrid.events.integrate`.
-    segment : float
-        Longest segment [s] (rounded down to a multiple of the output step).
-    check_step : float
-        Largest spacing of the sensor checks [s].
-    tol : float
-        Error allowed per segment in the nodes [K] (midpoint check; the segment is halved above it).
-    tol_iter : float
-        Convergence of the fixed point for a segment's end [K]: the last change, or the error left estimated
-        from the contraction rate (at the first iteration, the rate of earlier segments), below it.
-    drift, age, slow_iters : float, float, int
-        The linearisation (one per fan state, kept across switches) is renewed when a node has moved
-        ``drift`` K from it, after ``age`` s, when a segment's fixed point needed more than ``slow_iters``
-        iterations, or when the air flows differ from those it was made with by more than 5 %.
-    compiled_loop : bool
-        With the simple airflow form and a controller, run the switch loop compiled (:func:`run_simple`);
-        False keeps it in Python, as for the balance form (the tests hold the two equal).
+    network, forcing : AtticNetwork, Forcing
+    output_times : numpy.ndarray
+        On one regular grid from the period's start (the last instant, the period's end, may be off it).
+    out_y : numpy.ndarray
+        (n_nodes + books, len(output_times)): receives the output rows.
+    tol, tol_iter, drift, age, slow_iters, segment, check_step
+        As described in the module docstring (error per segment [K], the fixed point's convergence [K], the
+        linearisation's renewal after drift [K], age [s] or slow iterations, the longest segment and the
+        largest spacing of the sensor checks [s]).
 
-    Returns
-    -------
-    HybridRun, or None when the output instants are not on one regular grid from t_start or a segment
-    does not converge (the caller then uses :func:`atticsim.hybrid.fast.integrate_fast`).
+    Raises
+    ------
+    ValueError
+        When the output instants are not on one regular grid (the reference stepper takes any outputs).
     """
-    steps = grid_steps(output_times, t_start, segment, check_step)
-    if steps is None:
-        return None
-    _, q_step, seg = steps
-    packed = kernel.pack(network)
-    airflow = getattr(network, "airflow", None)
-    update = airflow.update_interval if airflow is not None else math.inf
-    need_air = airflow is not None
-    n_nodes = network.n_nodes
-    i_sensor = network.index["sensor"]
-    out = np.ascontiguousarray(output_times, dtype=float)
-    y = np.asarray(y0, dtype=float).copy()
-    x, books = y[:n_nodes].copy(), y[n_nodes:].copy()
-    out_y = np.empty((y.size, out.size))  # (variables, instants), as HybridRun.y
-    fans = np.zeros(out.size, dtype=bool)
-    airs = [None] * out.size
-    events, updates = [], []
-    f_values = np.ascontiguousarray(forcing.values, dtype=float)
-    t, fan, k = float(t_start), bool(fan_on), 0
-    next_air = t
-    calls = 0
-    air_vec = np.zeros(len(kernel.AIR_ORDER))
-    lins = {False: new_linearisation(n_nodes, books.size), True: new_linearisation(n_nodes, books.size)}
-    after_switch = False
-    if compiled_loop and need_air and airflow.kind == "simple" and controller is not None:
-        # the whole switch loop compiled (the simple form's flows need no Python solver)
-        args = (float(t_start), seg, q_step, x, books, packed, f_values, float(forcing.step), out, out_y, fans,
-                i_sensor, controller, airflow, tol, tol_iter, drift, age, lins, slow_iters)
-        return _integrate_simple(network, float(t_end), fan, args)
-    while t < t_end - 1e-9:
-        if need_air and t >= next_air - 1e-9:
-            # (the simple air changes do not depend on the attic temperature)
-            t_attic = math.nan if airflow.kind == "simple" else float(network.mean_air(x))
-            network.air = airflow.solve(t_attic, forcing.value(0, t), forcing.value(2, t), fan,
-                                        with_depressurisation=True, pressure=forcing.value(_PRESSURE, t),
-                                        temp_room=forcing.value(_T_ROOM, t))
-            updates.append((t, network.air))
-            air_vec = kernel.air_vector(network.air)
-            next_air = (math.floor(t / update + 1e-9) + 1) * update if math.isfinite(update) else math.inf
-        stop = min(t_end, next_air)
-        level, direction = controller.next_switch(fan) if controller is not None else (0.0, 0)
-        k0 = k
-        status, t, k, n_rhs, _, _, _ = advance(
-            t, stop, float(t_start), seg, q_step, x, books, 1.0 if fan else 0.0, air_vec,
-            packed.prm, packed.planes, packed.ints, packed.heat, f_values, float(forcing.step), out, k, out_y,
-            i_sensor, float(level), int(direction), tol, tol_iter, drift, age, 6, lins[fan], after_switch,
+
+    name = "fast"
+
+    def __init__(self, network, forcing, output_times, out_y, tol=5e-3, tol_iter=3e-5, drift=40.0, age=21600.0,
+                 slow_iters=6, segment=SEGMENT, check_step=CHECK_STEP):
+        out = np.ascontiguousarray(output_times, dtype=float)
+        steps = grid_steps(out, float(out[0]) if out.size else 0.0, segment, check_step)
+        if steps is None:
+            raise ValueError("the compiled solver needs the output instants on one regular grid")
+        _, self.q_step, self.segment = steps
+        self.origin = float(out[0]) if out.size else 0.0
+        self.packed = kernel.pack(network)
+        self.n_nodes = network.n_nodes
+        self.i_sensor = network.index["sensor"]
+        self.out_t, self.out_y = out, out_y
+        self.f_values = np.ascontiguousarray(forcing.values, dtype=float)
+        self.f_step = float(forcing.step)
+        self.settings = (tol, tol_iter, drift, age, slow_iters)
+        n_books = out_y.shape[0] - network.n_nodes
+        self.lins = {False: new_linearisation(network.n_nodes, n_books),
+                     True: new_linearisation(network.n_nodes, n_books)}
+        self.n_rhs = 0
+
+    def advance(self, t, t_stop, y, fan, air, level, direction, after_switch, k):
+        """See :mod:`atticsim.hybrid.driver`."""
+        n = self.n_nodes
+        x, books = y[:n], y[n:]
+        pk = self.packed
+        tol, tol_iter, drift, age, slow_iters = self.settings
+        status, t_new, k_new, n_rhs, _, _, _ = advance(
+            t, t_stop, self.origin, self.segment, self.q_step, x, books, 1.0 if fan else 0.0, air, pk.prm,
+            pk.planes, pk.ints, pk.heat, self.f_values, self.f_step, self.out_t, k, self.out_y, self.i_sensor,
+            float(level), int(direction), tol, tol_iter, drift, age, 6, self.lins[bool(fan)], after_switch,
             slow_iters)
-        after_switch = status == SWITCH
-        calls += n_rhs
-        fans[k0:k] = fan
-        airs[k0:k] = [getattr(network, "air", None)] * (k - k0)
-        if status in (OFF_GRID, FAILED):
-            # an output off the check grid (not from run_raw) or a segment whose end would not converge
-            # even at half a second: the caller runs the window solver instead
-            return None
-        if status == SWITCH:
-            fan = not fan
-            events.append((t, fan, float(x[i_sensor])))
-            if need_air:
-                next_air = t  # flows follow the new fan state at once, as in the reference solver
-    if k < out.size and abs(out[k] - t) < 1e-6:
-        out_y[:n_nodes, k], out_y[n_nodes:, k] = x, books
-        fans[k], airs[k] = fan, getattr(network, "air", None)
-        k += 1
-    return HybridRun(t=out[:k].copy(), y=out_y if k == out.size else out_y[:, :k].copy(), fan=fans[:k],
-                     air=airs[:k], events=events, y_end=np.concatenate([x, books]), n_rhs=calls, air_updates=updates)
+        self.n_rhs += n_rhs
+        if status == OFF_GRID:
+            raise StepperFailed("an output instant off the check grid", t_new, k_new)
+        if status == FAILED:
+            raise StepperFailed("a segment would not converge even at half a second", t_new, k_new)
+        return status == SWITCH, t_new, k_new
+
+    def write_row(self, k, y):
+        """The state y as output row k."""
+        self.out_y[:, k] = y

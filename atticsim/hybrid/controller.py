@@ -1,58 +1,154 @@
-"""Thermostat controllers as blocks with a discrete state (fan on/off) that switches on events.
+"""The thermostat as a block with a discrete state that changes only at events: a level crossing of the sensor,
+or the instant a time rule expires.
 
-A controller tells the event loop which sensor temperature ends the present state and in which
-direction the sensor must cross it. The switching itself is exact: the loop finds the crossing
-instant by root finding on the integrator's dense output.
+Two parts, as in the hardware:
+
+- the **switch** (the comparator with hysteresis): it *calls* for the fan when the sensor crosses ``on`` and
+  releases when it crosses ``off`` (a switch that closes on rise calls when the sensor rises to ``on``, off
+  below it; one that closes on fall calls when it falls to ``on``, off above it);
+- the **time rules** (a timer stage, or a controller's settings): ``start_delay`` (the call must last this long
+  before the fan starts), ``run_on`` (the fan runs on this long after the call ends), ``min_run`` (once started
+  it runs at least this long), ``min_rest`` (once stopped it rests at least this long). With no rule the fan
+  follows the call at once.
+
+The hybrid driver asks :meth:`Controller.watch` for the crossing that changes the call and
+:meth:`Controller.deadline` for the instant a rule lets the fan change, advances the network to the earlier of
+the two, and reports which happened (:meth:`Controller.crossed`, :meth:`Controller.expired`); both return the
+cause of a fan switch at that instant (``"threshold"`` or the rule that held the fan until then), or None.
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
+
+#: The switch's actions (the trade's words).
+ACTIONS = ("close-on-rise", "close-on-fall")
+#: Causes of a fan switch, for the event records: the switch's level, or the rule that held the fan.
+CAUSES = ("threshold", "start_delay", "run_on", "min_run", "min_rest")
 
 
 @dataclass(frozen=True)
-class HysteresisController:
-    """An ideal comparator with hysteresis.
+class TimeRules:
+    """Time rules [s] (0: none): see the module docstring."""
 
-    ``action="close-on-rise"``: the fan switches on when the sensor rises to ``on`` and off when it falls
-    to ``off`` (off < on). ``action="close-on-fall"``: on when the sensor falls to ``on``, off when it
-    rises to ``off`` (on < off).
+    start_delay: float = 0.0
+    run_on: float = 0.0
+    min_run: float = 0.0
+    min_rest: float = 0.0
+
+    def __post_init__(self):
+        for name in ("start_delay", "run_on", "min_run", "min_rest"):
+            value = getattr(self, name)
+            if not (isinstance(value, (int, float)) and 0.0 <= value < math.inf):
+                raise ValueError(f"time rule {name} must be a finite duration of 0 s or more (got {value!r})")
+
+    @property
+    def any(self) -> bool:
+        return any((self.start_delay, self.run_on, self.min_run, self.min_rest))
+
+
+class Controller:
+    """A thermostat: its switch and its time rules, with their state (see the module docstring).
 
     Parameters
     ----------
     action : {"close-on-rise", "close-on-fall"}
     on, off : float
-        Switching sensor temperatures [degC].
+        Sensor temperatures at which the switch calls for the fan and releases it [degC]; a switch that
+        closes on rise needs off <= on (off == on only with a time rule, which then stops the chatter).
+    rules : TimeRules
     """
 
-    action: str
-    on: float
-    off: float
+    def __init__(self, action: str, on: float, off: float, rules: TimeRules = TimeRules()):
+        if action not in ACTIONS:
+            raise ValueError(f"action must be 'close-on-rise' or 'close-on-fall', got {action!r}")
+        rises = action == "close-on-rise"
+        if (off > on) if rises else (off < on):
+            raise ValueError(f"a switch that closes on {'rise' if rises else 'fall'} needs off "
+                             f"{'<' if rises else '>'} on")
+        if off == on and not rules.any:
+            raise ValueError("a switch without hysteresis (off = on) needs a time rule")
+        self.action, self.on, self.off, self.rules = action, float(on), float(off), rules
+        self.rises = rises
+        self.start(0.0, off if rises else on)
 
-    def __post_init__(self):
-        if self.action not in ("close-on-rise", "close-on-fall"):
-            raise ValueError(f"action must be 'close-on-rise' or 'close-on-fall', got {self.action!r}")
-        if self.action == "close-on-rise" and not self.off < self.on:
-            raise ValueError("a switch that closes on rise needs off < on")
-        if self.action == "close-on-fall" and not self.on < self.off:
-            raise ValueError("a switch that closes on fall needs on < off")
+    def start(self, t: float, sensor_temp: float) -> bool:
+        """Begin at t with the sensor at ``sensor_temp`` [degC]: the switch calls when the sensor is already
+        beyond ``on``; the fan follows the call, no rule pending. Returns the fan state."""
+        self.calling = sensor_temp >= self.on if self.rises else sensor_temp <= self.on
+        self.fan = self.calling
+        self.call_changed = -math.inf   # when the call last changed
+        self.fan_changed = -math.inf    # when the fan last switched
+        return self.fan
 
-    @property
-    def rises(self) -> bool:
-        """True when the switch closes (fan on) on a rising temperature."""
-        return self.action == "close-on-rise"
-
-    def initial_state(self, sensor_temp: float) -> bool:
-        """Fan state at the start: on only if the sensor is already beyond the switch-on point."""
-        return sensor_temp >= self.on if self.rises else sensor_temp <= self.on
-
-    def next_switch(self, fan_on: bool) -> tuple[float, int]:
-        """(sensor temperature, crossing direction +1 rising / -1 falling) that ends the present state."""
+    def watch(self) -> tuple[float, int]:
+        """(sensor level [degC], direction: +1 rising, -1 falling) of the crossing that changes the call."""
         sign = 1 if self.rises else -1
-        return (self.off, -sign) if fan_on else (self.on, sign)
+        return (self.off, -sign) if self.calling else (self.on, sign)
+
+    def _pending(self) -> tuple[float, str]:
+        """(instant, cause) at which the fan will follow the call, or (inf, "") when it already does."""
+        r = self.rules
+        if self.calling == self.fan:
+            return math.inf, ""
+        if self.calling:  # off, called on: the start delay and the rest period
+            waits = (("start_delay", self.call_changed + r.start_delay), ("min_rest", self.fan_changed + r.min_rest))
+        else:             # on, released: the run-on and the minimum run
+            waits = (("run_on", self.call_changed + r.run_on), ("min_run", self.fan_changed + r.min_run))
+        cause, when = max(waits, key=lambda w: (w[1], w[0] == waits[0][0]))
+        return when, cause
+
+    def deadline(self) -> float:
+        """The instant a time rule lets the fan follow the call [s] (inf when nothing is pending)."""
+        return self._pending()[0]
+
+    def crossed(self, t: float) -> str | None:
+        """The sensor crossed :meth:`watch`'s level at t: the call changes; returns "threshold" when the fan
+        switches at once, else None (a rule holds it until :meth:`deadline`)."""
+        self.calling = not self.calling
+        self.call_changed = t
+        when, _ = self._pending()
+        if when <= t:
+            return self._switch(t, "threshold")
+        return None
+
+    def expired(self, t: float) -> str | None:
+        """The deadline has come at t: the fan follows the call; returns the rule that held it."""
+        when, cause = self._pending()
+        if when <= t + 1e-9:
+            return self._switch(t, cause)
+        return None
+
+    def _switch(self, t: float, cause: str) -> str:
+        self.fan = not self.fan
+        self.fan_changed = t
+        return cause
 
 
-def controller_from_scenario(scenario) -> HysteresisController:
+class HeldFan:
+    """A controller that never switches: the fan held on or off for the whole run (the no-fan run, tests)."""
+
+    def __init__(self, fan_on: bool = False):
+        self.fan = bool(fan_on)
+
+    def start(self, t, sensor_temp) -> bool:
+        return self.fan
+
+    def watch(self):
+        return 0.0, 0
+
+    def deadline(self) -> float:
+        return math.inf
+
+    def crossed(self, t):  # never asked: it watches no crossing
+        return None
+
+    def expired(self, t):
+        return None
+
+
+def controller_from_scenario(scenario, rules: TimeRules | None = None) -> Controller:
     """The controller a scenario's ``[thermostat]`` table describes.
 
     For a circuit thermostat the switching points are the circuit's exact thermistor temperatures
@@ -62,5 +158,7 @@ def controller_from_scenario(scenario) -> HysteresisController:
     th = scenario.thermostat
     if th.kind == "circuit":
         t = th.thresholds()
-        return HysteresisController(action=th.action, on=t.on_c, off=t.off_c)
-    return HysteresisController(action=th.action, on=th.on, off=th.off)
+        on, off = t.on_c, t.off_c
+    else:
+        on, off = th.on, th.off
+    return Controller(th.action, on, off, rules if rules is not None else TimeRules())

@@ -52,7 +52,7 @@ def fan_intervals(events, fan_at_start: bool, t_start: float, t_end: float):
     """On-intervals [(t_on, t_off, complete)] from the event list; complete=False where an interval is
     cut by the period's start or end."""
     intervals, t_on, complete_start = [], (t_start if fan_at_start else None), False
-    for t, state, _ in events:
+    for t, state, *_ in events:
         if state and t_on is None:
             t_on, complete_start = t, True
         elif not state and t_on is not None:
@@ -165,13 +165,13 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
     if summary_only:
         # what the summary reads: the outdoor air, the flows the sensor's placement and the airflow figures use
         f = forcing.sample(run.t)
-        air = stack_states(run.air, names=AIR_ORDER + ("outdoor_flow",), runs=run.air_runs)
+        air = stack_states(run.air_runs, run.t.size, names=AIR_ORDER + ("outdoor_flow",))
         sensor_local_air = net.sensor_local_air(temps, f, run.fan, SimpleNamespace(**air))
         ts = pd.DataFrame({"attic_air_c": attic_air, "fan_on": run.fan.astype(int)},
                           index=pd.DatetimeIndex(times, name="time"))
     else:
         f = forcing.sample(run.t)
-        air = stack_states(run.air, runs=run.air_runs)
+        air = stack_states(run.air_runs, run.t.size)
         ts = _timeseries(net, run, f, air, attic_air, times)
         sensor_local_air = ts["sensor_local_air_c"].to_numpy()
 
@@ -181,6 +181,7 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "time": ev_times,
         "fan": ["on" if e[1] else "off" for e in run.events],
         "sensor_c": [e[2] for e in run.events],
+        "cause": [e[3] for e in run.events],
     })
 
     fan_start = bool(run.fan[0]) if run.fan.size else False
@@ -212,7 +213,7 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "energy_balance_error_no_fan_pct": (energy_balance_error_pct(
             net.capacities, raw.y_start_nofan, nofan.y_end, nofan.y_end[n:], n) if nofan else None),
         "short_cycle_threshold_min": sim.short_cycle / 60.0,
-        "max_starts_per_hour": max_starts_in_window([t for t, state, _ in run.events if state], 3600.0),
+        "max_starts_per_hour": max_starts_in_window([t for t, state, *_ in run.events if state], 3600.0),
         "starts_limit_per_hour": scenario.fan.max_starts_per_hour,
         "thermostat_kind": scenario.thermostat.kind,
         "switch_on_sensor_c": raw.controller.on,
@@ -521,7 +522,7 @@ def _daily(ts, run, nofan, intervals, forcing, period, short_cycle, n):
     # sorted arrays and positions instead of per-day filters (intervals and events are in time order)
     starts = np.array([s for s, _, _ in intervals], dtype=float)
     ends = np.array([e for _, e, _ in intervals], dtype=float)
-    on_times = np.array([t for t, st, _ in run.events if st], dtype=float)
+    on_times = np.array([t for t, st, *_ in run.events if st], dtype=float)
     index = ts.index
     attic, outdoor = ts["attic_air_c"].to_numpy(), ts["outdoor_air_c"].to_numpy()
     fan_e = run.y[n + BOOKS.index("fan_electric")]
