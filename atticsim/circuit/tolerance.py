@@ -165,7 +165,7 @@ def corner_deviations(spans):
         Quantity name -> array of deviations (+-span), one entry per corner (2^k corners for k non-zero spans).
     """
     varied = [q for q, s in spans.items() if s > 0.0]
-    signs = np.array(list(itertools.product((-1.0, 1.0), repeat=len(varied)))).reshape(-1, len(varied))
+    signs = np.array(list(itertools.product((-1.0, 1.0), repeat=len(varied)))).reshape(2 ** len(varied), len(varied))
     dev = {q: np.zeros(signs.shape[0]) for q in spans}
     for j, q in enumerate(varied):
         dev[q] = signs[:, j] * spans[q]
