@@ -313,3 +313,18 @@ def test_thermostat_command_reports_the_timer():
     assert "timer_wiring" not in json.loads(plain.output)
     assert json.loads(plain.output)["time_rules_s"] == {"start_delay": 0.0, "run_on": 0.0, "min_run": 0.0,
                                                          "min_rest": 0.0}
+
+
+def test_readme_timer_example_is_what_the_command_prints(tmp_path):
+    # the README's worked example, run as the README says: its excerpt must be the command's own lines
+    readme = (ROOT / "README.md").read_text()
+    table = readme.split("and this table:\n\n```toml\n", 1)[1].split("```", 1)[0]
+    excerpt = readme.split("`atticsim thermostat my_circuit.toml` prints (excerpt):\n\n```\n", 1)[1].split("```", 1)[0]
+    text = CIRCUIT.read_text().replace('[thermostat]\nkind = "circuit"\n', '[thermostat]\nkind = "circuit"\nmin_rest = "3 min"\n')
+    path = tmp_path / "my_circuit.toml"
+    path.write_text(text + "\n" + table)
+    r = invoke("thermostat", path)
+    assert r.exit_code == 0, r.output
+    printed = r.output.splitlines()
+    for line in excerpt.strip("\n").splitlines():
+        assert line in printed, line
