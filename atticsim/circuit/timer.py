@@ -65,8 +65,6 @@ ON_CALL = ("charges", "discharges")
 CAPACITORS = ("electrolytic", "film", "ceramic")
 #: Tolerance class of each capacitor type [-] (makers' usual classes [4], from memory).
 CAPACITOR_TOLERANCE = {"electrolytic": 0.20, "film": 0.05, "ceramic": 0.10}
-#: Typical input bias current of a dual open-collector comparator [A] [3]; the datasheet maximum is ~10x.
-TYPICAL_INPUT_CURRENT = 25e-9
 #: Forward drop of a small silicon diode at the small currents that end a reset [V] (from memory).
 DIODE_DROP = 0.6
 #: A shift of the delay larger than this is reported ("more than a few percent") [-].

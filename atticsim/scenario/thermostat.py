@@ -264,7 +264,8 @@ class TimerStage(_Model):
                                               description="fraction (default by capacitor: 0.20, 0.05, 0.10)")
     threshold_tolerance: Plain = Field(0.02, ge=0.0, lt=0.5, description="fraction of the threshold")
     input_current: Current = Field(25e-9, ge=0.0, le=1e-3,
-                                   description="A into the timing node from the following stage's input")
+                                   description="A into the timing node from the following stage's input (default: "
+                                               "a dual open-collector comparator's typical 25 nA, from memory)")
     leakage_current: Current | None = Field(None, ge=0.0, le=0.01,
                                             description="A, capacitor leakage at the supply voltage (measured)")
 
