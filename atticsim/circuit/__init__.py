@@ -1,5 +1,5 @@
 """The thermostat circuit library: NTC thermistor models, the comparator stage with hysteresis, tolerance
-analysis, design to standard resistor values and the mains-side checks.
+analysis, design to standard resistor values, the mains-side checks and the RC timer stage.
 
 Pure functions and small frozen dataclasses over SI floats (temperatures in degC at the interface).
 """
@@ -11,6 +11,9 @@ from atticsim.circuit.design import Design, design_circuit
 from atticsim.circuit.eseries import E12, E24, E96, round_down, round_nearest, round_up, series_values
 from atticsim.circuit.mains import MAINS_CAUTION, MainsParams, MainsReport, check_mains
 from atticsim.circuit.thermistor import Thermistor, ToleratedThermistor, fit_steinhart_hart
+from atticsim.circuit.timer import (
+    TIMER_RULES, TimerParams, TimerResult, TimerTolerances, charge_time, crossing_time, discharge_time,
+    timer_analysis, timer_delays)
 from atticsim.circuit.tolerance import ToleranceResult, Tolerances, tolerance_analysis
 
 __all__ = [
@@ -18,5 +21,6 @@ __all__ = [
     "switching_temperatures", "thermistor_power", "thermistor_power_function", "Design", "design_circuit",
     "E12", "E24", "E96", "round_down", "round_nearest", "round_up", "series_values", "MAINS_CAUTION",
     "MainsParams", "MainsReport", "check_mains", "Thermistor", "ToleratedThermistor", "fit_steinhart_hart",
-    "ToleranceResult", "Tolerances", "tolerance_analysis",
+    "ToleranceResult", "Tolerances", "tolerance_analysis", "TIMER_RULES", "TimerParams", "TimerResult",
+    "TimerTolerances", "charge_time", "crossing_time", "discharge_time", "timer_analysis", "timer_delays",
 ]

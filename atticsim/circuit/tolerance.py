@@ -147,24 +147,69 @@ def worst_case(params, tolerances=Tolerances()):
     tuple
         ((on_min, on_max) [degC], (off_min, off_max) [degC], (hyst_min, hyst_max) [K], corners that never switch).
     """
-    spans = _spans(params, tolerances)
-    varied = [q for q in _QUANTITIES if spans[q] > 0.0]
-    signs = np.array(list(itertools.product((-1.0, 1.0), repeat=len(varied)))).reshape(-1, len(varied))
-    dev = {q: np.zeros(signs.shape[0]) for q in _QUANTITIES}
+    on, off = _evaluate(params, corner_deviations(_spans(params, tolerances)))
+    return extremes(on), extremes(off), extremes(np.abs(on - off)), int(np.isnan(on).sum())
+
+
+def corner_deviations(spans):
+    """Deviations at every corner of a tolerance box.
+
+    Parameters
+    ----------
+    spans : dict
+        Quantity name -> tolerance (relative or absolute, as the caller reads it); zero spans stay nominal.
+
+    Returns
+    -------
+    dict
+        Quantity name -> array of deviations (+-span), one entry per corner (2^k corners for k non-zero spans).
+    """
+    varied = [q for q, s in spans.items() if s > 0.0]
+    signs = np.array(list(itertools.product((-1.0, 1.0), repeat=len(varied)))).reshape(2 ** len(varied), len(varied))
+    dev = {q: np.zeros(signs.shape[0]) for q in spans}
     for j, q in enumerate(varied):
         dev[q] = signs[:, j] * spans[q]
-    on, off = _evaluate(params, dev)
-    return _extremes(on), _extremes(off), _extremes(np.abs(on - off)), int(np.isnan(on).sum())
+    return dev
 
 
-def _extremes(x):
+def random_deviations(spans, samples, seed):
+    """Monte-Carlo deviations: each quantity normal with sigma = span/3, clipped at +-span.
+
+    A tolerance class read as a +-3 sigma limit (common practice, no source). One draw per quantity in the
+    order of ``spans`` (zero spans included), so that a seed gives the same circuits run after run.
+
+    Parameters
+    ----------
+    spans : dict
+        Quantity name -> tolerance.
+    samples : int
+        Number of random circuits (at least 20).
+    seed : int
+        Seed of the random generator.
+
+    Returns
+    -------
+    dict
+        Quantity name -> array of ``samples`` deviations.
+    """
+    if not (isinstance(samples, int) and samples >= 20):
+        raise ValueError(f"Monte-Carlo sample count must be an integer of at least 20 (got {samples!r})")
+    rng = np.random.default_rng(seed)
+    return {q: np.clip(rng.standard_normal(samples), -3.0, 3.0) * (s / 3.0) for q, s in spans.items()}
+
+
+def extremes(x):
+    """(min, max) of the finite values of x (NaN, NaN when there are none)."""
     x = x[np.isfinite(x)]
     return (float(x.min()), float(x.max())) if x.size else (float("nan"), float("nan"))
 
 
-def _band(x):
+def band(x):
+    """(5 %, 95 %) percentiles of the finite values of x (NaN, NaN when there are none)."""
     x = x[np.isfinite(x)]
     return tuple(float(v) for v in np.percentile(x, [5.0, 95.0])) if x.size else (float("nan"), float("nan"))
+
+
 
 
 def monte_carlo(params, tolerances=Tolerances(), samples=2000, seed=0):
@@ -186,13 +231,8 @@ def monte_carlo(params, tolerances=Tolerances(), samples=2000, seed=0):
     tuple
         ((on_5, on_95) [degC], (off_5, off_95) [degC], (hyst_5, hyst_95) [K], samples that never switch).
     """
-    if not (isinstance(samples, int) and samples >= 20):
-        raise ValueError(f"Monte-Carlo sample count must be an integer of at least 20 (got {samples!r})")
-    rng = np.random.default_rng(seed)
-    spans = _spans(params, tolerances)
-    dev = {q: np.clip(rng.standard_normal(samples), -3.0, 3.0) * (spans[q] / 3.0) for q in _QUANTITIES}
-    on, off = _evaluate(params, dev)
-    return _band(on), _band(off), _band(np.abs(on - off)), int(np.isnan(on).sum())
+    on, off = _evaluate(params, random_deviations(_spans(params, tolerances), samples, seed))
+    return band(on), band(off), band(np.abs(on - off)), int(np.isnan(on).sum())
 
 
 def tolerance_analysis(params, tolerances=Tolerances(), samples=2000, seed=0):

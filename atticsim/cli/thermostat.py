@@ -29,8 +29,9 @@ from atticsim.cli.options import scenario_argument, set_option, units_option
 @units_option
 def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis, series, write_to, force, units):
     """Explain SCENARIO's circuit thermostat: the temperatures its parts really switch at (with
-    self-heating and tolerances), its LED current and its mains-side supply; or, with --design, the parts
-    that give wanted temperatures (of the air by default: the thermistor's own dissipation included)."""
+    self-heating and tolerances), its LED current, its mains-side supply, its timer stage and the time
+    rules the simulation applies; or, with --design, the parts that give wanted temperatures (of the air by
+    default: the thermistor's own dissipation included)."""
     from atticsim.report.thermostat import design_report, design_text, thermostat_report, thermostat_text
     from atticsim.scenario import load_scenario
     from atticsim.units import to_si

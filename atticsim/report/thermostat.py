@@ -3,6 +3,8 @@ the design the other way round. Returns plain dicts (for JSON) and text (for the
 
 from __future__ import annotations
 
+import math
+
 from atticsim.report.cautions import MAINS, caution_text
 
 
@@ -76,6 +78,7 @@ def thermostat_report(scenario) -> dict:
             "zener_power", "discharge_voltage_1s", "bleed_resistor_max", "triac_loss", "heatsink_rth_needed",
             "starting_current", "gate_resistor_min", "fuse_suggested")}
         out["mains"]["findings"] = list(m.findings)
+    out.update(timer_report(th))
     out["cautions"] = [MAINS]
     return out
 
@@ -115,8 +118,103 @@ def thermostat_text(report: dict, units: str = "si") -> str:
         lines.append(f"  mains side: dropper {m['dropper_current'] * 1e3:.1f} mA ac; {m['dc_available_low'] * 1e3:.1f} "
                      f"mA dc at low line for a {m['load_current'] * 1e3:.1f} mA load")
         lines += [f"  - {f}" for f in m["findings"]]
+    lines += timer_lines(r)
     lines.append(caution_text())
     return "\n".join(lines)
+
+
+def _number(x):
+    """A float for JSON: None for NaN or inf (never reached)."""
+    return float(x) if x is not None and math.isfinite(x) else None
+
+
+def timer_report(thermostat) -> dict:
+    """The time rules a thermostat applies and, with ``[thermostat.timer]``, its timer stage explained.
+
+    Keys: ``time_rules_s`` (every rule [s], 0 where none), ``time_rule_sources`` (rule -> the key that sets
+    it); with a timer ``timer_wiring``, ``timer_on_call``, ``timer_resistance_ohm``, ``timer_capacitance_f``,
+    ``timer_tau_s`` (R C), ``timer_threshold`` (fraction), ``timer_threshold_v``, ``timer_supply_v``,
+    ``timer_delay_s`` (rule -> delay with the node's input and leakage currents: what the simulation
+    applies), ``timer_ideal_delay_s`` (the ideal stage's closed form), ``timer_band_s`` (Monte-Carlo 5-95 %),
+    ``timer_worst_s`` (worst-case corners), ``timer_tolerances``, ``timer_never_switch`` and
+    ``timer_findings``.
+    """
+    from dataclasses import asdict
+
+    rules = thermostat.time_rules()
+    out = {"time_rules_s": asdict(rules), "time_rule_sources": thermostat.time_rule_sources()}
+    params = getattr(thermostat, "timer_params", lambda: None)()
+    if params is None:
+        return out
+    from atticsim.circuit.timer import timer_analysis
+
+    tol = thermostat.timer.tolerances()
+    res = timer_analysis(params, tol, samples=thermostat.tolerances.samples, seed=thermostat.tolerances.seed)
+    out.update({
+        "timer_wiring": params.wiring, "timer_on_call": params.on_call,
+        "timer_resistance_ohm": params.resistance, "timer_capacitance_f": params.capacitance,
+        "timer_tau_s": params.tau, "timer_threshold": params.threshold, "timer_threshold_v": params.threshold_v,
+        "timer_supply_v": params.supply, "timer_capacitor": params.capacitor,
+        "timer_input_current_a": params.input_current, "timer_leakage_current_a": params.leakage_current,
+        "timer_delay_s": {k: _number(v) for k, v in res.delays.items()},
+        "timer_ideal_delay_s": {k: _number(v) for k, v in res.ideal.items()},
+        "timer_band_s": {k: [_number(x) for x in v] for k, v in res.band.items()},
+        "timer_worst_s": {k: [_number(x) for x in v] for k, v in res.worst.items()},
+        "timer_tolerances": {"resistor": tol.resistor, "capacitor": tol.capacitor, "threshold": tol.threshold},
+        "timer_never_switch": res.never_switch,
+        "timer_findings": list(res.findings),
+    })
+    return out
+
+
+_WIRING_WORDS = {
+    "delay-start": "an input delay; the fan starts once the call has stood this long",
+    "delay-stop": "an input delay; the fan runs on this long after the call ends",
+    "delay-both": "an input delay both ways, without a diode",
+    "minimum-run": "a monostable after the comparator; each start runs the fan at least this long",
+}
+
+
+def _seconds(s, minutes=True):
+    if s is None:
+        return "never"
+    if s < 120.0 or not minutes:
+        return f"{s:.1f} s" if s < 120.0 else f"{s:.0f} s"
+    return f"{s:.0f} s = {s / 60.0:.1f} min"
+
+
+def _parts(r):
+    ohm, cap = r["timer_resistance_ohm"], r["timer_capacitance_f"]
+    ohm_text = f"{ohm / 1e6:.3g} MΩ" if ohm >= 1e6 else f"{ohm / 1e3:.3g} kΩ" if ohm >= 1e3 else f"{ohm:.3g} Ω"
+    cap_text = f"{cap * 1e6:.3g} µF" if cap >= 1e-7 else f"{cap * 1e9:.3g} nF"
+    return f"{ohm_text}, {cap_text} {r['timer_capacitor']}"
+
+
+def timer_lines(report: dict) -> list:
+    """Terminal lines for :func:`timer_report`'s keys in ``report``."""
+    from atticsim.circuit.timer import RULE_WORDS
+
+    lines = []
+    r = report
+    if "timer_wiring" in r:
+        charges = "charges" if r["timer_on_call"] == "charges" else "discharges"
+        call = "" if r["timer_wiring"] == "minimum-run" else f"; the capacitor {charges} while the thermostat calls"
+        lines += [f"  timer stage \"{r['timer_wiring']}\": {_WIRING_WORDS[r['timer_wiring']]}",
+                  f"    {_parts(r)}: R C = {_seconds(r['timer_tau_s'])}; switches at {r['timer_threshold']:.3f} x "
+                  f"{r['timer_supply_v']:g} V = {r['timer_threshold_v']:.2f} V{call}"]
+        for k, d in r["timer_delay_s"].items():
+            band, worst = r["timer_band_s"][k], r["timer_worst_s"][k]
+            lines.append(f"    {RULE_WORDS[k]} {_seconds(d)} (ideal R C stage {_seconds(r['timer_ideal_delay_s'][k], False)}); "
+                         f"part tolerances {_seconds(band[0], False)} .. {_seconds(band[1], False)} (5-95 %), "
+                         f"worst case {_seconds(worst[0], False)} .. {_seconds(worst[1], False)}")
+        lines += [f"  - {f}" for f in r["timer_findings"]]
+    sources = r["time_rule_sources"]
+    if sources:
+        rules = "; ".join(f"{RULE_WORDS[k]} {_seconds(r['time_rules_s'][k])} ({v})" for k, v in sources.items())
+        lines.append(f"  time rules for the simulation: {rules}")
+    else:
+        lines.append("  time rules: none (the fan follows the thermostat's call)")
+    return lines
 
 
 def design_report(scenario, on_c: float, off_c: float | None = None, hysteresis_k: float | None = None,

@@ -3,15 +3,21 @@
 ``kind = "setpoints"``: an ideal comparator with hysteresis given by ``on``/``off`` sensor temperatures.
 ``kind = "circuit"``: the NTC divider, reference divider, comparator with positive feedback and the
 opto-triac driver's LED as its pull-up, described by component values in ``[thermostat.circuit]``
-(optionally ``[thermostat.tolerances]`` and ``[thermostat.mains]``); the simulation then switches at
-the circuit's real thresholds and heats the sensor by its divider power.
+(optionally ``[thermostat.tolerances]``, ``[thermostat.mains]`` and an RC timer stage,
+``[thermostat.timer]``); the simulation then switches at the circuit's real thresholds and heats the
+sensor by its divider power.
+
+Both kinds take time rules (``start_delay``, ``run_on``, ``min_run``, ``min_rest``); a circuit's timer
+stage sets the rules it implements. :func:`time_rules` gives the rules a scenario's controller applies.
 """
 
 from __future__ import annotations
 
+import math
+from dataclasses import dataclass
 from typing import Annotated, Literal
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, model_validator
+from pydantic import AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field, field_validator, model_validator
 
 from atticsim.units import to_si
 
@@ -28,6 +34,32 @@ Capacitance = Annotated[float, _q("capacitance")]
 Frequency = Annotated[float, _q("frequency")]
 Plain = Annotated[float, _q("dimensionless")]
 
+def _ratio(value):
+    """A fraction written as a ratio ("2/3") or anything :func:`to_si` reads as a plain number."""
+    if isinstance(value, str) and value.count("/") == 1:
+        num, den = (part.strip() for part in value.split("/"))
+        try:
+            return float(num) / float(den)
+        except (ValueError, ZeroDivisionError):
+            raise ValueError(f"expected a fraction such as 0.5 or '2/3', got {value!r}") from None
+    return to_si(value, "dimensionless")
+
+
+Ratio = Annotated[float, BeforeValidator(_ratio)]
+
+#: Longest time rule [s]: a day.
+RULE_MAX_S = 86400.0
+
+
+def _rule_span(value: float) -> float:
+    if not (math.isfinite(value) and 0.0 <= value <= RULE_MAX_S):
+        raise ValueError(f"a time rule lasts from 0 to one day (86400 s); got {value:g} s")
+    return value
+
+
+#: A time rule [s]: "3 min", "90 s", a bare number in seconds; 0 to a day.
+RuleDuration = Annotated[float, _q("time"), AfterValidator(_rule_span)]
+
 
 class _Model(BaseModel):
     model_config = ConfigDict(extra="forbid", frozen=True)
@@ -38,11 +70,61 @@ class _Model(BaseModel):
 Action = Literal["close-on-rise", "close-on-fall"]
 
 
+#: The time rules, in the order of TimeRules.
+RULES = ("start_delay", "run_on", "min_run", "min_rest")
+
+
+@dataclass(frozen=True)
+class TimeRules:
+    """The time rules a controller applies on top of the thermostat's call [s] (0: no rule).
+
+    The thermostat *calls* for the fan between its switch-on and switch-off points: for a switch that
+    closes on rise, from the moment the sensor rises to ``on`` until it falls to ``off``; for one that
+    closes on fall, from the moment it falls to ``on`` until it rises to ``off``. The rules act on that
+    call, the same for both actions:
+
+    - ``start_delay``: the call must stand continuously this long before the fan starts; a call that
+      ends sooner starts nothing (the delay begins again at the next call).
+    - ``run_on``: after the call ends the fan keeps running this long; a call that returns meanwhile
+      keeps it running (the run-on begins again when that call ends).
+    - ``min_run``: once started, the fan runs at least this long, measured from its start.
+    - ``min_rest``: once stopped, the fan stays off at least this long, measured from its stop.
+
+    They run side by side: the fan starts at the first instant when the call has stood ``start_delay``
+    and the fan has rested ``min_rest``; it stops at the first instant when the call has been gone
+    ``run_on`` and the fan has run ``min_run``.
+    """
+
+    start_delay: float = 0.0
+    run_on: float = 0.0
+    min_run: float = 0.0
+    min_rest: float = 0.0
+
+    def any(self) -> bool:
+        """True when at least one rule is set."""
+        return any(getattr(self, k) > 0.0 for k in RULES)
+
+
 class _Thermostat(_Model):
-    """What both kinds share: the switch's action."""
+    """What both kinds share: the switch's action and the time rules."""
 
     action: Action = Field("close-on-rise", description="close-on-rise: fan on when warm; close-on-fall: "
                                                         "fan on when cold")
+    start_delay: RuleDuration = Field(0.0, description="s; the thermostat must call for the fan continuously this "
+                                                       "long before the fan starts (0: at once)")
+    run_on: RuleDuration = Field(0.0, description="s; the fan keeps running this long after the thermostat "
+                                                  "releases (0: stops at once)")
+    min_run: RuleDuration = Field(0.0, description="s; once started, the fan runs at least this long (0: no minimum)")
+    min_rest: RuleDuration = Field(0.0, description="s; once stopped, the fan stays off at least this long "
+                                                    "(0: no minimum)")
+
+    def time_rules(self) -> TimeRules:
+        """The time rules this thermostat applies (see :class:`TimeRules`)."""
+        return TimeRules(**{k: getattr(self, k) for k in RULES})
+
+    def time_rule_sources(self) -> dict:
+        """Rule name -> the key that sets it, for every rule that is set."""
+        return {k: f"thermostat.{k}" for k in RULES if getattr(self, k) > 0.0}
 
 
 class SetpointThermostat(_Thermostat):
@@ -51,6 +133,14 @@ class SetpointThermostat(_Thermostat):
     kind: Literal["setpoints"]
     on: Temperature = Field(ge=-40.0, le=120.0)
     off: Temperature = Field(ge=-40.0, le=120.0)
+
+    @model_validator(mode="before")
+    @classmethod
+    def _no_timer_stage(cls, data):
+        if isinstance(data, dict) and "timer" in data:
+            raise ValueError('[thermostat.timer] is a stage of a circuit thermostat (kind = "circuit"); with '
+                             "setpoints give the rules themselves: start_delay, run_on, min_run, min_rest")
+        return data
 
     @model_validator(mode="after")
     def _order(self):
@@ -153,6 +243,56 @@ class MainsSide(_Model):
         return MainsParams(**{k: v for k, v in self.model_dump().items() if v is not None})
 
 
+class TimerStage(_Model):
+    """An RC timer stage between the comparator and the driver, or a monostable after the comparator
+    (``[thermostat.timer]``; see :mod:`atticsim.circuit.timer`)."""
+
+    wiring: Literal["delay-start", "delay-stop", "delay-both", "minimum-run"] = Field(
+        description="delay-start: the call waits R C ln(...) (diode across R: release at once); delay-stop: "
+                    "the fan runs on after the release (diode the other way: start at once); delay-both: no "
+                    "diode, both; minimum-run: a monostable the call triggers, holding the fan on")
+    resistance: Resistance = Field(gt=0.0, le=1e9, description="ohm, timing resistance (the whole charging path)")
+    capacitance: Capacitance = Field(gt=0.0, le=1.0, description="F, timing capacitor")
+    threshold: Ratio = Field(gt=0.0, lt=1.0, description="fraction of the supply at which the following stage "
+                                                        "switches (a divider's ratio; a timer IC's 2/3)")
+    supply: Voltage | None = Field(None, gt=0.0, le=40.0, description="V, the stage's supply (default circuit.rail)")
+    on_call: Literal["charges", "discharges"] = Field(
+        "charges", description="what the capacitor does while the thermostat calls (input delays)")
+    capacitor: Literal["electrolytic", "film", "ceramic"] = "electrolytic"
+    resistor_tolerance: Plain = Field(0.05, ge=0.0, lt=0.5, description="fraction")
+    capacitor_tolerance: Plain | None = Field(None, ge=0.0, lt=0.5,
+                                              description="fraction (default by capacitor: 0.20, 0.05, 0.10)")
+    threshold_tolerance: Plain = Field(0.02, ge=0.0, lt=0.5, description="fraction of the threshold")
+    input_current: Current = Field(25e-9, ge=0.0, le=1e-3,
+                                   description="A into the timing node from the following stage's input (default: "
+                                               "a dual open-collector comparator's typical 25 nA, from memory)")
+    leakage_current: Current | None = Field(None, ge=0.0, le=0.01,
+                                            description="A, capacitor leakage at the supply voltage (measured)")
+
+    @model_validator(mode="after")
+    def _monostable_charges(self):
+        if self.wiring == "minimum-run" and self.on_call != "charges":
+            raise ValueError('on_call applies to the input delays: a monostable\'s capacitor always charges '
+                             'after the trigger (leave on_call out with wiring = "minimum-run")')
+        return self
+
+    def params(self, rail: float):
+        """The circuit library's TimerParams (supply defaulting to ``rail``)."""
+        from atticsim.circuit.timer import TimerParams
+
+        return TimerParams(wiring=self.wiring, resistance=self.resistance, capacitance=self.capacitance,
+                           threshold=self.threshold, supply=self.supply or rail, on_call=self.on_call,
+                           input_current=self.input_current, leakage_current=self.leakage_current,
+                           capacitor=self.capacitor)
+
+    def tolerances(self):
+        """The circuit library's TimerTolerances."""
+        from atticsim.circuit.timer import CAPACITOR_TOLERANCE, TimerTolerances
+
+        cap = CAPACITOR_TOLERANCE[self.capacitor] if self.capacitor_tolerance is None else self.capacitor_tolerance
+        return TimerTolerances(resistor=self.resistor_tolerance, capacitor=cap, threshold=self.threshold_tolerance)
+
+
 class CircuitThermostat(_Thermostat):
     """The thermostat built from parts."""
 
@@ -160,6 +300,62 @@ class CircuitThermostat(_Thermostat):
     circuit: CircuitValues
     tolerances: CircuitTolerances = CircuitTolerances()
     mains: MainsSide | None = None
+    timer: TimerStage | None = None
+
+    @field_validator("timer")
+    @classmethod
+    def _timer_switches(cls, timer, info):
+        circuit = info.data.get("circuit")
+        if timer is None or circuit is None:
+            return timer
+        from atticsim.circuit.timer import stuck_words
+
+        p = timer.params(circuit.rail)
+        never = stuck_words(p)
+        if never:
+            raise ValueError(f"with {p.input_current * 1e9:.0f} nA of input current and {(p.leakage_current or 0) * 1e6:.2g} "
+                             f"uA of leakage at the timing node the capacitor never crosses its {p.threshold_v:.2f} V "
+                             f"threshold through {p.resistance:.3g} ohm: the fan would {never}")
+        return timer
+
+    @model_validator(mode="after")
+    def _timer_or_rule(self):
+        from atticsim.circuit.timer import RULE_WORDS, TIMER_RULES
+
+        if self.timer is None:
+            return self
+        for rule in TIMER_RULES[self.timer.wiring]:
+            if rule in self.model_fields_set:
+                raise ValueError(
+                    f'thermostat.timer (wiring "{self.timer.wiring}") and thermostat.{rule} both set the '
+                    f"{RULE_WORDS[rule]}: the circuit is what the house will have, so give one of them "
+                    f"(remove thermostat.{rule}, or the timer)")
+        return self
+
+    def timer_params(self):
+        """The timer stage's TimerParams, or None without ``[thermostat.timer]``."""
+        return None if self.timer is None else self.timer.params(self.circuit.rail)
+
+    def time_rules(self) -> TimeRules:
+        """The time rules: the ``thermostat.*`` keys, with the timer stage's delays for the rules it implements
+        (with its input and leakage currents, from a settled capacitor)."""
+        rules = super().time_rules()
+        if self.timer is None:
+            return rules
+        from dataclasses import replace
+
+        from atticsim.circuit.timer import timer_delays
+
+        return replace(rules, **timer_delays(self.timer_params()))
+
+    def time_rule_sources(self) -> dict:
+        """Rule name -> the key that sets it, for every rule that is set."""
+        out = super().time_rule_sources()
+        if self.timer is not None:
+            from atticsim.circuit.timer import TIMER_RULES
+
+            out.update({k: "thermostat.timer" for k in TIMER_RULES[self.timer.wiring]})
+        return {k: out[k] for k in RULES if k in out}
 
     @model_validator(mode="after")
     def _switches(self):
@@ -195,3 +391,19 @@ class CircuitThermostat(_Thermostat):
 
         t = self.tolerances
         return Tolerances(resistor=t.resistor, trim=t.trim, r25=t.r25, beta=t.beta, rail=t.rail, offset=t.offset)
+
+
+def time_rules(scenario) -> TimeRules:
+    """The time rules a scenario's controller applies [s]: its ``thermostat.*`` keys and, for a circuit
+    thermostat, its timer stage's delays (plain floats; no compiled code).
+
+    Parameters
+    ----------
+    scenario : Scenario
+        A validated scenario (or its ``thermostat``).
+
+    Returns
+    -------
+    TimeRules
+    """
+    return getattr(scenario, "thermostat", scenario).time_rules()
