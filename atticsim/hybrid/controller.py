@@ -20,32 +20,28 @@ cause of a fan switch at that instant (``"threshold"`` or the rule that held the
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 #: The switch's actions (the trade's words).
 ACTIONS = ("close-on-rise", "close-on-fall")
+#: The hysteresis a switch without any is given [K] (a numerical choice: it moves a crossing by under a
+#: millisecond at any rate of change the attic sees).
+ZERO_BAND = 1e-6
+#: The time rules, in the order of their records.
+RULES = ("start_delay", "run_on", "min_run", "min_rest")
 #: Causes of a fan switch, for the event records: the switch's level, or the rule that held the fan.
-CAUSES = ("threshold", "start_delay", "run_on", "min_run", "min_rest")
+CAUSES = ("threshold",) + RULES
 
 
-@dataclass(frozen=True)
-class TimeRules:
-    """Time rules [s] (0: none): see the module docstring."""
-
-    start_delay: float = 0.0
-    run_on: float = 0.0
-    min_run: float = 0.0
-    min_rest: float = 0.0
-
-    def __post_init__(self):
-        for name in ("start_delay", "run_on", "min_run", "min_rest"):
-            value = getattr(self, name)
-            if not (isinstance(value, (int, float)) and 0.0 <= value < math.inf):
-                raise ValueError(f"time rule {name} must be a finite duration of 0 s or more (got {value!r})")
-
-    @property
-    def any(self) -> bool:
-        return any((self.start_delay, self.run_on, self.min_run, self.min_rest))
+def _rule_values(rules):
+    """(start_delay, run_on, min_run, min_rest) [s] of a time-rules record (``atticsim.scenario.thermostat.
+    TimeRules`` or any object with those attributes; None: no rules), checked."""
+    if rules is None:
+        return 0.0, 0.0, 0.0, 0.0
+    values = tuple(float(getattr(rules, name)) for name in RULES)
+    for name, value in zip(RULES, values):
+        if not 0.0 <= value < math.inf:
+            raise ValueError(f"time rule {name} must be a finite duration of 0 s or more (got {value!r})")
+    return values
 
 
 class Controller:
@@ -57,19 +53,24 @@ class Controller:
     on, off : float
         Sensor temperatures at which the switch calls for the fan and releases it [degC]; a switch that
         closes on rise needs off <= on (off == on only with a time rule, which then stops the chatter).
-    rules : TimeRules
+    rules : TimeRules, optional
+        The time rules (``atticsim.scenario.thermostat.TimeRules``: start_delay, run_on, min_run, min_rest [s]).
     """
 
-    def __init__(self, action: str, on: float, off: float, rules: TimeRules = TimeRules()):
+    def __init__(self, action: str, on: float, off: float, rules=None):
         if action not in ACTIONS:
             raise ValueError(f"action must be 'close-on-rise' or 'close-on-fall', got {action!r}")
         rises = action == "close-on-rise"
         if (off > on) if rises else (off < on):
             raise ValueError(f"a switch that closes on {'rise' if rises else 'fall'} needs off "
                              f"{'<' if rises else '>'} on")
-        if off == on and not rules.any:
-            raise ValueError("a switch without hysteresis (off = on) needs a time rule")
-        self.action, self.on, self.off, self.rules = action, float(on), float(off), rules
+        self.start_delay, self.run_on, self.min_run, self.min_rest = _rule_values(rules)
+        if off == on and not (self.start_delay or self.min_run or self.min_rest):
+            raise ValueError("a switch without hysteresis (off = on) needs a start delay, minimum run or rest")
+        if off == on:
+            # a switch without hysteresis, taken with 1 uK of it, so that each crossing is found on its own side
+            off = on - ZERO_BAND if rises else on + ZERO_BAND
+        self.action, self.on, self.off = action, float(on), float(off)
         self.rises = rises
         self.start(0.0, off if rises else on)
 
@@ -89,13 +90,12 @@ class Controller:
 
     def _pending(self) -> tuple[float, str]:
         """(instant, cause) at which the fan will follow the call, or (inf, "") when it already does."""
-        r = self.rules
         if self.calling == self.fan:
             return math.inf, ""
         if self.calling:  # off, called on: the start delay and the rest period
-            waits = (("start_delay", self.call_changed + r.start_delay), ("min_rest", self.fan_changed + r.min_rest))
+            waits = (("start_delay", self.call_changed + self.start_delay), ("min_rest", self.fan_changed + self.min_rest))
         else:             # on, released: the run-on and the minimum run
-            waits = (("run_on", self.call_changed + r.run_on), ("min_run", self.fan_changed + r.min_run))
+            waits = (("run_on", self.call_changed + self.run_on), ("min_run", self.fan_changed + self.min_run))
         cause, when = max(waits, key=lambda w: (w[1], w[0] == waits[0][0]))
         return when, cause
 
@@ -148,8 +148,9 @@ class HeldFan:
         return None
 
 
-def controller_from_scenario(scenario, rules: TimeRules | None = None) -> Controller:
-    """The controller a scenario's ``[thermostat]`` table describes.
+def controller_from_scenario(scenario) -> Controller:
+    """The controller a scenario's ``[thermostat]`` table describes: its switching points and its time rules
+    (the ``thermostat.*`` keys and the circuit's timer stage: ``Thermostat.time_rules``).
 
     For a circuit thermostat the switching points are the circuit's exact thermistor temperatures
     (node equations solved by :func:`atticsim.circuit.switching_temperatures`); the sensor node is the
@@ -161,4 +162,4 @@ def controller_from_scenario(scenario, rules: TimeRules | None = None) -> Contro
         on, off = t.on_c, t.off_c
     else:
         on, off = th.on, th.off
-    return Controller(th.action, on, off, rules if rules is not None else TimeRules())
+    return Controller(th.action, on, off, th.time_rules())

@@ -144,12 +144,14 @@ class SetpointThermostat(_Thermostat):
 
     @model_validator(mode="after")
     def _order(self):
-        if self.action == "close-on-rise" and not self.off < self.on:
-            raise ValueError(f"a switch that closes on rise needs off < on (got on {self.on:g} degC, "
-                             f"off {self.off:g} degC)")
-        if self.action == "close-on-fall" and not self.on < self.off:
-            raise ValueError(f"a switch that closes on fall needs on < off (got on {self.on:g} degC, "
-                             f"off {self.off:g} degC)")
+        # without hysteresis (off = on) only a start delay, a minimum run or a minimum rest stops the chatter
+        timed = self.start_delay > 0.0 or self.min_run > 0.0 or self.min_rest > 0.0
+        if self.action == "close-on-rise" and not (self.off < self.on or (self.off == self.on and timed)):
+            raise ValueError(f"a switch that closes on rise needs off < on, or off = on with a start delay, "
+                             f"minimum run or minimum rest (got on {self.on:g} degC, off {self.off:g} degC)")
+        if self.action == "close-on-fall" and not (self.on < self.off or (self.off == self.on and timed)):
+            raise ValueError(f"a switch that closes on fall needs on < off, or off = on with a start delay, "
+                             f"minimum run or minimum rest (got on {self.on:g} degC, off {self.off:g} degC)")
         return self
 
 
