@@ -1,0 +1,135 @@
+"""Validation cases: field studies. A field study measured other houses in their own weather; the cases run
+our fictional demo house in the nearest real climate pvlib ships (typical-year files) and compare the tool's
+figure with the published one or its range, saying which house and climate stand on each side."""
+
+from __future__ import annotations
+
+from functools import lru_cache
+
+from atticsim.validation.registry import OUTSIDE, Comparison, case
+
+_PARKER = ("Parker, Sonne & Sherwin (2002), Comparative Evaluation of the Impact of Roofing Systems on "
+           "Residential Cooling Energy Demand in Florida, ACEEE Summer Study, FSEC-CR-1220-00: the attic at "
+           "the peak summer hour")
+_FLORIDA = ("Ours: the demo house (fictional; 140 m2 gable attic, 4 air changes an hour of passive "
+            "ventilation, fan disabled) with R-19 over the ceiling, on pvlib's typical year 12839.tm2 (Miami, "
+            "FL, hot-humid) for 8-31 July; the figure is the mean day's attic air (volume mean) minus outdoor "
+            "air at the hour the outdoor air peaks. Theirs: side-by-side unoccupied houses in Ft. Myers, FL, "
+            "R-19 ceilings, 8-31 July 2000, attic air measured at mid-attic")
+_WHITE = {"roof": {"absorptance": 0.30, "surface_texture": "glassy", "covering": {"material": "metal"}}}
+
+
+@lru_cache(maxsize=None)
+def _florida_july(insulation="R-19", white=False):
+    """Hourly mean day (outdoor air, attic air, ceiling flux) of the demo house without its fan in Miami,
+    8-31 July of the typical year (laid on 2000, the year the field houses were measured)."""
+    from atticsim.forcing.weather import load_weather
+    from atticsim.pipeline import simulate
+    from atticsim.validation.houses import demo_house
+
+    changes = {"fan": {"enabled": False}, "simulation": {"spinup_days": 3}, "ceiling": {"insulation": insulation}}
+    if white:
+        changes.update(_WHITE)
+    weather = load_weather("pvlib:12839.tm2", year=2000)
+    r = simulate(demo_house(changes, "field case"), weather=weather, start="2000-07-08", end="2000-07-31")
+    ts = r.timeseries
+    day = ts[["outdoor_air_c", "attic_air_c", "ceiling_heat_gain_w"]].groupby(ts.index.hour).mean()
+    day["ceiling_flux_w_m2"] = day["ceiling_heat_gain_w"] / r.scenario.attic.floor_area
+    return day
+
+
+def _peak_hour_excess(day):
+    hour = int(day["outdoor_air_c"].idxmax())
+    return float(day["attic_air_c"][hour] - day["outdoor_air_c"][hour]), hour
+
+
+@case(group="field comparisons", name="Dark shingles: attic air above outdoor air at the peak hour",
+      source=_PARKER + ", control house with standard dark shingles: 40 degF (22.2 K) above ambient",
+      unit="K", tolerance=5.0, digits=1,
+      inputs=_FLORIDA + ". One measured house, so the band (±5 K) is ours: attics of one construction differ "
+             "by a few kelvin with their vents, shading and sensors")
+def dark_roof_excess():
+    excess, hour = _peak_hour_excess(_florida_july())
+    return Comparison(excess, 40.0 / 1.8, note=f"outdoor air peaks in the {hour:02d}:00 hour (standard time)")
+
+
+@case(group="field comparisons", name="White metal roof: attic air above outdoor air at the peak hour",
+      source=_PARKER + ", highly reflective roofs (white metal, white tile): no greater than ambient",
+      unit="K", tolerance=0.0, kind="range", digits=1, expected=OUTSIDE,
+      inputs=_FLORIDA.replace("with R-19", "with a white metal roof (solar absorptance 0.30, emittance 0.90; "
+                                           "from memory for new white paint) and R-19")
+      + "; the published bound is taken as a range from -10 K to 0 K",
+      why=("In the model the white roof still absorbs 30 % of the sun and runs about 11 K above the outdoor air "
+           "at the peak hour of the mean day; the attic air follows it to 6 K above, where the measured attics "
+           "stayed at or below the outdoor air. Not resolved: with absorptance 0.25 the same run gives 4.6 K, and "
+           "with twice the ventilation (8 air changes an hour) 4.5 K, so neither alone closes the gap. The dark "
+           "roof (the case above) is within its band, so the miss is in how little heat a reflective roof lets "
+           "through, which the model overstates or the single measured house understates"))
+def white_roof_excess():
+    excess, hour = _peak_hour_excess(_florida_july(white=True))
+    return Comparison(excess, (-10.0, 0.0), note=f"outdoor air peaks in the {hour:02d}:00 hour (standard time)")
+
+
+_TOOLEY = ("Tooley & Davis (1995), powered attic ventilators in eight North Carolina houses, EEBA Excellence in "
+           "Building conference (from memory)")
+_CAROLINA = ("Ours: the demo house (fictional) with its vents, leaks and fan described as in "
+             "scenarios/starved_intakes.toml (1 ft2 of soffit, 2 ft2 of gable vents, a 1600 cfm roof fan on its "
+             "curve, 30 in2 of ceiling leaks, 90 in2 of envelope leakage; thermostat on at 40, off at 35 degC) on "
+             "pvlib's typical year 723170TYA.CSV (Greensboro, NC, mixed-humid) for July, the pressure balance "
+             "solved every 5 minutes; figure averaged over the solves while the fan runs. Theirs: eight "
+             "occupied North Carolina houses with powered attic ventilators, tested fan on against fan off")
+_VENTED = {
+    "house": {"envelope_leakage_area": "90 in2", "atmospheric_appliances": True},
+    "ceiling": {"leakage_area": "30 in2"},
+    "vents": {"passive_ach": None, "openings": [
+        {"name": "soffit", "kind": "soffit", "net_free_area": "1 ft2", "height": "0.15 m"},
+        {"name": "gable vents", "kind": "gable", "net_free_area": "2 ft2", "height": "1.8 m"}]},
+    "fan": {"flow": None, "power": "250 W", "kind": "roof-vent", "height": "2.0 m",
+            "curve_pressure": ["0 in_wc", "0.05 in_wc", "0.1 in_wc", "0.15 in_wc", "0.2 in_wc"],
+            "curve_flow": ["1600 cfm", "1480 cfm", "1330 cfm", "1130 cfm", "880 cfm"]},
+    "simulation": {"spinup_days": 1},
+}
+
+
+@lru_cache(maxsize=None)
+def _carolina_july(soffit="1 ft2"):
+    """(mean depressurisation [Pa], mean house air drawn into the attic [cfm]) while the fan runs."""
+    import math
+
+    import numpy as np
+
+    from atticsim.forcing.weather import load_weather
+    from atticsim.pipeline import run_raw
+    from atticsim.validation.houses import demo_house
+
+    vents = dict(_VENTED["vents"])
+    vents["openings"] = [dict(vents["openings"][0], net_free_area=soffit), vents["openings"][1]]
+    sc = demo_house({**_VENTED, "vents": vents}, "field case")
+    weather = load_weather("pvlib:723170TYA.CSV", year=2025)
+    raw = run_raw(sc, weather=weather, start="2025-07-01", end="2025-07-31", include_no_fan=False)
+    running = [s for _, s in raw.with_fan.air_updates if s.fan_flow > 0.0]
+    if not running:
+        raise RuntimeError("the fan never ran in the period")
+    depress = [s.depressurisation for s in running if math.isfinite(s.depressurisation)]
+    cfm = 60.0 / 0.3048**3
+    return float(np.mean(depress)), float(np.mean([max(s.ceiling_flow, 0.0) for s in running])) * cfm
+
+
+@case(group="field comparisons", name="Powered attic fan: house depressurised while it runs",
+      source=_TOOLEY + ": houses depressurised 0.5-2.5 Pa", unit="Pa", tolerance=0.0, kind="range", digits=2,
+      inputs=_CAROLINA)
+def fan_depressurisation():
+    generous = _carolina_july("10 ft2")[0]
+    return Comparison(_carolina_july()[0], (0.5, 2.5),
+                      note=f"with 10 ft2 of soffit instead (the generous_intakes variant) {generous:.2f} Pa, below "
+                           "the field range: the figure follows the intake area, which the study's houses are "
+                           "not described by here")
+
+
+@case(group="field comparisons", name="Powered attic fan: house air drawn up through the ceiling",
+      source=_TOOLEY + ": 104-646 cfm of conditioned air pulled into the attic (231 cfm on average)", unit="cfm",
+      tolerance=0.0, kind="range", digits=0, inputs=_CAROLINA)
+def fan_house_air_drawn():
+    generous = _carolina_july("10 ft2")[1]
+    return Comparison(_carolina_july()[1], (104.0, 646.0),
+                      note=f"with 10 ft2 of soffit instead {generous:.0f} cfm")
