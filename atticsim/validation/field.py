@@ -63,7 +63,7 @@ def dark_roof_excess():
            "at the peak hour of the mean day; the attic air follows it to 6 K above, where the measured attics "
            "stayed at or below the outdoor air. Not resolved: with absorptance 0.25 the same run gives 4.6 K, and "
            "with twice the ventilation (8 air changes an hour) 4.5 K, so neither alone closes the gap. The dark "
-           "roof (the case above) is within its band, so the miss is in how little heat a reflective roof lets "
+           "roof (F1) is within its band, so the miss is in how little heat a reflective roof lets "
            "through, which the model overstates or the single measured house understates"))
 def white_roof_excess():
     excess, hour = _peak_hour_excess(_florida_july(white=True))

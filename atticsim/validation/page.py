@@ -115,10 +115,13 @@ def render_markdown(results) -> str:
     misses = [r for r in results if r.status == OUTSIDE and r.case.expected == OUTSIDE]
     if misses:
         lines += ["", "## Where atticsim is outside a tolerance", ""]
-        for r in misses:
-            c = r.case
-            lines.append(f"- **{c.case_id} {c.name}**: atticsim {_number(r.tool, c.digits)} {c.unit} against "
-                         f"{format_reference(r.reference, c.digits)} {c.unit}. {c.why}")
+        reasons = list(dict.fromkeys(r.case.why for r in misses))  # each reason once, in page order
+        for why in reasons:
+            for r in (r for r in misses if r.case.why == why):
+                c = r.case
+                lines.append(f"- **{c.case_id} {c.name}**: atticsim {_number(r.tool, c.digits)} {c.unit} against "
+                             f"{format_reference(r.reference, c.digits)} {c.unit}.")
+            lines += ["", f"Why: {why}.", ""]
     odd = [r for r in results if r.unexpected or r.status == NOT_RUN]
     if odd:
         lines += ["", "## Not run, or not as this page expects", ""]

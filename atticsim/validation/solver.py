@@ -151,7 +151,8 @@ def sensor_step():
 
 
 class _DrivenRC:
-    """One RC node driven through a conductance by forcing channel 0 (a minimal network for the event loop)."""
+    """One RC node driven through a conductance by forcing channel 0 (a minimal network for the event loop;
+    ``derivatives`` over columns and ``rate`` at one state, the two forms event loops call)."""
 
     n_nodes = 1
     index = {"sensor": 0}
@@ -167,6 +168,13 @@ class _DrivenRC:
 
         d = (forcing[0] - temps[0]) / self.tau
         return np.vstack([d] + [np.zeros_like(d)] * len(BOOKS))
+
+    def rate(self, x, u, fan_on, air):
+        import numpy as np
+
+        from atticsim.network.model import BOOKS
+
+        return np.concatenate([[(u[0] - x[0]) / self.tau], np.zeros(len(BOOKS))])
 
 
 @case(group="solver", name="Reference solver: periodic response of a driven RC node (amplitude)",
