@@ -64,7 +64,7 @@ def format_result(r):
 def counts(results) -> dict:
     """Numbers of cases by outcome."""
     return {
-        "cases": len(results),
+        "total": len(results),
         "within": sum(r.status == WITHIN for r in results),
         "known_misses": sum(r.status == OUTSIDE and r.case.expected == OUTSIDE for r in results),
         "not_run": sum(r.status == NOT_RUN for r in results),
@@ -75,7 +75,7 @@ def counts(results) -> dict:
 def headline(results) -> str:
     """One sentence: how many cases, how many within tolerance, known misses, not run, unexpected."""
     n = counts(results)
-    text = f"{n['cases']} cases: {n['within']} within tolerance"
+    text = f"{n['total']} cases: {n['within']} within tolerance"
     if n["known_misses"]:
         text += f", {n['known_misses']} known miss{'es' if n['known_misses'] > 1 else ''} (explained below)"
     if n["not_run"]:
