@@ -2,7 +2,8 @@
 ratio, latent heat and the standard atmosphere.
 
 Plain arithmetic on floats or numpy arrays (SI; temperatures in degC unless a name says K), each relation
-written once here with its source.
+written once here with its source; the compiled network compiles the same functions
+(:func:`atticsim.network.kernel.compiled`).
 """
 
 from __future__ import annotations
@@ -47,15 +48,14 @@ def saturation_vapour_pressure(temp):
     Parameters
     ----------
     temp : float or numpy.ndarray
-        Temperature [degC].
+        Temperature [degC] (a number or an array, not a list).
 
     References
     ----------
     Alduchov, O. A. and Eskridge, R. E. (1996), Improved Magnus form approximation of
     saturation vapor pressure, J. Appl. Meteor. 35, 601-609, eq. 21.
     """
-    t = np.asarray(temp, dtype=float)
-    return MAGNUS_C_PA * np.exp(MAGNUS_A * t / (t + MAGNUS_B_C))
+    return MAGNUS_C_PA * np.exp(MAGNUS_A * temp / (temp + MAGNUS_B_C))
 
 
 def dew_point_from_relative_humidity(temp_air, relative_humidity):

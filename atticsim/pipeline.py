@@ -18,7 +18,7 @@ import pandas as pd
 
 from atticsim.forcing.build import build_forcing, period_bounds
 from atticsim.forcing.weather import load_weather
-from atticsim.network.model import BOOKS, build_network
+from atticsim.network.model import BOOKS, FORCING_BASE, build_network
 from atticsim.hybrid.controller import controller_from_scenario
 from atticsim.hybrid.events import HybridRun, integrate
 
@@ -124,13 +124,15 @@ _FORCINGS: dict = {}
 
 def _forcing(frame, meta, scenario, t0, t1, source, reuse):
     """build_forcing, or with ``reuse`` the forcing an earlier call in this process built from the same weather
-    frame (the very object, kept alive with the entry), site, weather options, roof and period."""
+    frame (the very object, kept alive with the entry), site, weather options, roof, house, rooms' temperature
+    and period."""
     if not reuse:
         return build_forcing(frame, meta, scenario, t0, t1, source=source)
     import json
 
     parts = [scenario.site.model_dump(mode="json"), scenario.weather.model_dump(mode="json"),
-             scenario.roof.model_dump(mode="json"), str(t0), str(t1), source]
+             scenario.roof.model_dump(mode="json"), scenario.house.model_dump(mode="json"),
+             scenario.ceiling.room_temperature, str(t0), str(t1), source]
     key = (id(frame), json.dumps(parts, sort_keys=True, default=str))
     kept = _FORCINGS.get(key)
     if kept is None or kept[0] is not frame:
@@ -164,7 +166,7 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
     frame, meta = weather[0], weather[1]
     source = getattr(meta, "path", None) or scenario.weather.file
     start, end = resolve_period(frame, scenario, start, end, months, year)
-    t0, t1 = period_bounds(frame, start, end, str(source))
+    t0, t1 = period_bounds(frame, start, end, str(source), meta)
     forcing = _forcing(frame, meta, scenario, t0, t1, str(source), reuse_no_fan)
     base = forcing.times[0]
     period = Period(t0, t1, (t0 - base).total_seconds(), (t1 - base).total_seconds())

@@ -56,7 +56,7 @@ def error_of(path, column):
 
 
 def invented_frame():
-    """A 10-minute invented frame with every column, including sky long-wave and wind direction."""
+    """A 10-minute invented frame with every column, including sky long-wave, wind direction and sky cover."""
     index = pd.date_range("2025-07-01 00:00", periods=36, freq="10min", tz="UTC-06:00", name="time").as_unit("us")
     n = len(index)
     t = np.linspace(24.0, 29.0, n)
@@ -72,6 +72,8 @@ def invented_frame():
             "dhi": np.linspace(0.0, 60.0, n) + 1.0 / 3.0,
             "pressure": np.full(n, 97_123.456789),
             "sky_ir": np.linspace(390.0, 410.0, n),
+            "total_sky_cover": np.linspace(0.2, 0.9, n),
+            "opaque_sky_cover": np.linspace(0.0, 0.7, n),
         },
         index=index,
     )
@@ -117,10 +119,11 @@ def test_round_trip_gives_the_same_frame(tmp_path):
 
 def test_round_trip_without_optional_columns(tmp_path):
     frame, meta = invented_frame()
-    frame["sky_ir"] = np.nan
-    frame["wind_direction"] = np.nan
+    for col in ("sky_ir", "wind_direction", "total_sky_cover", "opaque_sky_cover"):
+        frame[col] = np.nan
     path = write_weather_csv(frame, meta, tmp_path / "lean.csv")
-    assert "sky_ir_w_m2" not in path.read_text() and "wind_direction_deg" not in path.read_text()
+    text = path.read_text()
+    assert "sky_ir_w_m2" not in text and "wind_direction_deg" not in text and "sky_cover" not in text
     back, _, _ = read_weather(path)
     pd.testing.assert_frame_equal(back, frame)
 
@@ -264,3 +267,40 @@ def test_text_in_a_number_column(tmp_path):
     assert "'calm' at 2025-07-01T11:00:00-06:00 is not a number" in error_of(
         write(tmp_path, rows=rows), "wind_speed_m_s"
     )
+
+
+# ------------------------------------------------------------------ sky cover
+
+
+def test_sky_cover_columns_read_in_percent(tmp_path):
+    rows = [r + f",{40 + 10 * i},{20 + 10 * i}" for i, r in enumerate(ROWS)]
+    path = write(tmp_path, rows=rows, columns=COLUMNS + ",total_sky_cover_pct,opaque_sky_cover_pct")
+    frame, _, report = read_weather(path)
+    # 60 % and 40 % of the sky dome in the 12:00 row (the file's third row) -> fractions 0.6 and 0.4.
+    row = frame.loc["2025-07-01T12:00:00-06:00"]
+    assert (row["total_sky_cover"], row["opaque_sky_cover"]) == (0.6, 0.4)
+    assert not any("no sky cover" in n for n in report.notes)
+
+
+def test_file_without_sky_cover_says_so(tmp_path):
+    frame, _, report = read_weather(write(tmp_path))
+    assert frame["opaque_sky_cover"].isna().all() and frame["total_sky_cover"].isna().all()
+    assert "no sky cover in the source: total_sky_cover and opaque_sky_cover left NaN" in report.notes
+
+
+def test_sky_cover_over_100_percent_is_refused(tmp_path):
+    rows = [r + ",50" for r in ROWS]
+    rows[2] = ROWS[2] + ",120"
+    path = write(tmp_path, rows=rows, columns=COLUMNS + ",opaque_sky_cover_pct")
+    message = error_of(path, "opaque_sky_cover_pct")
+    assert message.endswith("120 at 2025-07-01T12:00:00-06:00 is outside 0..100 % (a share of the sky dome); "
+                            "1 value(s) out of range")
+
+
+def test_writer_takes_a_frame_without_sky_cover_columns(tmp_path):
+    frame, meta = invented_frame()
+    frame = frame.drop(columns=["total_sky_cover", "opaque_sky_cover"])
+    path = write_weather_csv(frame, meta, tmp_path / "old.csv")
+    back, _, _ = read_weather(path)
+    assert back["opaque_sky_cover"].isna().all()
+    pd.testing.assert_frame_equal(back.drop(columns=["total_sky_cover", "opaque_sky_cover"]), frame)

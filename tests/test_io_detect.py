@@ -28,14 +28,14 @@ EPW_TEXT = "\n".join(
         "TYPICAL/EXTREME PERIODS,0",
         "GROUND TEMPERATURES,0",
         "HOLIDAYS/DAYLIGHT SAVINGS,No,0,0,0",
-        "COMMENTS 1,Invented two-hour weather written by the atticsim tests; not a real climate",
+        "COMMENTS 1,Invented one-day weather written by the atticsim tests; not a real climate",
         "COMMENTS 2,",
         "DATA PERIODS,1,1,Data,Tuesday, 7/ 1, 7/ 1",
     ]
     + [
         f"2025,7,1,{h},60,?9?9?9?9E0?9?9?9?9?9?9?9?9?9?9?9?9?9?9?9*9*9?9?9?9,{20 + h},12.0,40,97000,"
         f"9999,9999,380,0,0,0,999999,999999,999999,9999,200,3.5,0,0,9999,77777,9,999999999,20,0.1,0,88,0.2,0,1"
-        for h in (1, 2, 3)
+        for h in range(1, 25)  # the whole day its DATA PERIODS line declares: a shorter file is refused
     ]
 ) + "\n"
 
@@ -59,7 +59,7 @@ def test_epw_content_named_csv_is_read_as_epw(tmp_path):
     path.write_text(EPW_TEXT, encoding="latin-1")
     assert detect_format(path) == "epw"
     frame, meta, report = read_weather(path)
-    assert meta.source_format == "epw" and len(frame) == 3
+    assert meta.source_format == "epw" and len(frame) == 24
     assert "content is epw although the file name ends in .csv: read as epw" in report.notes
 
 

@@ -6,7 +6,8 @@ Greensboro NC, mixed-humid), 703165TY.csv (TMY3, Sand Point AK, cold) and 12839.
 and of atticsim: the TMY3 files with the csv module, the TMY2 file by plain text
 slicing at the field positions of the NREL TMY2 user's manual (Marion & Urban 1995,
 Tables 3-1 and 3-2, positions from memory; they agree with the manual's sample
-record in Figure 3-1 and with the file: e.g. dry-bulb "0200" = 20.0 degC on Jan 1, 01:00).
+record in Figure 3-1 and with the file: e.g. dry-bulb "0200" = 20.0 degC on Jan 1, 01:00;
+total and opaque sky cover in tenths at columns 60-61 and 64-65).
 
 Time conventions checked (TMY3 user's manual, Wilcox & Marion 2008, NREL/TP-581-43156;
 TMY2 user's manual section 3): the hour-ending 13:00 record's irradiance is the mean of
@@ -57,6 +58,8 @@ def tmy2_by_slicing():
             "day": int(field(r, 6, 7)),
             "hour": int(field(r, 8, 9)),
             "ghi": float(field(r, 18, 21)),  # Wh/m^2 over the hour ending
+            "total_cover": float(field(r, 60, 61)),  # tenths of the sky dome at the hour
+            "opaque_cover": float(field(r, 64, 65)),
             "dry_bulb": float(field(r, 68, 71)) / 10.0,  # tenths of degC at the hour
         }
         for r in lines[1:]
@@ -190,6 +193,7 @@ def epw_records():
                     "temp_dew": 12.0, "rh": 40, "pressure": 97000,
                     "ir": 380 + hour, "ghi": ghi, "dni": round(0.8 * ghi), "dhi": round(0.2 * ghi),
                     "wind_direction": 200, "wind_speed": 3.5,
+                    "total_cover": hour % 11, "opaque_cover": (hour % 11) // 2,
                 }
             )
     return records
@@ -207,7 +211,8 @@ def write_epw(tmp_path, records, name="mesa.epw"):
             f"2025,7,{r['day']},{r['hour']},60,?9?9?9?9E0?9?9?9?9?9?9?9?9?9?9?9?9?9?9?9*9*9?9?9?9,"
             f"{r['temp_air']},{r['temp_dew']},{r['rh']},{r['pressure']},9999,9999,{r['ir']},"
             f"{r['ghi']},{r['dni']},{r['dhi']},999999,999999,999999,9999,"
-            f"{r['wind_direction']},{r['wind_speed']},0,0,9999,77777,9,999999999,20,0.1,0,88,0.2,0,1"
+            f"{r['wind_direction']},{r['wind_speed']},{r['total_cover']},{r['opaque_cover']},"
+            f"9999,77777,9,999999999,20,0.1,0,88,0.2,0,1"
         )
     path = tmp_path / name
     path.write_text("\n".join(lines) + "\n", encoding="latin-1")
@@ -267,3 +272,143 @@ def test_epw_subhourly_is_refused(tmp_path):
 def test_bad_year_argument():
     with pytest.raises(ValueError, match="year: 25 is not a four-digit calendar year"):
         read_tmy3(os.path.join(DATA, "723170TYA.CSV"), year=25)
+
+
+# ------------------------------------------------------------------ sky cover
+
+
+@pytest.mark.parametrize("name", TMY3_FILES)
+def test_tmy3_sky_cover_matches_independent_parse(name):
+    head, cols, rows = tmy3_by_csv(name)
+    frame, _, _ = read_tmy3(os.path.join(DATA, name), year=2025)
+    total, opaque = cols.index("TotCld (tenths)"), cols.index("OpqCld (tenths)")
+    # Tenths of the sky dome -> fraction; the annual mean survives the periodic mid-hour interpolation.
+    assert frame["total_sky_cover"].mean() == pytest.approx(np.mean([float(r[total]) for r in rows]) / 10, abs=1e-12)
+    assert frame["opaque_sky_cover"].mean() == pytest.approx(np.mean([float(r[opaque]) for r in rows]) / 10,
+                                                             abs=1e-12)
+    stamps = [(r[0][:5], r[1]) for r in rows]
+    at12, at13 = rows[stamps.index(("07/01", "12:00"))], rows[stamps.index(("07/01", "13:00"))]
+    row = frame.loc["2025-07-01T12:30:00"]
+    # Cover is observed at the hour: the 12:30 row lies halfway between the 12:00 and 13:00 observations.
+    assert row["opaque_sky_cover"] == pytest.approx((float(at12[opaque]) + float(at13[opaque])) / 20.0)
+    assert row["total_sky_cover"] == pytest.approx((float(at12[total]) + float(at13[total])) / 20.0)
+
+
+def test_tmy2_sky_cover_matches_fixed_width_slicing(tmy2_read):
+    _, records = tmy2_by_slicing()
+    frame, _, _ = tmy2_read
+    assert frame["total_sky_cover"].mean() == pytest.approx(np.mean([r["total_cover"] for r in records]) / 10,
+                                                            abs=1e-12)
+    assert frame["opaque_sky_cover"].mean() == pytest.approx(np.mean([r["opaque_cover"] for r in records]) / 10,
+                                                             abs=1e-12)
+    keys = [(r["month"], r["day"], r["hour"]) for r in records]
+    for hour in (6, 13, 20):
+        before, now = records[keys.index((7, 1, hour - 1))], records[keys.index((7, 1, hour))]
+        row = frame.loc[f"2025-07-01T{hour - 1:02d}:30:00-05:00"]
+        assert row["opaque_sky_cover"] == pytest.approx((before["opaque_cover"] + now["opaque_cover"]) / 20.0)
+        assert row["total_sky_cover"] == pytest.approx((before["total_cover"] + now["total_cover"]) / 20.0)
+
+
+def test_epw_sky_cover_kept(tmp_path):
+    records = epw_records()
+    frame, _, _ = read_weather(write_epw(tmp_path, records))
+    row = frame.loc["2025-07-01T12:30:00-07:00"]  # between hour-ending 12 and 13
+    assert row["total_sky_cover"] == pytest.approx((12 % 11 + 13 % 11) / 20.0)  # (1 + 2) / 2 tenths
+    assert row["opaque_sky_cover"] == pytest.approx(((12 % 11) // 2 + (13 % 11) // 2) / 20.0)
+
+
+def test_sky_cover_outside_tenths_is_refused(tmp_path):
+    records = epw_records()
+    records[5]["opaque_cover"] = 12
+    path = write_epw(tmp_path, records)
+    with pytest.raises(ValueError, match=r"line 14: opaque sky cover: 12 tenths in record 6 is outside 0..10"):
+        read_weather(path)
+
+
+# ------------------------------------------------------------------ incomplete files are refused
+
+
+def copy_lines(tmp_path, name, lines):
+    path = tmp_path / name
+    path.write_text("\n".join(lines) + "\n", encoding="latin-1")
+    return path
+
+
+def original_lines(name):
+    with open(os.path.join(DATA, name), encoding="latin-1") as handle:
+        return handle.read().splitlines()
+
+
+def cli_error(path, tmp_path):
+    """Run ``atticsim run --weather PATH`` and return (exit code, output lines, out folder exists)."""
+    from click.testing import CliRunner
+
+    from atticsim.cli.main import cli
+
+    out = tmp_path / "out"
+    result = CliRunner().invoke(cli, ["run", "--weather", str(path), "--months", "jul", "--out", str(out)])
+    return result.exit_code, result.output.strip().splitlines(), out.exists()
+
+
+def test_tmy2_record_cut_short_is_refused_through_the_cli(tmp_path):
+    lines = original_lines("12839.tm2")
+    lines[-1] = lines[-1][:100]  # the last record loses its last 42 characters
+    path = copy_lines(tmp_path, "cut.tm2", lines)
+    code, output, written = cli_error(path, tmp_path)
+    assert code == 2 and not written
+    assert output[-1] == (f"atticsim: error: {path}: line 8761: record 8760 is 100 characters long, a TMY2 record "
+                          f"is 142; the file is cut short or damaged (complete records are needed, nothing is "
+                          f"patched)")
+    assert not any("Traceback" in line for line in output)
+
+
+def test_tmy3_record_with_missing_fields_is_refused_through_the_cli(tmp_path):
+    lines = original_lines("723170TYA.CSV")
+    lines[-1] = ",".join(lines[-1].split(",")[:20])  # the last record cut after its 20th field
+    path = copy_lines(tmp_path, "cut.csv", lines)
+    code, output, written = cli_error(path, tmp_path)
+    assert code == 2 and not written and not any("Traceback" in line for line in output)
+    assert output[-1].startswith(f"atticsim: error: {path}: line 8762: record 8760 has 20 fields, TMY3 records "
+                                 f"have 71; the file is cut short")
+
+
+def test_tmy3_record_with_an_empty_value_is_refused(tmp_path):
+    lines = original_lines("703165TY.csv")
+    header = lines[1].split(",")
+    fields = lines[500].split(",")
+    fields[header.index("Dry-bulb (C)")] = ""
+    lines[500] = ",".join(fields)
+    path = copy_lines(tmp_path, "hole.csv", lines)
+    with pytest.raises(ValueError) as exc:
+        read_weather(path)
+    assert str(exc.value) == (f"{path}: line 501: record 499 has an empty field (Dry-bulb (C)); the file is cut "
+                              f"short or damaged (complete records are needed, nothing is patched)")
+
+
+@pytest.mark.parametrize("name, keep, fmt, stops", [
+    ("12839.tm2", 8001, "TMY2", "line 8001: the file stops at record 8000 (11/30 08:00), before 12/31 24:00"),
+    ("723170TYA.CSV", 5002, "TMY3", "line 5002: the file stops at record 5000 (07/28 08:00), before 12/31 24:00"),
+])
+def test_typical_year_that_stops_early_is_refused_through_the_cli(tmp_path, name, keep, fmt, stops):
+    path = copy_lines(tmp_path, "short_" + name, original_lines(name)[:keep])
+    code, output, written = cli_error(path, tmp_path)
+    assert code == 2 and not written and not any("Traceback" in line for line in output)
+    assert output[-1] == (f"atticsim: error: {path}: {stops} (a {fmt} file holds a whole year of hourly "
+                          f"records); the file is cut short (nothing is patched)")
+
+
+def test_epw_cut_short_or_stopping_early_is_refused(tmp_path):
+    records = epw_records()
+    path = write_epw(tmp_path, records)
+    lines = path.read_text(encoding="latin-1").splitlines()
+    # The last record cut in the middle of its fields.
+    cut = copy_lines(tmp_path, "cut.epw", lines[:-1] + [lines[-1][:60]])
+    code, output, written = cli_error(cut, tmp_path)
+    assert code == 2 and not written
+    assert f"{cut}: line 56: record 48 has " in output[-1] and "EPW records have 35" in output[-1]
+    # The records stop before the end date of the DATA PERIODS line (7/2).
+    short = copy_lines(tmp_path, "short.epw", lines[:-5])
+    with pytest.raises(ValueError) as exc:
+        read_weather(short)
+    assert str(exc.value) == (f"{short}: line 51: the file stops at record 43 (07/02 19:00), before 07/02 24:00 "
+                              f"(the dates of its DATA PERIODS line); the file is cut short (nothing is patched)")

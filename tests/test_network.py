@@ -45,9 +45,8 @@ class _DrivenRC:
     def __init__(self, tau):
         self.tau = tau
 
-    def derivatives(self, temps, forcing, fan_on):
-        d = (forcing[0] - temps[0]) / self.tau
-        return np.vstack([d] + [np.zeros_like(d)] * len(BOOKS))
+    def rate(self, x, u, fan_on, air):
+        return np.concatenate([[(u[0] - x[0]) / self.tau], np.zeros(len(BOOKS))])
 
 
 def test_driven_rc_periodic_amplitude_and_phase():
@@ -84,10 +83,10 @@ def test_roof_surface_settles_near_handbook_sol_air():
 
     def balance(t_cov):
         temps = np.full((net.n_nodes, 1), t_cov)
-        f = np.array([[t_o], [t_o + 273.15], [wind], [t_o - 10.0]] + [[irr]] * P)
+        f = np.array([[t_o], [t_o + 273.15], [wind], [t_o - 10.0], [101325.0], [24.0]] + [[irr]] * P)
         net.air = net.airflow.solve(t_o, t_o, wind, False)
         q = net.flows(temps, f, np.array([False]))
-        return float((q["solar"] + q["sky"] + q["ground"] + q["exterior_convection"])[0, 0])
+        return float((q["solar"] + q["sky"] + q["ground"] + q["exterior_convection"])[0])
 
     t_e = brentq(balance, t_o, t_o + 150.0)
     h_equiv = sc.roof.absorptance * irr / (t_e - t_o)

@@ -24,31 +24,31 @@ import numpy as np
 
 from atticsim.airflow.ventilation import passive_flow
 from atticsim.constants import P_STANDARD
-from atticsim.air import air_density
 
 
 @dataclass(frozen=True)
 class AirflowState:
-    """Air flows held over an interval (SI; mass flows in kg/s, volume flows in m^3/s).
+    """Air flows held over an interval (SI; volume flows in m^3/s, each at the density of the air it carries:
+    the network forms the mass flows from them with the present temperatures and pressure).
 
-    outdoor_in : mass of outdoor air entering the attic (through vents, or the fan if reversed)
-    house_in : mass of house air entering the attic through the ceiling (conditioned air drawn)
-    attic_to_house : mass of attic air entering the house through the ceiling
-    outdoor_flow : volume of outdoor air entering the attic [m^3/s]
-    fan_flow : the fan's volume flow [m^3/s] (0 when off)
+    house_in : house air entering the attic's lower layer through the ceiling (conditioned air drawn)
+    attic_to_house : lower-layer attic air entering the house through the ceiling
+    outdoor_flow : outdoor air entering the attic, for the figures
+    fan_flow : the fan's flow of attic (upper-layer) air (0 when off)
     fan_power : the fan's electric power when running [W]
-    ceiling_flow : volume flow through the ceiling, + into the attic [m^3/s]
+    ceiling_flow : flow through the ceiling, + into the attic
     pressure_attic, pressure_house : gauge pressures at the attic floor relative to outdoors [Pa]
     depressurisation : fall of the house pressure caused by the running fan [Pa] (NaN when not solved)
     residual : relative mass residual of the attic balance [-]
-    in_lower, in_upper : outdoor air mass entering the lower / upper air layer [kg/s]
-    out_lower, out_upper : attic air mass leaving the lower / upper layer to outdoors [kg/s]
+    in_lower, in_upper : outdoor air entering the lower / upper air layer through the vents
+    out_lower, out_upper : attic air leaving the lower / upper layer to outdoors through the vents
         (openings below the layer interface belong to the lower layer; with one well-mixed layer
-        everything is "lower"... and "upper" is the same node)
-    path_flows : per-path volume flows, + into the attic [m^3/s] (names in AirflowModel.path_names)
+        everything is "lower", and "upper" is the same node)
+    fan_makeup : 1 when the fan's exhaust is made up by outdoor air entering the lower layer at the same
+        mass flow (the simple form, which describes no vents), else 0 (the balance gives the vents' flows)
+    path_flows : per-path flows, + into the attic (names in AirflowModel.path_names)
     """
 
-    outdoor_in: float
     house_in: float
     attic_to_house: float
     outdoor_flow: float
@@ -63,6 +63,7 @@ class AirflowState:
     in_upper: float = 0.0
     out_lower: float = 0.0
     out_upper: float = 0.0
+    fan_makeup: float = 0.0
     path_flows: tuple = ()
 
 
@@ -86,13 +87,6 @@ def stack_states(states, names=AIR_FIELDS, runs=None) -> dict:
     if names is AIR_FIELDS and states and states[0].path_flows:
         out["path_flows"] = np.repeat(np.array([s.path_flows for s in held], dtype=float), lengths, axis=0)
     return out
-
-
-@functools.lru_cache(maxsize=64)
-def _simple_template(outdoor_flow, fan_flow, fan_power) -> AirflowState:
-    """The simple form's state with these fixed flows and no mass flows (AirflowModel.simple_state fills them)."""
-    return AirflowState(outdoor_in=0.0, house_in=0.0, attic_to_house=0.0, outdoor_flow=outdoor_flow,
-                        fan_flow=fan_flow, fan_power=fan_power)
 
 
 class AirflowModel:
@@ -132,7 +126,8 @@ class AirflowModel:
             + [c.name for c in self.paths.ceiling_leaks] + (["house envelope"] if self.paths.house else []))
 
     def solve(self, temp_attic: float, temp_outdoor: float, wind_speed: float, fan_on: bool,
-              with_depressurisation: bool = False) -> AirflowState:
+              with_depressurisation: bool = False, pressure: float | None = None,
+              temp_room: float | None = None) -> AirflowState:
         """Flows for the present conditions.
 
         Parameters
@@ -145,59 +140,56 @@ class AirflowModel:
             Fan state (ignored when the fan is disabled).
         with_depressurisation : bool
             Also solve the fan-off case to report the house depressurisation caused by the fan.
+        pressure, temp_room : float, optional
+            The present station pressure [Pa] and the rooms' temperature [degC] (default: the model's).
         """
         running = bool(fan_on) and self.enabled
         if self.kind == "simple":
-            return self.simple_state(float(air_density(temp_outdoor, self.pressure)), running)
+            return self.simple_state(running)
         from atticsim.airflow.balance import solve_attic_balance
 
-        kw = dict(temp_house=self.room_temperature, wind_speed=max(float(wind_speed), 0.0),
-                  fan_speed_ratio=self.speed_ratio, pressure=self.pressure)
+        kw = dict(temp_house=self.room_temperature if temp_room is None else temp_room,
+                  wind_speed=max(float(wind_speed), 0.0), fan_speed_ratio=self.speed_ratio,
+                  pressure=self.pressure if pressure is None else pressure)
         b = solve_attic_balance(self.paths, temp_attic, temp_outdoor, fan_on=running, **kw)
         depress = math.nan
         if with_depressurisation and running:
             off = solve_attic_balance(self.paths, temp_attic, temp_outdoor, fan_on=False, **kw)
             depress = off.pressure_house - b.pressure_house
-        outside = [p for p in b.paths if p.kind in ("vent", "fan")]
-        outdoor_in = sum(p.mass_flow for p in outside if p.mass_flow > 0.0)
-        outdoor_vol = sum(p.volume_flow for p in outside if p.volume_flow > 0.0)
+        # the flows between outdoors and each layer, through the vents and the fan, by the layer of their height
         layer = {name: ("upper" if z >= self.layer_height else "lower") for name, z in self.path_heights.items()}
         flows = {"in_lower": 0.0, "in_upper": 0.0, "out_lower": 0.0, "out_upper": 0.0}
-        for p in outside:
+        for p in b.paths:
+            if p.kind not in ("vent", "fan"):
+                continue
             side = layer.get(p.name, "upper")
-            if p.mass_flow > 0.0:
-                flows[f"in_{side}"] += p.mass_flow
+            if p.volume_flow > 0.0:
+                flows[f"in_{side}"] += p.volume_flow
             else:
-                flows[f"out_{side}"] -= p.mass_flow
+                flows[f"out_{side}"] -= p.volume_flow
         return AirflowState(
-            outdoor_in=outdoor_in, house_in=max(b.ceiling_mass_flow, 0.0),
-            attic_to_house=max(-b.ceiling_mass_flow, 0.0), outdoor_flow=outdoor_vol,
+            house_in=max(b.ceiling_flow, 0.0), attic_to_house=max(-b.ceiling_flow, 0.0),
+            outdoor_flow=sum(p.volume_flow for p in b.paths if p.kind in ("vent", "fan") and p.volume_flow > 0.0),
             fan_flow=b.fan_flow if running else 0.0, fan_power=b.fan_power if running else 0.0,
             ceiling_flow=b.ceiling_flow, pressure_attic=b.pressure_attic, pressure_house=b.pressure_house,
             depressurisation=depress, residual=b.residual, **flows,
             path_flows=tuple(self._path_flow(b, name) for name in self.path_names))
 
-    def simple_state(self, density: float, running: bool) -> AirflowState:
-        """The simple form's flows for outdoor air of ``density`` [kg/m^3] with the fan running or not:
-        outdoor air enters low (soffits) and leaves high (ridge, fan); the passive air changes plus the
-        fan's rated flow. (The compiled solver's switch loop forms the same flows: ``simple_parameters``.)"""
-        q = self.passive + (self.rated_flow if running else 0.0)
-        m = density * q
-        template = _simple_template(q, self.rated_flow if running else 0.0, self.rated_power if running else 0.0)
-        # the template's fields with the three mass flows set: the same state as the constructor gives (a
-        # test holds the two equal) in a sixth of its time (the frozen constructor sets fields one by one;
-        # a chattering summer builds a few thousand of these)
-        state = object.__new__(AirflowState)
-        fields_ = state.__dict__
-        fields_.update(template.__dict__)
-        fields_["outdoor_in"] = fields_["in_lower"] = fields_["out_upper"] = m
-        return state
+    def simple_state(self, running: bool) -> AirflowState:
+        """The simple form's flows with the fan running or not: outdoor air enters low (soffits) and leaves
+        high (ridge, fan): the passive air changes, plus the fan's rated flow made up by outdoor air at the
+        same mass flow. One state per fan state, made once."""
+        return self._simple_states[bool(running)]
 
-    def simple_parameters(self) -> tuple:
-        """(passive flow [m^3/s], rated flow [m^3/s], rated power [W], fan enabled, pressure [Pa]) of the
-        simple form, for the compiled switch loop."""
-        return (float(self.passive), float(self.rated_flow), float(self.rated_power), bool(self.enabled),
-                float(self.pressure))
+    @functools.cached_property
+    def _simple_states(self) -> dict:
+        states = {}
+        for running in (False, True):
+            fan = self.rated_flow if running else 0.0
+            states[running] = AirflowState(house_in=0.0, attic_to_house=0.0, outdoor_flow=self.passive + fan,
+                                           fan_flow=fan, fan_power=self.rated_power if running else 0.0,
+                                           in_lower=self.passive, out_upper=self.passive, fan_makeup=1.0)
+        return states
 
     @staticmethod
     def _path_flow(balance, name):

@@ -12,9 +12,9 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from atticsim.forcing.sky import (sky_temperature_berdahl_martin, sky_temperature_from_ir,
-                                  sky_temperature_swinbank)
+from atticsim.forcing.sky import sky_temperature
 from atticsim.forcing.solar import plane_irradiance, solar_position
+from atticsim.io.weather_frame import data_span
 
 
 @dataclass
@@ -28,8 +28,9 @@ class Forcing:
     step : float
         Sample step [s].
     values : numpy.ndarray
-        Shape (channels, n): temp_out [degC], temp_sky_k [K], wind_speed [m/s], temp_dew [degC], then one
-        plane-of-array irradiance row per plane [W/m^2].
+        Shape (channels, n): temp_out [degC], temp_sky_k [K], wind_speed [m/s], temp_dew [degC], pressure
+        [Pa], temp_room [degC] (the rooms below the ceiling), then one plane-of-array irradiance row per
+        plane [W/m^2].
     channels : list of str
         Channel names.
     notes : list of str
@@ -89,13 +90,16 @@ def _regular_step(times: pd.DatetimeIndex, source: str) -> float:
     return float(steps[0])
 
 
-def period_bounds(frame: pd.DataFrame, start: str | None, end: str | None, source: str):
+def period_bounds(frame: pd.DataFrame, start: str | None, end: str | None, source: str, meta=None):
     """Resolve a period from ISO strings in the weather's time zone.
 
-    A date without a time for ``end`` means the whole of that day (end inclusive).
+    A date without a time for ``end`` means the whole of that day (end inclusive).  The period must lie
+    within the data (:func:`atticsim.io.weather_frame.data_span`: a whole typical year of hourly records
+    stamped at mid-hour spans Jan 1 00:00 to Dec 31 24:00); without dates it is all of the data.
     Returns (start, end) tz-aware timestamps.
     """
     tz = frame.index.tz
+    first, last = data_span(frame, meta)
 
     def parse(text, is_end):
         try:
@@ -108,13 +112,12 @@ def period_bounds(frame: pd.DataFrame, start: str | None, end: str | None, sourc
             ts += pd.Timedelta("1D")
         return ts
 
-    t0 = parse(start, False) if start else frame.index[0]
-    t1 = parse(end, True) if end else frame.index[-1]
+    t0 = parse(start, False) if start else first
+    t1 = parse(end, True) if end else last
     if not t1 > t0:
         raise ValueError(f"{source}: end: the period must end after it starts ({t0} .. {t1})")
-    if t0 < frame.index[0] or t1 > frame.index[-1]:
-        raise ValueError(f"{source}: period {t0} .. {t1} is outside the weather data "
-                         f"({frame.index[0]} .. {frame.index[-1]})")
+    if t0 < first or t1 > last:
+        raise ValueError(f"{source}: period {t0} .. {t1} is outside the weather data ({first} .. {last})")
     return t0, t1
 
 
@@ -150,6 +153,35 @@ def months_period(text: str, year: int, source: str = "--months"):
     return start.date().isoformat(), end.date().isoformat()
 
 
+def _hold_ends(part: pd.DataFrame, t0, t1, notes: list) -> pd.DataFrame:
+    """Cover a period that starts before the first row or ends after the last by holding that row.
+
+    Hourly typical-year records are stamped at mid-hour, so their data begin half an hour before the
+    first stamp and end half an hour after the last; a row one step before (after) with the first (last)
+    row's values makes the forcing hold them over that half hour (interpolation between equal samples).
+    """
+    step = part.index[1] - part.index[0]
+    head, tail = part.index[0], part.index[-1]
+    pieces = [part]
+
+    def when(ts):
+        return ts.strftime("%Y-%m-%d %H:%M")
+
+    if t0 < head:
+        row = part.iloc[[0]].copy()
+        row.index = pd.DatetimeIndex([head - step], name=part.index.name)
+        pieces.insert(0, row)
+        notes.append(f"weather held at the first record's values from {when(t0)} to {when(head)} (hourly "
+                     f"records are stamped at mid-hour: the data start half a step before the first stamp)")
+    if t1 > tail:
+        row = part.iloc[[-1]].copy()
+        row.index = pd.DatetimeIndex([tail + step], name=part.index.name)
+        pieces.append(row)
+        notes.append(f"weather held at the last record's values from {when(tail)} to {when(t1)} (hourly "
+                     f"records are stamped at mid-hour: the data end half a step after the last stamp)")
+    return pd.concat(pieces) if len(pieces) > 1 else part
+
+
 def build_forcing(frame: pd.DataFrame, meta, scenario, start=None, end=None, source="weather") -> Forcing:
     """Forcing for the scenario's roof over [start, end] from a normalised weather frame.
 
@@ -162,12 +194,13 @@ def build_forcing(frame: pd.DataFrame, meta, scenario, start=None, end=None, sou
     scenario : Scenario
         The validated scenario (roof planes, site, sky model).
     start, end : pandas.Timestamp, optional
-        Period; default the whole frame.
+        Period; default all of the data (:func:`atticsim.io.weather_frame.data_span`).
     source : str
         Name of the weather source for messages.
     """
-    t0 = start if start is not None else frame.index[0]
-    t1 = end if end is not None else frame.index[-1]
+    first, last = data_span(frame, meta)
+    t0 = start if start is not None else first
+    t1 = end if end is not None else last
     # Keep one sample on each side so the period is covered by interpolation.
     idx = frame.index
     i0 = max(int(idx.searchsorted(t0, side="right")) - 1, 0)
@@ -175,6 +208,7 @@ def build_forcing(frame: pd.DataFrame, meta, scenario, start=None, end=None, sou
     part = frame.iloc[i0:i1 + 1]
     step = _regular_step(part.index, source)
     notes = []
+    part = _hold_ends(part, t0, t1, notes)
 
     site = scenario.site
     lat, lon, alt = site.latitude, site.longitude, site.altitude
@@ -187,22 +221,20 @@ def build_forcing(frame: pd.DataFrame, meta, scenario, start=None, end=None, sou
 
     temp = part["temp_air"].to_numpy(float)
     dew = part["temp_dew"].to_numpy(float)
-    sky_ir = part["sky_ir"].to_numpy(float) if "sky_ir" in part else np.full(len(part), np.nan)
-    if np.all(np.isfinite(sky_ir)):
-        t_sky = sky_temperature_from_ir(sky_ir)
-        notes.append("sky temperature from the weather file's long-wave column")
-    elif scenario.weather.sky_model == "swinbank":
-        t_sky = sky_temperature_swinbank(temp)
-        notes.append("sky temperature: Swinbank (1963)")
-    else:
-        t_sky = sky_temperature_berdahl_martin(temp, dew)
-        notes.append("sky temperature: Berdahl & Martin (1984), clear-sky form")
+    t_sky, sky_notes = sky_temperature(part, scenario.weather.sky_model, lat, lon, alt,
+                                       source_format=getattr(meta, "source_format", None), context=frame)
+    notes += sky_notes
 
     pressure = part["pressure"].to_numpy(float) if "pressure" in part else None
     solpos = solar_position(part.index, lat, lon, alt, pressure=pressure, temperature=temp)
     poa = plane_irradiance(part.index, part["ghi"], part["dni"], part["dhi"], lat, lon,
                            [(p.tilt, p.azimuth) for p in scenario.roof.planes], altitude=alt,
                            albedo=site.ground_albedo, solpos=solpos)
-    values = np.vstack([temp, t_sky, part["wind_speed"].to_numpy(float), dew, poa])
-    channels = ["temp_out", "temp_sky_k", "wind_speed", "temp_dew"] + [f"poa_{p.name}" for p in scenario.roof.planes]
+    # station pressure (the weather file's, else the standard atmosphere at the site: atticsim.io fills it)
+    pressure = part["pressure"].to_numpy(float)
+    # the rooms below: held at the cooling setpoint
+    temp_room = np.full(len(part), scenario.ceiling.room_temperature)
+    values = np.vstack([temp, t_sky, part["wind_speed"].to_numpy(float), dew, pressure, temp_room, poa])
+    channels = (["temp_out", "temp_sky_k", "wind_speed", "temp_dew", "pressure", "temp_room"]
+                + [f"poa_{p.name}" for p in scenario.roof.planes])
     return Forcing(times=part.index, step=step, values=values, channels=channels, notes=notes)

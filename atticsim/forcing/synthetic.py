@@ -87,7 +87,11 @@ def clear_sky(times, latitude, longitude, altitude, linke_turbidity=None):
     """
     import pvlib
 
-    loc = pvlib.location.Location(latitude, longitude, tz=str(times.tz), altitude=altitude)
+    if times.tz is None:
+        raise ValueError("clear sky: the instants need a time zone (site standard time with its UTC offset)")
+    # The instants carry their own offset; the Location's zone would only localise naive ones (and
+    # pvlib's zone lookup refuses fixed offsets such as UTC-05:00 that weather files carry).
+    loc = pvlib.location.Location(latitude, longitude, tz="UTC", altitude=altitude)
     solpos = loc.get_solarposition(times)
     kw = {} if linke_turbidity is None else {"linke_turbidity": linke_turbidity}
     clear = loc.get_clearsky(times, model="ineichen", solar_position=solpos, **kw)

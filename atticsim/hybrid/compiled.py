@@ -82,6 +82,9 @@ KINK_SPAN = 60.0
 #: Blocks kept per linearisation (step lengths met repeatedly: segment, half segment, check step...).
 _CACHE = 64
 
+#: Forcing channels the Python loop reads for the airflow.
+_PRESSURE, _T_ROOM = kernel.FORCING_BASE.index("pressure"), kernel.FORCING_BASE.index("temp_room")
+
 # Status codes of :func:`advance` (and FULL of :func:`run_simple`: its interval arrays are full).
 DONE, SWITCH, OFF_GRID, FAILED, FULL = 0, 1, -1, -2, 2
 
@@ -707,53 +710,32 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
 
 
 @nb.njit(cache=True)
-def _simple_air(f_values, f_step, t, fan, simple, air):
-    """The held flows of the simple airflow form at t into ``air`` (:data:`kernel.AIR_ORDER`); returns the
-    outdoor air density. ``simple`` is ``AirflowModel.simple_parameters()``; the flows are those of
-    ``AirflowModel.simple_state`` (a test holds the two equal)."""
-    u = np.empty(f_values.shape[0])
-    _forcing_at(f_values, f_step, t, u)
-    rho = kernel._air_density(u[0], simple[4])               # ideal gas (atticsim.air.air_density, compiled)
-    running = fan and simple[3] > 0.0
-    q = simple[0] + (simple[1] if running else 0.0)          # passive air changes plus the fan's rated flow
-    air[0] = rho * q                                         # outdoor air into the lower layer
-    air[1] = 0.0
-    air[2] = 0.0
-    air[3] = 0.0
-    air[4] = 0.0
-    air[5] = simple[1] if running else 0.0
-    air[6] = simple[2] if running else 0.0
-    return rho
-
-
-@nb.njit(cache=True)
 def run_simple(t, t_end, origin, segment, q_step, x, books, fan, after, prm, planes, ints, heat, f_values,
                f_step, out_t, k, out_y, out_fan, i_sensor, levels, directions, simple, tol, tol_iter, drift, age,
-               unit_halvings, lin_off, lin_on, slow_iters, iv_t, iv_k, iv_rho, ev_t, ev_s):
+               unit_halvings, lin_off, lin_on, slow_iters, iv_t, iv_k, ev_t, ev_s):
     """The switch loop of :func:`integrate_compiled` for the simple airflow form, compiled: :func:`advance`
-    from switch to switch, the held flows re-formed at each switch (:func:`_simple_air`).
+    from switch to switch with the held flows of the fan state (``simple[j]``, the air vector of fan state
+    j, 0 off, 1 on).
 
-    ``levels[j]``, ``directions[j]``: the switching level and direction that end fan state j (0 off, 1 on).
-    Interval i (a stretch of one fan state) starts at iv_t[i], output row iv_k[i], with outdoor air density
-    iv_rho[i]; the fan state alternates from ``fan``. Switch e is at ev_t[e] with the sensor at ev_s[e].
+    ``levels[j]``, ``directions[j]``: the switching level and direction that end fan state j.
+    Interval i (a stretch of one fan state) starts at iv_t[i], output row iv_k[i]; the fan state alternates
+    from ``fan``. Switch e is at ev_t[e] with the sensor at ev_s[e].
     Returns (status, t, k, fan, after, n_intervals, n_switches, n_rhs): status DONE at t_end, FULL when
     the interval arrays are full (call again to go on), or advance's OFF_GRID or FAILED.
     """
-    air = np.zeros(7)
     n_iv = 0
     n_ev = 0
     calls = 0
     while t < t_end - 1e-9:
         if n_iv >= iv_t.size or n_ev >= ev_t.size:
             return FULL, t, k, fan, after, n_iv, n_ev, calls
-        iv_rho[n_iv] = _simple_air(f_values, f_step, t, fan, simple, air)
         iv_t[n_iv] = t
         iv_k[n_iv] = k
         n_iv += 1
         j = 1 if fan else 0
         k0 = k
         status, t, k, n_rhs, _, _, _ = advance(
-            t, t_end, origin, segment, q_step, x, books, 1.0 if fan else 0.0, air, prm, planes, ints, heat,
+            t, t_end, origin, segment, q_step, x, books, 1.0 if fan else 0.0, simple[j], prm, planes, ints, heat,
             f_values, f_step, out_t, k, out_y, i_sensor, levels[j], directions[j], tol, tol_iter, drift, age,
             unit_halvings, lin_on if fan else lin_off, after, slow_iters)
         calls += n_rhs
@@ -787,7 +769,7 @@ def new_linearisation(n_nodes: int, n_books: int) -> tuple:
     n, nb_ = n_nodes, n_books
     return (np.zeros((n, n)), np.zeros((nb_, n)), np.zeros((_MAX_LEVELS + 1, BLOCKS, n, n)),
             np.zeros((_CACHE, BLOCKS, n, n)), np.zeros(_CACHE), np.zeros(5), np.array([0, -1], dtype=np.int64),
-            np.zeros(n), np.zeros(7), np.zeros((nb_, n)))
+            np.zeros(n), np.zeros(len(kernel.AIR_ORDER)), np.zeros((nb_, n)))
 
 
 def _integrate_simple(network, t_end, fan, args) -> HybridRun | None:
@@ -799,10 +781,9 @@ def _integrate_simple(network, t_end, fan, args) -> HybridRun | None:
     ends = [controller.next_switch(state) for state in (False, True)]  # what ends fan off, fan on
     levels = np.array([e[0] for e in ends], dtype=float)
     directions = np.array([e[1] for e in ends], dtype=np.int64)
-    passive, rated_flow, rated_power, enabled, pressure = airflow.simple_parameters()
-    simple = np.array([passive, rated_flow, rated_power, 1.0 if enabled else 0.0, pressure])
+    simple = np.array([kernel.air_vector(airflow.simple_state(running)) for running in (False, True)])
     size = _INTERVALS + 2
-    iv_t, iv_k, iv_rho = np.empty(size), np.empty(size, dtype=np.int64), np.empty(size)
+    iv_t, iv_k = np.empty(size), np.empty(size, dtype=np.int64)
     ev_t, ev_s = np.empty(size), np.empty(size)
     airs = [None] * out.size
     events, updates = [], []
@@ -814,18 +795,19 @@ def _integrate_simple(network, t_end, fan, args) -> HybridRun | None:
         status, t, k, fan, after, n_iv, n_ev, n_rhs = run_simple(
             t, t_end, origin, seg, q_step, x, books, fan, after, packed.prm, packed.planes, packed.ints,
             packed.heat, f_values, f_step, out, k, out_y, fans, i_sensor, levels, directions, simple, tol,
-            tol_iter, drift, age, 6, lins[False], lins[True], slow_iters, iv_t, iv_k, iv_rho, ev_t, ev_s)
+            tol_iter, drift, age, 6, lins[False], lins[True], slow_iters, iv_t, iv_k, ev_t, ev_s)
         calls += n_rhs
         if status in (OFF_GRID, FAILED):
             return None  # as integrate_compiled: the caller runs the window solver
         running = fan0
         for i in range(n_iv):
-            state = airflow.simple_state(float(iv_rho[i]), running and airflow.enabled)  # as solve()
+            state = airflow.simple_state(running and airflow.enabled)  # as solve()
             k0, k1 = int(iv_k[i]), (int(iv_k[i + 1]) if i + 1 < n_iv else k)
             if k1 > k0:
                 airs[k0:k1] = [state] * (k1 - k0)
-                run_starts.append(k0)
-                run_states.append(state)
+                if not run_states or run_states[-1] is not state:
+                    run_starts.append(k0)
+                    run_states.append(state)
             updates.append((float(iv_t[i]), state))
             running = not running
         events.extend((float(ev_t[e]), bool(fan0) != (e % 2 == 0), float(ev_s[e])) for e in range(n_ev))
@@ -921,7 +903,7 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
     t, fan, k = float(t_start), bool(fan_on), 0
     next_air = t
     calls = 0
-    air_vec = np.zeros(7)
+    air_vec = np.zeros(len(kernel.AIR_ORDER))
     lins = {False: new_linearisation(n_nodes, books.size), True: new_linearisation(n_nodes, books.size)}
     after_switch = False
     if compiled_loop and need_air and airflow.kind == "simple" and controller is not None:
@@ -934,7 +916,8 @@ def integrate_compiled(network, forcing, controller, t_start, t_end, y0, fan_on,
             # (the simple air changes do not depend on the attic temperature)
             t_attic = math.nan if airflow.kind == "simple" else float(network.mean_air(x))
             network.air = airflow.solve(t_attic, forcing.value(0, t), forcing.value(2, t), fan,
-                                        with_depressurisation=True)
+                                        with_depressurisation=True, pressure=forcing.value(_PRESSURE, t),
+                                        temp_room=forcing.value(_T_ROOM, t))
             updates.append((t, network.air))
             air_vec = kernel.air_vector(network.air)
             next_air = (math.floor(t / update + 1e-9) + 1) * update if math.isfinite(update) else math.inf

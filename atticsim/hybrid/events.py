@@ -19,7 +19,10 @@ import numpy as np
 from scipy.integrate import solve_ivp
 
 from atticsim.hybrid.threads import one_blas_thread
-from atticsim.network.model import BOOKS
+from atticsim.network.model import BOOKS, FORCING_BASE
+
+#: Forcing channels the loop reads for the airflow.
+_PRESSURE, _T_ROOM = FORCING_BASE.index("pressure"), FORCING_BASE.index("temp_room")
 
 
 @dataclass
@@ -68,7 +71,8 @@ def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_t
     Parameters
     ----------
     network : AtticNetwork
-        The thermal network (its ``airflow`` model gives the held air flows).
+        The thermal network: ``rate(x, u, fan_on, air)`` gives the node and book rates at one state, its
+        ``airflow`` model (None for none) the held air flows, ``air_vector(state)`` their form for ``rate``.
     forcing : Forcing
         Forcing channels.
     controller : HysteresisController or None
@@ -93,19 +97,20 @@ def integrate(network, forcing, controller, t_start, t_end, y0, fan_on, output_t
     # Absolute tolerances: 1e-5 K on temperatures, 1e-2 J on the books (their scale is MJ).
     atol = np.concatenate([np.full(n_nodes, 1e-5), np.full(len(BOOKS), 1e-2)])
     calls = [0]
-    state = {"fan": fan_on}
+    state = {"fan": fan_on, "air": None}
 
     def rhs(t, y):
         calls[0] += 1
-        f = forcing.at(t)
-        return network.derivatives(y[:n_nodes, None], f[:, None], state["fan"])[:, 0]
+        return network.rate(y[:n_nodes], forcing.at(t), state["fan"], state["air"])
 
     ts, ys, fans, airs, events, updates = [], [], [], [], [], []
     t, y, k = float(t_start), np.asarray(y0, dtype=float), 0
     while t < t_end:
         if airflow is not None:
             f = forcing.at(t)
-            network.air = airflow.solve(float(network.mean_air(y)), f[0], f[2], state["fan"], with_depressurisation=True)
+            network.air = airflow.solve(float(network.mean_air(y)), f[0], f[2], state["fan"], with_depressurisation=True,
+                                        pressure=f[_PRESSURE], temp_room=f[_T_ROOM])
+            state["air"] = network.air_vector(network.air)
             updates.append((t, network.air))
         seg_end = min(t_end, (math.floor(t / update) + 1) * update) if math.isfinite(update) else t_end
         evs = None

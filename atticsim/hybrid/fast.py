@@ -45,6 +45,8 @@ from scipy.optimize import brentq
 
 from atticsim.hybrid.events import HybridRun
 from atticsim.hybrid.threads import one_blas_thread
+from atticsim.network import kernel
+from atticsim.network.kernel import FORCING_BASE
 
 #: Relative finite-difference step for the Jacobians (numerical choice, ours).
 FD_STEP = 1e-4
@@ -371,8 +373,7 @@ def _flow_key(air):
     the one a propagator was built with, as at most switches, keeps that propagator)."""
     if air is None:
         return None
-    return tuple(float(getattr(air, name)) for name in
-                 ("in_lower", "in_upper", "out_lower", "house_in", "attic_to_house", "fan_flow", "fan_power"))
+    return tuple(float(getattr(air, name)) for name in kernel.AIR_ORDER)
 
 
 def _flows_close(a, b, rel=0.05):
@@ -470,7 +471,9 @@ def integrate_fast(network, forcing, controller, t_start, t_end, y0, fan_on, out
     while t < t_end - 1e-9:
         if need_air and t >= next_air - 1e-9:
             f = forcing.at(t)
-            network.air = airflow.solve(float(network.mean_air(y)), f[0], f[2], fan, with_depressurisation=True)
+            network.air = airflow.solve(float(network.mean_air(y)), f[0], f[2], fan, with_depressurisation=True,
+                                        pressure=f[FORCING_BASE.index("pressure")],
+                                        temp_room=f[FORCING_BASE.index("temp_room")])
             updates.append((t, network.air))
             next_air = (math.floor(t / update + 1e-9) + 1) * update if math.isfinite(update) else math.inf
             jac = None

@@ -21,7 +21,9 @@ that a misspelt key is not lost.  Then one CSV header row and the data rows.
 
 Columns: time (ISO 8601 with the UTC offset of the site's local standard time),
 temp_air_c, temp_dew_c and/or relative_humidity_pct, wind_speed_m_s, ghi_w_m2,
-dni_w_m2, dhi_w_m2, and optionally wind_direction_deg, pressure_pa, sky_ir_w_m2.
+dni_w_m2, dhi_w_m2, and optionally wind_direction_deg, pressure_pa, sky_ir_w_m2,
+total_sky_cover_pct and opaque_sky_cover_pct (share of the sky dome covered by any
+cloud / by opaque cloud, 0-100 %; the normalised frame holds them as fractions 0-1).
 Every value, irradiance included, applies AT its time stamp (instantaneous), so the
 reader keeps the stamps as they are.  Any regular step (1 h, 10 min, ...).  An empty
 cell is a missing value (a gap, see :func:`~atticsim.io.weather_frame.validate_weather`).
@@ -64,9 +66,16 @@ CSV_COLUMNS: dict[str, str] = {
     "wind_direction_deg": "wind_direction",
     "pressure_pa": "pressure",
     "sky_ir_w_m2": "sky_ir",
+    "total_sky_cover_pct": "total_sky_cover",
+    "opaque_sky_cover_pct": "opaque_sky_cover",
 }
+#: CSV columns whose unit differs from the normalised frame's: frame value = CSV value x factor.
+CSV_FACTORS: dict[str, float] = {"total_sky_cover_pct": 0.01, "opaque_sky_cover_pct": 0.01}
+#: Decimals of a percent written for the sky cover (so that tenths and percents read back exactly).
+COVER_DECIMALS = 9
 _REQUIRED_CSV = ("temp_air_c", "wind_speed_m_s", "ghi_w_m2", "dni_w_m2", "dhi_w_m2")
-_OPTIONAL_WRITTEN = ("wind_direction_deg", "sky_ir_w_m2")  # written only when they hold values
+# written only when they hold values
+_OPTIONAL_WRITTEN = ("wind_direction_deg", "sky_ir_w_m2", "total_sky_cover_pct", "opaque_sky_cover_pct")
 
 #: Header keys: required ones, then optional ones.
 HEADER_KEYS_REQUIRED = ("site", "latitude", "longitude", "altitude_m", "utc_offset_h")
@@ -141,6 +150,18 @@ def _parse_times(texts: list[str], utc_offset: float, where: str) -> pd.Datetime
     except (TypeError, ValueError) as exc:
         raise ValueError(f"{where}: time: cannot read the time stamps as ISO 8601 ({exc})") from None
     return pd.DatetimeIndex(stamps).tz_convert(site_timezone(utc_offset))
+
+
+def _check_percent(values: np.ndarray, index: pd.DatetimeIndex, name: str, where: str) -> None:
+    """Refuse a percentage outside 0..100 in the file's own unit (a share of the sky dome)."""
+    with np.errstate(invalid="ignore"):
+        bad = np.flatnonzero((values < 0.0) | (values > 100.0))
+    if bad.size:
+        i = int(bad[0])
+        raise ValueError(
+            f"{where}: {name}: {values[i]:g} at {index[i].isoformat()} is outside 0..100 % "
+            f"(a share of the sky dome); {bad.size} value(s) out of range"
+        )
 
 
 def read_weather_csv(
@@ -246,6 +267,9 @@ def read_weather_csv(
         if bad.size:
             i = int(bad[0])
             raise ValueError(f"{where}: {name}: {cells.iloc[i]!r} at {index[i].isoformat()} is not a number")
+        if name in CSV_FACTORS:
+            _check_percent(values, index, name, where)
+            values = values * CSV_FACTORS[name]
         data[CSV_COLUMNS[name]] = values
     raw = pd.DataFrame(data, index=index)
 
@@ -273,8 +297,9 @@ def write_weather_csv(
     The frame is checked first (columns, tz-aware index in the site's fixed offset,
     sorted, unique, regular, physical limits) so the writer never produces a file the
     reader refuses; values are written unchanged (NaN as an empty cell) with full float
-    precision, so reading the file back gives the same frame.  wind_direction_deg and
-    sky_ir_w_m2 are written only when they hold values.
+    precision, so reading the file back gives the same frame (sky cover is written in percent
+    to :data:`COVER_DECIMALS` decimals).  wind_direction_deg, sky_ir_w_m2 and the sky cover
+    columns are written only when they hold values; a frame may lack the sky cover columns.
 
     Parameters
     ----------
@@ -308,6 +333,7 @@ def write_weather_csv(
         )
     except AttributeError as exc:
         raise ValueError(f"{where}: meta: {exc}") from None
+    frame = frame.assign(**{c: np.nan for c in ("total_sky_cover", "opaque_sky_cover") if c not in frame.columns})
     missing = [c for c in WEATHER_COLUMNS if c not in frame.columns]
     if missing:
         raise ValueError(f"{where}: {missing[0]}: required column missing from the frame to write")
@@ -321,9 +347,13 @@ def write_weather_csv(
     validate_weather(frame, site)
 
     columns = ["temp_air_c", "temp_dew_c", "relative_humidity_pct", "wind_speed_m_s",
-               "ghi_w_m2", "dni_w_m2", "dhi_w_m2", "wind_direction_deg", "pressure_pa", "sky_ir_w_m2"]
+               "ghi_w_m2", "dni_w_m2", "dhi_w_m2", "wind_direction_deg", "pressure_pa", "sky_ir_w_m2",
+               "total_sky_cover_pct", "opaque_sky_cover_pct"]
     columns = [c for c in columns if c not in _OPTIONAL_WRITTEN or frame[CSV_COLUMNS[c]].notna().any()]
     out = pd.DataFrame({c: frame[CSV_COLUMNS[c]].to_numpy(dtype=float) for c in columns})
+    for c in CSV_FACTORS:
+        if c in out:
+            out[c] = np.round(out[c] / CSV_FACTORS[c], COVER_DECIMALS)
     out.insert(0, "time", [t.isoformat() for t in frame.index.tz_convert(site.tz)])
 
     header = [
@@ -343,4 +373,4 @@ def write_weather_csv(
     return target
 
 
-__all__ = ["CSV_COLUMNS", "SIGNATURE", "read_weather_csv", "write_weather_csv"]
+__all__ = ["CSV_COLUMNS", "CSV_FACTORS", "SIGNATURE", "read_weather_csv", "write_weather_csv"]

@@ -5,7 +5,9 @@ A weather frame is a :class:`pandas.DataFrame` with
 * a time-zone-aware :class:`pandas.DatetimeIndex` named ``"time"`` in the site's
   fixed-offset local standard time (e.g. UTC-06:00), sorted, unique, with one
   regular step (set as the index ``freq``), resolution microseconds;
-* exactly the columns of :data:`WEATHER_COLUMNS`, all float64, in SI units;
+* exactly the columns of :data:`WEATHER_COLUMNS`, all float64, in SI units (sky cover as a
+  fraction of the sky dome, 0-1; relative humidity in percent); the optional ones
+  (:data:`OPTIONAL_COLUMNS`) NaN in every row when the source has none;
 * in each row the values that apply AT that instant.  Interval means from a file
   (hourly irradiance sums of typical-year files) are stamped at the midpoint of
   their interval by the reader that knows the file's convention.
@@ -44,6 +46,8 @@ WEATHER_COLUMNS: tuple[str, ...] = (
     "dhi",  # diffuse horizontal irradiance [W/m^2]
     "pressure",  # station (site) air pressure [Pa]
     "sky_ir",  # downward long-wave irradiance on a horizontal surface [W/m^2], NaN if absent
+    "total_sky_cover",  # share of the sky dome covered by any cloud [0-1], NaN if absent
+    "opaque_sky_cover",  # share covered by clouds that hide the sky above them [0-1], NaN if absent
 )
 
 #: Unit of each column, for messages and documentation.
@@ -58,13 +62,22 @@ WEATHER_UNITS: dict[str, str] = {
     "dhi": "W/m^2",
     "pressure": "Pa",
     "sky_ir": "W/m^2",
+    "total_sky_cover": "1",  # a fraction of the sky dome, 0-1 (files give tenths or percent)
+    "opaque_sky_cover": "1",
 }
 
 #: Columns a weather source must provide (plus at least one of temp_dew / relative_humidity).
 REQUIRED_COLUMNS: tuple[str, ...] = ("temp_air", "wind_speed", "ghi", "dni", "dhi")
 
+#: Optional columns: NaN in every row when the source has none of them.
+OPTIONAL_COLUMNS: tuple[str, ...] = ("wind_direction", "sky_ir", "total_sky_cover", "opaque_sky_cover")
+
 #: Accepted values of :attr:`WeatherMeta.source_format`.
 SOURCE_FORMATS: tuple[str, ...] = ("tmy3", "tmy2", "epw", "atticsim-csv")
+
+#: Formats whose rows are hourly records stamped at mid-hour: their data span half a step beyond the
+#: first and last stamps (see :func:`data_span`).
+MID_INTERVAL_FORMATS: tuple[str, ...] = ("tmy3", "tmy2", "epw")
 
 #: Resolution of the time index (the default of pandas 3 and of pvlib's readers).
 TIME_UNIT = "us"
@@ -88,6 +101,8 @@ _ERROR_RANGES: dict[str, tuple[float, float]] = {
     "dhi": (-5.0, 1500.0),
     "pressure": (30_000.0, 110_000.0),
     "sky_ir": (0.0, 800.0),
+    "total_sky_cover": (0.0, 1.0),  # a share of the sky dome: definition
+    "opaque_sky_cover": (0.0, 1.0),
 }
 #: Small negative irradiance (sensor offset at night) down to this value is set to 0 [W/m^2].
 IRRADIANCE_CLIP_W_M2 = -5.0
@@ -244,6 +259,33 @@ def interpolate_direction(
 # --------------------------------------------------------------------------- validation
 
 
+def data_span(frame: pd.DataFrame, meta=None) -> tuple[pd.Timestamp, pd.Timestamp]:
+    """First and last instant a weather frame's data cover.
+
+    Rows of instantaneous values (the atticsim CSV, demo and design-day weather) cover their first
+    to their last stamp.  Rows of hourly typical-year records (:data:`MID_INTERVAL_FORMATS`) are
+    stamped at mid-hour and cover half a step more at each end: a whole typical year covers
+    Jan 1 00:00 to Dec 31 24:00 although its first row is stamped 00:30 and its last 23:30.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        A normalised weather frame (regular step).
+    meta : object, optional
+        Its metadata; ``meta.source_format`` tells the stamping.
+
+    Returns
+    -------
+    (pandas.Timestamp, pandas.Timestamp)
+        Start and end of the data, tz-aware.
+    """
+    index = frame.index
+    if getattr(meta, "source_format", None) in MID_INTERVAL_FORMATS and len(index) > 1:
+        half = (index[1] - index[0]) / 2
+        return index[0] - half, index[-1] + half
+    return index[0], index[-1]
+
+
 def check_time_index(index: pd.Index, where: str) -> pd.Timedelta:
     """Check a weather time index: tz-aware, sorted, unique, one regular step.
 
@@ -335,8 +377,9 @@ def _check_limits(
                 extra = f" (negatives down to {IRRADIANCE_CLIP_W_M2:g} {unit} are set to 0)"
             if col == "relative_humidity" and v > high:
                 extra = f" (values up to {RH_CLIP_PCT:g} % are set to 100 %)"
+            shown = "" if unit == "1" else f" {unit}"  # a fraction needs no unit
             raise ValueError(
-                f"{where}: {labels.get(col, col)}: {v:g} {unit} at {format_time(index[i])} is {side} {unit}"
+                f"{where}: {labels.get(col, col)}: {v:g}{shown} at {format_time(index[i])} is {side}{shown}"
                 f"{extra}; {bad.size} value(s) out of range"
             )
     for col in ("ghi", "dni", "dhi"):
@@ -448,8 +491,8 @@ def validate_weather(
     relative_humidity computed from the other (Magnus); gaps interpolated (linear;
     wind direction on the circle) up to ``max_gap_h`` and counted, longer gaps refused;
     a missing humidity column derived; a missing pressure filled from the ISO 2533
-    standard atmosphere at the site altitude; absent wind direction / sky long-wave
-    left NaN.
+    standard atmosphere at the site altitude; absent wind direction / sky long-wave /
+    sky cover left NaN.
 
     Parameters
     ----------
@@ -571,6 +614,8 @@ def validate_weather(
     for col, what in (("wind_direction", "wind direction"), ("sky_ir", "sky long-wave")):
         if col not in given:
             report.notes.append(f"no {what} in the source: {col} left NaN")
+    if not {"total_sky_cover", "opaque_sky_cover"} & given:
+        report.notes.append("no sky cover in the source: total_sky_cover and opaque_sky_cover left NaN")
 
     return finish_frame(out, where), report
 
@@ -604,6 +649,8 @@ def finish_frame(frame: pd.DataFrame, where: str = "weather") -> pd.DataFrame:
 
 __all__ = [
     "DEFAULT_MAX_GAP_H",
+    "MID_INTERVAL_FORMATS",
+    "OPTIONAL_COLUMNS",
     "REQUIRED_COLUMNS",
     "SOURCE_FORMATS",
     "TIME_UNIT",
@@ -612,6 +659,7 @@ __all__ = [
     "WEATHER_UNITS",
     "WeatherMeta",
     "check_time_index",
+    "data_span",
     "dew_point_from_relative_humidity",
     "finish_frame",
     "interpolate_direction",

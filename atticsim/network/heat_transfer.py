@@ -6,6 +6,8 @@ the network (so no radiation is counted twice).
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 
@@ -26,48 +28,49 @@ SURFACE_TEXTURE = {
 _EPS2 = 0.05**2
 
 
-def natural_convection_walton(delta_t, cos_tilt, facing_up):
-    """Natural convection coefficient on a tilted plane (Walton's simple correlation).
+def walton_natural(delta_t, cos_tilt, facing_up):
+    """Natural convection coefficient on a tilted plane (Walton's simple correlation) [W/(m^2 K)], for one
+    surface (scalar arithmetic, compiled as it is by :mod:`atticsim.network.kernel`).
 
-    Walton, G. N. (1983), Thermal Analysis Research Program reference manual, NBSIR 83-2655
-    (from memory):
+    Walton, G. N. (1983), Thermal Analysis Research Program reference manual, NBSIR 83-2655 (from memory):
     unstable (buoyant flow leaves the surface): h = 9.482 |dT|^(1/3) / (7.238 - |cos S|);
-    stable: h = 1.810 |dT|^(1/3) / (1.382 + |cos S|).
+    stable: h = 1.810 |dT|^(1/3) / (1.382 + |cos S|). |dT|^(1/3) is smoothed as (dT^2 + eps^2)^(1/6) with
+    eps = 0.05 K so that the derivative stays finite (numerical choice, ours).
 
     Parameters
     ----------
-    delta_t : array_like
+    delta_t : float
         Surface minus air temperature [K].
-    cos_tilt : array_like
+    cos_tilt : float
         Cosine of the surface tilt from horizontal [-] (1 = horizontal, 0 = vertical).
-    facing_up : bool or array_like of bool
-        True when the surface's outward normal points upward (roof top, attic floor), False when it
-        points downward (deck underside).
-
-    Returns
-    -------
-    numpy.ndarray
-        Convection coefficient [W/(m^2 K)].
+    facing_up : bool
+        True when the surface's outward normal points upward (roof top, attic floor), False when it points
+        downward (deck underside). Heat flow upward from a surface facing up (hot surface) or into a surface
+        facing down (cold surface above warmer air) is the unstable case.
     """
-    dt = np.asarray(delta_t, dtype=float)
-    c = np.abs(np.asarray(cos_tilt, dtype=float))
-    cube = (dt * dt + _EPS2) ** (1.0 / 6.0)
-    # Heat flow upward from a surface facing up (hot surface) or into a surface facing down
-    # (cold surface above warmer air) is the unstable case.
-    unstable = np.where(facing_up, dt > 0.0, dt < 0.0)
-    return np.where(unstable, 9.482 * cube / (7.238 - c), 1.810 * cube / (1.382 + c))
+    c = abs(cos_tilt)
+    cube = (delta_t * delta_t + _EPS2) ** (1.0 / 6.0)
+    unstable = delta_t > 0.0 if facing_up else delta_t < 0.0
+    if unstable:
+        return 9.482 * cube / (7.238 - c)
+    return 1.810 * cube / (1.382 + c)
+
+
+#: :func:`walton_natural` over arrays (broadcast), for figures and tests.
+natural_convection_walton = np.vectorize(walton_natural, otypes=[float])
 
 
 def forced_convection_sparrow(wind_speed, perimeter, area, roughness, windward_factor=0.75):
-    """Forced convection on an exterior surface (Sparrow, Ramsey & Mass 1979, as given by Walton 1983).
+    """Forced convection on an exterior surface (Sparrow, Ramsey & Mass 1979, as given by Walton 1983)
+    [W/(m^2 K)], for one surface (scalar arithmetic, compiled as it is by the network's kernel).
 
-    h_f = 2.537 W_f R_f sqrt(P V / A) (Walton 1983, NBSIR 83-2655; from memory; worked check
-    value 4.64 W/m^2K for A = 100 m^2, P = 40 m, V = 3 m/s, R_f = 1.67, W_f = 1).
+    h_f = 2.537 W_f R_f sqrt(P V / A) (Walton 1983, NBSIR 83-2655; from memory; worked check value
+    4.64 W/m^2K for A = 100 m^2, P = 40 m, V = 3 m/s, R_f = 1.67, W_f = 1).
 
     Parameters
     ----------
-    wind_speed : array_like
-        Wind speed [m/s].
+    wind_speed : float
+        Wind speed [m/s] (negative values count as calm).
     perimeter : float
         Perimeter of the surface [m].
     area : float
@@ -77,14 +80,8 @@ def forced_convection_sparrow(wind_speed, perimeter, area, roughness, windward_f
     windward_factor : float
         W_f: 1.0 windward, 0.5 leeward; 0.75 when the wind direction is not modelled
         (mean of the two, our choice).
-
-    Returns
-    -------
-    numpy.ndarray
-        Forced convection coefficient [W/(m^2 K)].
     """
-    v = np.maximum(np.asarray(wind_speed, dtype=float), 0.0)
-    return 2.537 * windward_factor * roughness * np.sqrt(perimeter * v / area)
+    return 2.537 * windward_factor * roughness * math.sqrt(perimeter * max(wind_speed, 0.0) / area)
 
 
 def gray_two_surface_factor(area_1, emittance_1, area_2, emittance_2, view_12=1.0):

@@ -1,12 +1,13 @@
-"""A compiled, scalar right-hand side of the attic network, for a compiled time-stepping solver.
+"""The attic network's physics, compiled: every heat flow written once, for every solver.
 
-:func:`rhs` evaluates, for ONE state, what :meth:`atticsim.network.model.AtticNetwork.derivatives` gives
-for a column: the node temperature derivatives [K/s] in the network's node order, then the rates of the
-energy books [W] in the order of :data:`atticsim.network.model.BOOKS`. It mirrors ``AtticNetwork.flows``
-and ``AtticNetwork.derivatives`` term by term (the same equations, sources and order of operations, so
-that the two agree to rounding); ``tests/test_kernel_rhs.py`` holds them equal on every scenario,
-placement, sensor body, layer count and fan state. A change to the network's physics must be made in
-both places.
+:func:`_network` evaluates every heat flow of the network at ONE state (the roof planes, the air paths, the
+ceiling, the sensor by its placement); :func:`rhs` forms from it the node temperature derivatives [K/s] in
+the network's node order, then the rates of the energy books [W] in the order of :data:`BOOKS`;
+:func:`flows` gives the named flows of :data:`FLOWS` (the results read them at the output instants).
+The compiled solver calls :func:`rhs` from compiled code; the reference solver and the results call it (or
+:func:`flows`) through :class:`atticsim.network.model.AtticNetwork`. The correlations are compiled from
+their single sources (:mod:`atticsim.network.heat_transfer`, :mod:`atticsim.air`,
+:mod:`atticsim.network.placement`, the sensor correlations of :mod:`atticsim.sensor`).
 
 Usage::
 
@@ -15,8 +16,8 @@ Usage::
     out = np.empty(packed.n_out)
     rhs(x, u, 1.0 if fan_on else 0.0, air, packed.prm, packed.planes, packed.ints, packed.heat, out)
 
-:func:`rhs` is a numba ``njit`` function that allocates nothing; it can be called from other compiled
-code. Its parameters live in plain arrays (:class:`Packed`), laid out by the index constants below.
+:func:`rhs` allocates nothing; it can be called from other compiled code. Its parameters live in plain
+arrays (:class:`Packed`), laid out by the index constants below.
 
 The sensor's self-heating, when the network's ``sensor_power`` is a function (the circuit thermostat's
 exact divider dissipation), is tabulated once by :func:`pack` and interpolated linearly (see
@@ -36,10 +37,10 @@ import numpy as np
 from atticsim import jitcache
 from atticsim.constants import CP_AIR, GRAVITY, KELVIN, SIGMA
 from atticsim import air as _moist_air
-from atticsim.air import H_FG, MAGNUS_A, MAGNUS_B_C, MAGNUS_C_PA, MOLAR_MASS_RATIO
-from atticsim.network.heat_transfer import _EPS2, forced_convection_sparrow
-from atticsim.network.model import BOOKS, FORCING_BASE
-from atticsim.network.placement import INTAKE_FULL_SPEED, PLACEMENTS, STILL_ATTIC_SPEED
+from atticsim.air import H_FG
+from atticsim.network import heat_transfer
+from atticsim.network.heat_transfer import _EPS2
+from atticsim.network.placement import PLACEMENTS
 from atticsim.sensor import air as _air
 from atticsim.sensor import convection as _conv
 from atticsim.sensor.body import BODY_SHAPES
@@ -48,33 +49,70 @@ jitcache.check()  # stale compiled code out before numba loads any (see atticsim
 jitcache.route()  # this module's compiled functions cache in atticsim's own folder
 
 # numba options for everything here: IEEE results (inf, nan) instead of exceptions on division by zero,
-# as numpy gives them to the vectorised model; no fast-math, so the arithmetic stays that of the model.
+# as numpy would give them; no fast-math, so the arithmetic stays as written.
 _JIT = {"error_model": "numpy"}
+
+
+def compiled(function, **callees):
+    """``function`` compiled for the network (numba, cached), from its own source: the global names in
+    ``callees`` that it calls are bound to their compiled forms (so that a correlation calling another is
+    still written once)."""
+    import types
+
+    if callees:
+        scope = dict(function.__globals__)
+        scope.update(callees)
+        function = types.FunctionType(function.__code__, scope, function.__name__, function.__defaults__)
+    return numba.njit(cache=True, **_JIT)(function)
+
+# --- names ---------------------------------------------------------------------------------------------
+
+#: Names of the energy books, in state order after the temperatures.
+BOOKS = ("solar", "sky", "ground", "exterior_convection", "ventilation", "ceiling_gain", "triac_heat",
+         "fan_electric", "house_air_sensible", "house_air_latent")
+#: Books that cross the attic's boundary (the energy closure uses these).
+ATTIC_BOOKS = BOOKS[:7]
+#: Forcing channels before the per-plane irradiance channels.
+FORCING_BASE = ("temp_out", "temp_sky_k", "wind_speed", "temp_dew", "pressure", "temp_room")
+#: The named heat flows of :func:`flows` [W] (per-plane flows summed over the planes; ``*_upper`` and
+#: ``*_lower`` are the parts that reach each air layer; ``sensor_local_air`` [degC] and
+#: ``sensor_local_speed`` [m/s] are what the sensor's placement gives it).
+FLOWS = ("solar", "sky", "ground", "exterior_convection", "cover_deck", "deck_upper", "deck_lower", "deck_floor",
+         "framing_upper", "framing_lower", "ceiling_air", "ventilation_lower", "ventilation_upper", "ventilation",
+         "layer_exchange", "insulation", "ceiling_gain", "sensor", "fan_electric", "house_air_sensible",
+         "house_air_latent", "sensor_self_heating", "triac_heat", "enclosure_air", "sensor_local_air",
+         "sensor_local_speed")
+N_FLOWS = len(FLOWS)
+#: Per roof plane: the net heat gained by its cover and by its deck [W], the temperatures of its outer
+#: surface and of the deck's underside [degC].
+PLANE_FLOWS = ("cover_net", "deck_net", "roof_surface", "deck_underside")
+#: Newton steps for the massless surface temperatures, from the layer's own temperature (three leave an error
+#: below 1e-4 K from calm night to hot noon, two up to 0.006 K: tests/test_network_surfaces.py).
+SURFACE_STEPS = 3
 
 # --- layout of the packed parameters ----------------------------------------------------------------------
 
 #: Scalar parameters, rows of ``Packed.prm``.
 (_ABSORPTANCE, _EMITTANCE, _ROUGHNESS, _FLOOR_AREA, _C_AIR, _W_UP, _F_UP, _LAYER_MIXING, _FAN_MIXING,
- _INTERFACE_AREA, _FRAMING_AREA, _C_FRAMING, _C_CEILING_TOP, _C_GYPSUM, _R_INSULATION, _R_ROOM, _ROOM_T,
- _ROOM_W, _PRESSURE, _SENSOR_G, _SENSOR_C, _CONTACT_G, _FAN_AREA, _INTAKE_AREA, _ENCLOSURE_G, _C_ENCLOSURE,
- _TRIAC_LOSS, _BODY_SCALE, _BODY_AREA, _BODY_D, _BODY_EMITTANCE, _HEAT_T0, _HEAT_DT) = range(33)
-N_PRM = 33
+ _INTERFACE_AREA, _FRAMING_AREA, _C_FRAMING, _C_CEILING_TOP, _C_GYPSUM, _R_INSULATION, _R_ROOM,
+ _ROOM_RH, _SENSOR_G, _SENSOR_C, _CONTACT_G, _FAN_AREA, _INTAKE_AREA, _ENCLOSURE_G, _C_ENCLOSURE,
+ _TRIAC_LOSS, _BODY_SCALE, _BODY_AREA, _BODY_D, _BODY_EMITTANCE, _HEAT_T0, _HEAT_DT) = range(31)
+N_PRM = 31
 #: Per-plane parameters, columns of ``Packed.planes`` (one row per plane).
 (_AREA, _COS_TILT, _PERIMETER, _F_SKY, _F_GROUND, _C_COVER, _C_DECK, _U_COVER_DECK, _G_DECK_FLOOR,
- _DECK_SHARE) = range(10)
-N_PLANE_COLS = 10
+ _DECK_SHARE, _R_OUTER, _R_INNER) = range(12)
+N_PLANE_COLS = 12
 #: Integers, entries of ``Packed.ints`` (node indices; -1 for an absent node or body).
 (_N_PLANES, _LAYERS, _I_LOWER, _I_UPPER, _I_FRAMING, _I_CEILING_TOP, _I_GYPSUM, _I_ENCLOSURE, _I_SENSOR,
  _PLACEMENT, _SHAPE, _N_NODES) = range(12)
 N_INTS = 12
 
-#: Placement codes (``ints[_PLACEMENT]``); every placement of :data:`PLACEMENTS` must have one.
-PLACEMENT_CODES = {"ridge": 0, "mid": 1, "exhaust": 2, "intake": 3, "deck": 4, "board": 5}
 #: Convection geometry codes of a sensor body (``ints[_SHAPE]``; -1: no body).
 SHAPE_CODES = {"sphere": 0, "cylinder": 1}
 #: Order of :func:`air_vector`.
-AIR_ORDER = ("in_lower", "in_upper", "out_lower", "house_in", "attic_to_house", "fan_flow", "fan_power")
-_IN_LOWER, _IN_UPPER, _OUT_LOWER, _HOUSE_IN, _ATTIC_TO_HOUSE, _FAN_FLOW, _FAN_POWER = range(7)
+AIR_ORDER = ("in_lower", "in_upper", "out_lower", "house_in", "attic_to_house", "fan_flow", "fan_power",
+             "fan_makeup")
+_IN_LOWER, _IN_UPPER, _OUT_LOWER, _HOUSE_IN, _ATTIC_TO_HOUSE, _FAN_FLOW, _FAN_POWER, _FAN_MAKEUP = range(8)
 
 #: Self-heating table for a ``sensor_power`` function: sensor temperatures HEAT_T_MIN..HEAT_T_MAX [degC]
 #: every HEAT_STEP [K], linear interpolation, clamped to the end values outside (a numerical choice of
@@ -86,13 +124,18 @@ HEAT_T_MIN, HEAT_T_MAX, HEAT_STEP = -80.0, 160.0, 0.01
 
 _N_FORCING_BASE = len(FORCING_BASE)
 _N_BOOKS = len(BOOKS)
-assert BOOKS == ("solar", "sky", "ground", "exterior_convection", "ventilation", "ceiling_gain", "triac_heat",
-                 "fan_electric", "house_air_sensible", "house_air_latent"), "kernel.rhs writes the books in this order"
-assert FORCING_BASE == ("temp_out", "temp_sky_k", "wind_speed", "temp_dew"), \
-    "kernel.rhs reads the forcing in this order"
+#: Index in :data:`FLOWS` of each book's rate.
+_BOOK_FLOWS = tuple(FLOWS.index(name) for name in BOOKS)
+(_Q_SOLAR, _Q_SKY, _Q_GROUND, _Q_EXTERIOR, _Q_COVER_DECK, _Q_DECK_UPPER, _Q_DECK_LOWER, _Q_DECK_FLOOR,
+ _Q_FRAMING_UPPER, _Q_FRAMING_LOWER, _Q_CEILING_AIR, _Q_VENT_LOWER, _Q_VENT_UPPER, _Q_VENT, _Q_LAYER_EXCHANGE,
+ _Q_INSULATION, _Q_CEILING_GAIN, _Q_SENSOR, _Q_FAN_ELECTRIC, _Q_HOUSE_SENSIBLE, _Q_HOUSE_LATENT, _Q_SELF_HEATING,
+ _Q_TRIAC, _Q_ENCLOSURE_AIR, _Q_LOCAL_AIR, _Q_LOCAL_SPEED) = range(N_FLOWS)
+assert FORCING_BASE == ("temp_out", "temp_sky_k", "wind_speed", "temp_dew", "pressure", "temp_room"), \
+    "the kernel reads the forcing in this order"
+_U_T_OUT, _U_T_SKY_K, _U_WIND, _U_T_DEW, _U_PRESSURE, _U_T_ROOM = range(len(FORCING_BASE))
 
 #: Defaults the network relies on, read from their single source.
-_WINDWARD = inspect.signature(forced_convection_sparrow).parameters["windward_factor"].default
+_WINDWARD = inspect.signature(heat_transfer.forced_convection_sparrow).parameters["windward_factor"].default
 _MIXED_EXPONENT = inspect.signature(_conv._h).parameters["n"].default
 assert inspect.signature(_conv._h).parameters["sphere_correlation"].default == "whitaker"
 _LOG2 = math.log(2.0)
@@ -118,17 +161,16 @@ class Packed(NamedTuple):
 
 def pack(network) -> Packed:
     """The parameters of an :class:`~atticsim.network.model.AtticNetwork` as a :class:`Packed`."""
-    if network.placement not in PLACEMENT_CODES:
-        raise ValueError(f"sensor placement {network.placement!r} has no compiled form in atticsim.network.kernel")
-    if network.place is not PLACEMENTS[network.placement]:
-        raise ValueError("the network's placement function is not the standard one; kernel.rhs cannot mirror it")
+    if network.placement not in PLACEMENTS:
+        raise ValueError(f"sensor placement {network.placement!r} is not one of {', '.join(PLACEMENTS)}")
     P = network.n_planes
     area = np.asarray(network.area, dtype=float).reshape(P)
     planes = np.zeros((P, N_PLANE_COLS))
     planes[:, _AREA] = area
     for col, value in ((_COS_TILT, network.cos_tilt), (_PERIMETER, network.perimeter), (_F_SKY, network.f_sky),
                        (_F_GROUND, network.f_ground), (_C_COVER, network.c_cover), (_C_DECK, network.c_deck),
-                       (_U_COVER_DECK, network.u_cover_deck), (_G_DECK_FLOOR, network.g_deck_floor)):
+                       (_U_COVER_DECK, network.u_cover_deck), (_G_DECK_FLOOR, network.g_deck_floor),
+                       (_R_OUTER, network.r_outer), (_R_INNER, network.r_inner)):
         planes[:, col] = np.broadcast_to(np.asarray(value, dtype=float).reshape(-1), (P,))
     planes[:, _DECK_SHARE] = area / area.sum()  # the sensor's area-weighted deck temperature, as flows()
 
@@ -140,7 +182,7 @@ def pack(network) -> Packed:
     prm[_INTERFACE_AREA], prm[_FRAMING_AREA] = network.interface_area, network.framing_area
     prm[_C_FRAMING], prm[_C_CEILING_TOP], prm[_C_GYPSUM] = network.c_framing, network.c_ceiling_top, network.c_gypsum
     prm[_R_INSULATION], prm[_R_ROOM] = network.r_insulation, network.r_room
-    prm[_ROOM_T], prm[_ROOM_W], prm[_PRESSURE] = network.room_temperature, network.room_humidity_ratio, network.pressure
+    prm[_ROOM_RH] = network.room_relative_humidity
     prm[_SENSOR_G], prm[_SENSOR_C] = network.sensor_conductance, network.sensor_capacity
     prm[_CONTACT_G], prm[_FAN_AREA], prm[_INTAKE_AREA] = (network.contact_conductance, network.fan_area,
                                                           network.intake_area)
@@ -162,7 +204,7 @@ def pack(network) -> Packed:
     ints[_I_FRAMING], ints[_I_CEILING_TOP], ints[_I_GYPSUM] = idx["framing"], idx["ceiling_top"], idx["gypsum"]
     ints[_I_ENCLOSURE] = -1 if network.i_enclosure is None else network.i_enclosure
     ints[_I_SENSOR] = network.n_nodes - 1  # derivatives() writes the sensor's balance to the last node
-    ints[_PLACEMENT], ints[_SHAPE], ints[_N_NODES] = PLACEMENT_CODES[network.placement], shape, network.n_nodes
+    ints[_PLACEMENT], ints[_SHAPE], ints[_N_NODES] = PLACEMENTS[network.placement].code, shape, network.n_nodes
     if network.layers not in (1, 2):
         raise ValueError(f"attic air layers must be 1 or 2, got {network.layers!r}")
     if idx.get("sensor") != network.n_nodes - 1:
@@ -207,7 +249,7 @@ _AIR_ORDER_VALUES = operator.attrgetter(*AIR_ORDER)  # (AIR_ORDER's fields of an
 
 
 def air_vector(air) -> np.ndarray:
-    """The air flows :func:`rhs` reads, from an AirflowState: float64[7] in :data:`AIR_ORDER`."""
+    """The air flows :func:`rhs` reads, from an AirflowState: float64[8] in :data:`AIR_ORDER`."""
     return np.array(_AIR_ORDER_VALUES(air), dtype=float)
 
 
@@ -226,44 +268,23 @@ _AirProperties = _air.AirProperties
 _NU_CONDUCTION_SPHERE = _conv.NU_CONDUCTION_SPHERE
 
 
-@numba.njit(cache=True, **_JIT)
-def _walton(delta_t, cos_tilt, facing_up):
-    """Scalar :func:`atticsim.network.heat_transfer.natural_convection_walton` [W/(m2 K)]."""
-    # Walton 1983, NBSIR 83-2655 (from memory): unstable h = 9.482 |dT|^(1/3) / (7.238 - |cos S|),
-    # stable h = 1.810 |dT|^(1/3) / (1.382 + |cos S|); |dT|^(1/3) smoothed as (dT^2 + eps^2)^(1/6)
-    # (numerical choice, ours)
-    c = abs(cos_tilt)
-    cube = (delta_t * delta_t + _EPS2) ** (1.0 / 6.0)
-    unstable = delta_t > 0.0 if facing_up else delta_t < 0.0
-    if unstable:
-        return 9.482 * cube / (7.238 - c)
-    return 1.810 * cube / (1.382 + c)
+_walton = compiled(heat_transfer.walton_natural)                    # Walton 1983, NBSIR 83-2655
+_sparrow = compiled(heat_transfer.forced_convection_sparrow)         # Sparrow et al. 1979
+_air_density = compiled(_moist_air.air_density)                      # ideal gas, ISO 2533 R_d
+# the placements' local conditions, compiled from their records (atticsim.network.placement) in code order
+(_ridge, _mid, _exhaust, _intake, _deck, _board) = (compiled(p.function) for p in PLACEMENTS.values())
+assert tuple(PLACEMENTS) == ("ridge", "mid", "exhaust", "intake", "deck", "board"), "_local's branches"
 
 
-@numba.njit(cache=True, **_JIT)
-def _sparrow(wind_speed, perimeter, area, roughness):
-    """Scalar :func:`atticsim.network.heat_transfer.forced_convection_sparrow` (W_f its default) [W/(m2 K)]."""
-    # Sparrow, Ramsey & Mass 1979 as in Walton 1983, NBSIR 83-2655 (from memory): h = 2.537 W_f R_f sqrt(P V / A)
-    v = max(wind_speed, 0.0)
-    return 2.537 * _WINDWARD * roughness * math.sqrt(perimeter * v / area)
-
-
-_air_density = numba.njit(cache=True, **_JIT)(_moist_air.air_density)  # ideal gas, ISO 2533 R_d
-
-
-@numba.njit(cache=True, **_JIT)
-def _humidity_ratio(temp_dew, pressure):
-    """Scalar :func:`atticsim.air.humidity_ratio` [kg/kg]."""
-    # saturation pressure at the dew point, Magnus form, Alduchov & Eskridge (1996) eq. 21
-    p_w = MAGNUS_C_PA * math.exp(MAGNUS_A * temp_dew / (temp_dew + MAGNUS_B_C))
-    # W = 0.621945 p_w / (p - p_w) (ASHRAE Handbook Fundamentals, psychrometrics chapter, eq. 20 and 36)
-    return MOLAR_MASS_RATIO * p_w / (pressure - p_w)
+_saturation = compiled(_moist_air.saturation_vapour_pressure)  # Alduchov & Eskridge (1996) eq. 21
+_humidity_ratio = compiled(_moist_air.humidity_ratio, saturation_vapour_pressure=_saturation)  # ASHRAE, psychrometrics
+_humidity_ratio_from_rh = compiled(_moist_air.humidity_ratio_from_rh, saturation_vapour_pressure=_saturation)
 
 
 @numba.njit(cache=True, **_JIT)
 def _softplus_01(x):
     """0.1 ln(1 + exp(x / 0.1)), as ``0.1 * np.logaddexp(0.0, x / 0.1)`` (numpy's branches)."""
-    # smoothed onset of the buoyant overturning over ~0.1 K (numerical choice, see AtticNetwork.flows)
+    # smoothed onset of the buoyant overturning over ~0.1 K (numerical choice, see _air_paths)
     y = x / 0.1
     if y == 0.0:
         s = _LOG2
@@ -323,106 +344,151 @@ def _self_heating(t_s, fan, prm, heat):
     return heat[row, i] + f * (heat[row, i + 1] - heat[row, i])
 
 
-@numba.njit(cache=True, _nrt=False, **_JIT)
-def rhs(x, u, fan, air, prm, planes, ints, heat, out):
-    """Node temperature derivatives [K/s] then the books' rates [W] at one state, written into ``out``.
+@numba.njit(cache=True, **_JIT)
+def _local(code, t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area, intake_flow,
+           intake_area, contact_g):
+    """The sensor's local conditions by its placement code (the functions of atticsim.network.placement)."""
+    args = (t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area, intake_flow, intake_area,
+            contact_g)
+    if code == 0:
+        return _ridge(*args)
+    if code == 1:
+        return _mid(*args)
+    if code == 2:
+        return _exhaust(*args)
+    if code == 3:
+        return _intake(*args)
+    if code == 4:
+        return _deck(*args)
+    return _board(*args)
 
-    Parameters
-    ----------
-    x : float64[n_nodes]
-        Node temperatures [degC] in the network's node order.
-    u : float64[4 + P]
-        Forcing: temp_out [degC], temp_sky_k [K], wind_speed [m/s], temp_dew [degC], then the
-        plane-of-array irradiance of each plane [W/m2].
-    fan : float
-        Fan state, 0.0 off or 1.0 on.
-    air : float64[7]
-        Held air flows in :data:`AIR_ORDER` (:func:`air_vector`).
-    prm, planes, ints, heat
-        The network's :class:`Packed` arrays.
-    out : float64[n_nodes + 10]
-        Filled with what ``AtticNetwork.derivatives`` gives for this column.
-    """
-    n_p = ints[_N_PLANES]
-    n = ints[_N_NODES]
-    i_lo, i_up = ints[_I_LOWER], ints[_I_UPPER]
-    i_enc = ints[_I_ENCLOSURE]
-    t_lo, t_up = x[i_lo], x[i_up]
-    t_fr, t_ct, t_gyp = x[ints[_I_FRAMING]], x[ints[_I_CEILING_TOP]], x[ints[_I_GYPSUM]]
-    t_s = x[ints[_I_SENSOR]]
-    t_out, t_sky_k, wind, t_dew = u[0], u[1], u[2], u[3]
+
+@numba.njit(cache=True, **_JIT)
+def _walton_slope(delta_t, h):
+    """d(h dT)/d(dT) for Walton's h = c (dT^2 + eps^2)^(1/6) (c constant on each side of dT = 0):
+    h (1 + dT^2 / (3 (dT^2 + eps^2))) [W/(m2 K)]."""
+    d2 = delta_t * delta_t
+    return h * (1.0 + d2 / (3.0 * (d2 + _EPS2)))
+
+
+@numba.njit(cache=True, **_JIT)
+def _outer_surface(t_node, r_half, absorbed, t_out, k_sky4, k_out4, f_sky, f_ground, emittance, h_forced,
+                   cos_tilt):
+    """Temperature [degC] of a roof covering's outer surface, a massless surface between the covering's
+    centre (t_node, half the covering's resistance r_half [m2K/W] away) and the outdoors: absorbed sun
+    [W/m2] + long-wave to sky and ground + convection + conduction from the centre = 0, solved by Newton's
+    method from t_node (:data:`SURFACE_STEPS` steps)."""
+    t = t_node
+    for _ in range(SURFACE_STEPS):
+        k = t + KELVIN
+        k3 = k * k * k
+        d_t = t - t_out
+        h_nat = _walton(d_t, cos_tilt, True)
+        f = (absorbed + emittance * SIGMA * (f_sky * (k_sky4 - k3 * k) + f_ground * (k_out4 - k3 * k))
+             - (h_forced + h_nat) * d_t + (t_node - t) / r_half)
+        slope = (-4.0 * emittance * SIGMA * (f_sky + f_ground) * k3 - h_forced - _walton_slope(d_t, h_nat)
+                 - 1.0 / r_half)
+        t -= f / slope
+    return t
+
+
+@numba.njit(cache=True, **_JIT)
+def _inner_surface(t_node, r_half, cos_tilt, f_up, t_up, t_lo, g_floor, k_ct4):
+    """Temperature [degC] of a deck's underside, a massless surface between the sheathing's centre (t_node,
+    half its resistance r_half [m2K/W] away) and the attic: conduction from the centre = natural convection to
+    the upper (share f_up of the area) and lower air + long-wave to the attic floor (g_floor: the gray
+    exchange factor per unit deck area), solved by Newton's method from t_node (:data:`SURFACE_STEPS`
+    steps)."""
+    t = t_node
+    for _ in range(SURFACE_STEPS):
+        k = t + KELVIN
+        k3 = k * k * k
+        d_up, d_lo = t - t_up, t - t_lo
+        h_up = _walton(d_up, cos_tilt, False)
+        h_lo = _walton(d_lo, cos_tilt, False)
+        f = ((t_node - t) / r_half - f_up * h_up * d_up - (1.0 - f_up) * h_lo * d_lo
+             - SIGMA * g_floor * (k3 * k - k_ct4))
+        slope = (-1.0 / r_half - f_up * _walton_slope(d_up, h_up) - (1.0 - f_up) * _walton_slope(d_lo, h_lo)
+                 - 4.0 * SIGMA * g_floor * k3)
+        t -= f / slope
+    return t
+
+
+@numba.njit(cache=True, **_JIT)
+def _plane(p, x, u, planes, prm, n_p, t_up, t_lo, k_ct4):
+    """Heat flows of roof plane p [W] and its surface temperatures [degC]: (solar, sky, ground, exterior
+    convection, cover -> deck, deck -> upper air, deck -> lower air, deck -> attic floor, outer surface,
+    deck underside).
+
+    Each layer's node sits at its centre and reaches its surfaces through half its resistance; the films act
+    at the massless surfaces (a layer lumped at its centre: Incropera & DeWitt, finite-difference nodes,
+    chapter 4), so the path from outdoor air to attic air crosses the whole of both layers."""
+    area = planes[p, _AREA]
+    cos_tilt = planes[p, _COS_TILT]
+    t_cov = x[p]
+    t_deck = x[n_p + p]
+    t_out, t_sky_k = u[_U_T_OUT], u[_U_T_SKY_K]
     k_out = t_out + KELVIN
     k_out4 = k_out * k_out * k_out * k_out
     k_sky4 = t_sky_k * t_sky_k * t_sky_k * t_sky_k
-    k_ct = t_ct + KELVIN
-    k_ct4 = k_ct * k_ct * k_ct * k_ct
-    in_lower, in_upper, out_lower = air[_IN_LOWER], air[_IN_UPPER], air[_OUT_LOWER]
-    house_in, attic_to_house = air[_HOUSE_IN], air[_ATTIC_TO_HOUSE]
-    fan_flow, fan_power = air[_FAN_FLOW], air[_FAN_POWER]
-    absorptance, emittance, roughness = prm[_ABSORPTANCE], prm[_EMITTANCE], prm[_ROUGHNESS]
+    emittance = prm[_EMITTANCE]
     f_up = prm[_F_UP]
-    pressure = prm[_PRESSURE]
-    room_t = prm[_ROOM_T]
-    floor_area = prm[_FLOOR_AREA]
+    f_sky, f_ground = planes[p, _F_SKY], planes[p, _F_GROUND]
+    g_floor = planes[p, _G_DECK_FLOOR] / area
+    # absorbed solar alpha I (common practice)
+    absorbed = prm[_ABSORPTANCE] * u[_N_FORCING_BASE + p]
+    # exterior convection: the sum of Sparrow's forced and Walton's natural term (Walton 1983, NBSIR 83-2655)
+    h_forced = _sparrow(u[_U_WIND], planes[p, _PERIMETER], area, prm[_ROUGHNESS], _WINDWARD)
+    t_so = _outer_surface(t_cov, planes[p, _R_OUTER], absorbed, t_out, k_sky4, k_out4, f_sky, f_ground,
+                          emittance, h_forced, cos_tilt)
+    t_si = _inner_surface(t_deck, planes[p, _R_INNER], cos_tilt, f_up, t_up, t_lo, g_floor, k_ct4)
+    k_so = t_so + KELVIN
+    k_so4 = k_so * k_so * k_so * k_so
+    q_solar = absorbed * area
+    # long-wave to sky and ground, eps sigma A F (T^4 - T_x^4), isotropic view factors
+    # (Duffie & Beckman sect. 2.15 and 3.9), ground at air temperature
+    q_sky = emittance * SIGMA * area * f_sky * (k_sky4 - k_so4)
+    q_ground = emittance * SIGMA * area * f_ground * (k_out4 - k_so4)
+    q_ext = (h_forced + _walton(t_so - t_out, cos_tilt, True)) * area * (t_out - t_so)
+    # conduction between the layers' centres, through half of each (Incropera & DeWitt, plane wall, chapter 3)
+    q_cond = planes[p, _U_COVER_DECK] * area * (t_cov - t_deck)
+    # deck underside -> each air layer by Walton natural convection, area shared by f_up
+    q_up = _walton(t_si - t_up, cos_tilt, False) * f_up * area * (t_si - t_up)
+    q_lo = _walton(t_si - t_lo, cos_tilt, False) * (1 - f_up) * area * (t_si - t_lo)
+    # deck underside <-> attic floor, gray two-surface exchange sigma G (T1^4 - T2^4) (Incropera & DeWitt,
+    # radiation exchange chapter)
+    k_si = t_si + KELVIN
+    q_floor = SIGMA * planes[p, _G_DECK_FLOOR] * (k_si * k_si * k_si * k_si - k_ct4)
+    return q_solar, q_sky, q_ground, q_ext, q_cond, q_up, q_lo, q_floor, t_so, t_si
 
-    # --- roof planes: exterior, conduction, deck underside (per plane), summed for the books and the air
-    b_solar = 0.0
-    b_sky = 0.0
-    b_ground = 0.0
-    b_ext = 0.0
-    deck_up = 0.0
-    deck_lo = 0.0
-    deck_floor = 0.0
-    t_deck_mean = 0.0
-    for p in range(n_p):
-        area = planes[p, _AREA]
-        cos_tilt = planes[p, _COS_TILT]
-        t_cov = x[p]
-        t_deck = x[n_p + p]
-        k_cov = t_cov + KELVIN
-        k_cov4 = k_cov * k_cov * k_cov * k_cov
-        # absorbed solar alpha I A (common practice)
-        q_solar = absorptance * u[_N_FORCING_BASE + p] * area
-        # long-wave to sky and ground, eps sigma A F (T^4 - T_x^4), isotropic view factors
-        # (Duffie & Beckman sect. 2.15 and 3.9), ground at air temperature
-        q_sky = emittance * SIGMA * area * planes[p, _F_SKY] * (k_sky4 - k_cov4)
-        q_ground = emittance * SIGMA * area * planes[p, _F_GROUND] * (k_out4 - k_cov4)
-        # exterior convection: sum of Sparrow's forced and Walton's natural term
-        # (Walton 1983, NBSIR 83-2655, from memory)
-        h_ext = (_sparrow(wind, planes[p, _PERIMETER], area, roughness)
-                 + _walton(t_cov - t_out, cos_tilt, True))
-        q_ext = h_ext * area * (t_out - t_cov)
-        # conduction cover -> deck through half of each layer (Incropera & DeWitt, plane wall, chapter 3)
-        q_cond = planes[p, _U_COVER_DECK] * area * (t_cov - t_deck)
-        # deck underside -> each air layer by Walton natural convection, area shared by f_up
-        q_deck_up = _walton(t_deck - t_up, cos_tilt, False) * f_up * area * (t_deck - t_up)
-        q_deck_lo = _walton(t_deck - t_lo, cos_tilt, False) * (1 - f_up) * area * (t_deck - t_lo)
-        # deck <-> attic floor, gray two-surface exchange sigma G (T1^4 - T2^4) (Incropera & DeWitt,
-        # radiation exchange chapter)
-        k_deck = t_deck + KELVIN
-        q_deck_floor = SIGMA * planes[p, _G_DECK_FLOOR] * (k_deck * k_deck * k_deck * k_deck - k_ct4)
-        out[p] = (q_solar + q_sky + q_ground + q_ext - q_cond) / planes[p, _C_COVER]
-        out[n_p + p] = (q_cond - q_deck_up - q_deck_lo - q_deck_floor) / planes[p, _C_DECK]
-        b_solar += q_solar
-        b_sky += q_sky
-        b_ground += q_ground
-        b_ext += q_ext
-        deck_up += q_deck_up
-        deck_lo += q_deck_lo
-        deck_floor += q_deck_floor
-        t_deck_mean += planes[p, _DECK_SHARE] * t_deck
 
-    # --- framing and attic floor to the air, Walton natural convection (vertical framing, floor facing up)
-    a_fr = prm[_FRAMING_AREA]
-    q_fr_up = _walton(t_fr - t_up, 0.0, True) * f_up * a_fr * (t_fr - t_up)
-    q_fr_lo = _walton(t_fr - t_lo, 0.0, True) * (1 - f_up) * a_fr * (t_fr - t_lo)
-    q_ceiling_air = _walton(t_ct - t_lo, 1.0, True) * floor_area * (t_ct - t_lo)
+@numba.njit(cache=True, **_JIT)
+def _mass_flows(t_lo, t_up, u, air):
+    """Mass flows [kg/s] of the held volume flows, each at the present density of the air it carries
+    (ideal gas at the present station pressure): (outdoor air into the lower layer, into the upper layer,
+    lower-layer air out to outdoors, room air into the lower layer, lower-layer air into the house). With
+    ``fan_makeup`` the fan's exhaust of upper-layer air is made up by outdoor air entering low."""
+    p = u[_U_PRESSURE]
+    rho_out = _air_density(u[_U_T_OUT], p)
+    rho_lo = _air_density(t_lo, p)
+    m_fan = air[_FAN_MAKEUP] * _air_density(t_up, p) * air[_FAN_FLOW]
+    return (rho_out * air[_IN_LOWER] + m_fan, rho_out * air[_IN_UPPER], rho_lo * air[_OUT_LOWER],
+            _air_density(u[_U_T_ROOM], p) * air[_HOUSE_IN], rho_lo * air[_ATTIC_TO_HOUSE])
 
-    # --- air paths: c_p m (T_in - T_layer) for the air entering each layer (enthalpy flow, common practice)
-    vent_lo = CP_AIR * (in_lower * (t_out - t_lo) + house_in * (room_t - t_lo))
+
+@numba.njit(cache=True, **_JIT)
+def _air_paths(t_lo, t_up, u, fan, air, prm, layers):
+    """Enthalpy flows of the air paths into each layer and between them [W]: (ventilation into the lower
+    layer, into the upper layer, lower -> upper exchange)."""
+    t_out = u[_U_T_OUT]
+    in_lower, in_upper, out_lower, house_in, attic_to_house = _mass_flows(t_lo, t_up, u, air)
+    # c_p m (T_in - T_layer) for the air entering each layer (enthalpy flow, common practice)
+    vent_lo = CP_AIR * (in_lower * (t_out - t_lo) + house_in * (u[_U_T_ROOM] - t_lo))
     vent_up = CP_AIR * in_upper * (t_out - t_up)
     q_mix = 0.0
-    if ints[_LAYERS] == 2:
+    if layers == 2:
+        # the net flow from the lower to the upper layer carries the lower layer's enthalpy up (or the
+        # upper's down)
         f_lu = in_lower + house_in - out_lower - attic_to_house
         vent_up = vent_up + CP_AIR * max(f_lu, 0.0) * (t_lo - t_up)
         vent_lo = vent_lo + CP_AIR * max(-f_lu, 0.0) * (t_up - t_lo)
@@ -431,62 +497,41 @@ def rhs(x, u, fan, air, prm, planes, ints, heat, out):
         unstable = _softplus_01(t_lo - t_up)
         a_i = prm[_INTERFACE_AREA]
         q_b = 0.055 * a_i * math.sqrt(GRAVITY * unstable / (0.5 * (t_lo + t_up) + KELVIN) * math.sqrt(a_i))
-        q_mix_flow = prm[_LAYER_MIXING] + prm[_FAN_MIXING] * fan * fan_flow + q_b
-        q_mix = _air_density(t_lo, pressure) * CP_AIR * q_mix_flow * (t_lo - t_up)
+        # a stable base rate, the fan's stirring and the overturning
+        q_mix_flow = prm[_LAYER_MIXING] + prm[_FAN_MIXING] * fan * air[_FAN_FLOW] + q_b
+        q_mix = _air_density(t_lo, u[_U_PRESSURE]) * CP_AIR * q_mix_flow * (t_lo - t_up)
+    return vent_lo, vent_up, q_mix
 
-    # --- house-air books: sensible c_p m dT and latent h_fg m dW (ASHRAE Handbook Fundamentals,
-    # psychrometrics chapter)
-    q_house_s = CP_AIR * (house_in * (t_out - room_t) + attic_to_house * (t_lo - room_t))
-    w_out = _humidity_ratio(t_dew, pressure)
-    q_house_l = H_FG * (house_in + attic_to_house) * (w_out - prm[_ROOM_W])
-    # --- ceiling: insulation R-value, room film (plane-wall conduction, Incropera & DeWitt chapter 3)
-    q_insulation = floor_area * (t_ct - t_gyp) / prm[_R_INSULATION]
-    q_room = floor_area * (t_gyp - room_t) / prm[_R_ROOM]
 
-    q_triac = fan * prm[_TRIAC_LOSS]
-    if i_enc >= 0:
-        t_enc = x[i_enc]
-        q_enc_air = prm[_ENCLOSURE_G] * (t_enc - t_lo)
-    else:
-        t_enc = t_lo
-        q_enc_air = 0.0
+@numba.njit(cache=True, **_JIT)
+def _house_air(t_lo, t_up, u, air, prm):
+    """Loads on the rooms of air exchanged through the ceiling [W]: (sensible c_p m dT, latent h_fg m dW)
+    (ASHRAE Handbook Fundamentals, psychrometrics chapter)."""
+    room_t, pressure = u[_U_T_ROOM], u[_U_PRESSURE]
+    _, _, _, house_in, attic_to_house = _mass_flows(t_lo, t_up, u, air)
+    q_s = CP_AIR * (house_in * (u[_U_T_OUT] - room_t) + attic_to_house * (t_lo - room_t))
+    w_room = _humidity_ratio_from_rh(room_t, prm[_ROOM_RH], pressure)
+    q_l = H_FG * (house_in + attic_to_house) * (_humidity_ratio(u[_U_T_DEW], pressure) - w_room)
+    return q_s, q_l
 
-    # --- the sensor: local conditions of its placement (atticsim.network.placement; speeds and mixing
-    # weights are engineering assumptions, common practice, no source)
-    place = ints[_PLACEMENT]
-    fan_on = fan > 0
-    g_contact = 0.0
-    t_contact = 0.0
-    if place == 0:  # ridge
-        t_air = t_up
-        speed = 0.5 if fan_on else STILL_ATTIC_SPEED
-        t_rad = t_deck_mean
-    elif place == 1:  # mid
-        t_air = 0.5 * (t_up + t_lo)
-        speed = 0.3 if fan_on else STILL_ATTIC_SPEED
-        t_rad = 0.5 * (t_deck_mean + t_ct)
-    elif place == 2:  # exhaust: the fan's face velocity while it runs
-        face = fan_flow / prm[_FAN_AREA]
-        t_air = t_up
-        speed = max(face, STILL_ATTIC_SPEED) if fan_on else STILL_ATTIC_SPEED
-        t_rad = t_deck_mean
-    elif place == 3:  # intake: outdoor share phi = min(1, v_in / 1 m/s)
-        intake_flow = in_lower / _air_density(t_out, pressure)
-        v_in = intake_flow / prm[_INTAKE_AREA]
-        phi = min(1.0, v_in / INTAKE_FULL_SPEED)
-        t_air = t_lo + phi * (t_out - t_lo)
-        speed = max(0.5 * v_in, STILL_ATTIC_SPEED)
-        t_rad = 0.5 * (t_deck_mean + t_ct)
-    elif place == 4:  # deck: taped to the deck underside
-        t_air = t_up
-        speed = 0.3 if fan_on else STILL_ATTIC_SPEED
-        t_rad = t_ct
-        t_contact = t_deck_mean
-        g_contact = prm[_CONTACT_G]
-    else:  # board: inside the control box
-        t_air = t_enc
-        speed = 0.05
-        t_rad = t_enc
+
+@numba.njit(cache=True, **_JIT)
+def _local_at(x, u, fan, air, prm, ints, t_up, t_lo, t_deck_mean, t_ct, t_enc):
+    """The sensor's local conditions (t_air, speed, t_rad, t_contact, g_contact) of its placement (speeds and
+    mixing weights are engineering assumptions, common practice, no source)."""
+    # outdoor air entering the lower layer, at outdoor density
+    intake_flow = _mass_flows(t_lo, t_up, u, air)[0] / _air_density(u[_U_T_OUT], u[_U_PRESSURE])
+    return _local(ints[_PLACEMENT], t_up, t_lo, t_deck_mean, t_ct, u[0], t_enc, fan > 0, air[_FAN_FLOW],
+                  prm[_FAN_AREA], intake_flow, prm[_INTAKE_AREA], prm[_CONTACT_G])
+
+
+@numba.njit(cache=True, **_JIT)
+def _sensor(x, u, fan, air, prm, ints, heat, t_up, t_lo, t_deck_mean, t_ct, t_enc):
+    """The sensor: (heat from its surroundings [W], self-heating [W], local air [degC], local speed [m/s])."""
+    t_s = x[ints[_I_SENSOR]]
+    pressure = u[_U_PRESSURE]
+    t_air, speed, t_rad, t_contact, g_contact = _local_at(x, u, fan, air, prm, ints, t_up, t_lo, t_deck_mean,
+                                                          t_ct, t_enc)
     shape = ints[_SHAPE]
     if shape < 0:
         g_air = prm[_SENSOR_G]
@@ -501,36 +546,195 @@ def rhs(x, u, fan, air, prm, planes, ints, heat, out):
         g_rad = prm[_BODY_EMITTANCE] * SIGMA * prm[_BODY_AREA] * (k_s * k_s + k_r * k_r) * (k_s + k_r)
     # lumped capacitance (Incropera & DeWitt section 5.1)
     q_sensor = g_air * (t_air - t_s) + g_rad * (t_rad - t_s) + g_contact * (t_contact - t_s)
-    p_self = _self_heating(t_s, fan, prm, heat)
-    p_fan = fan * fan_power
+    return q_sensor, _self_heating(t_s, fan, prm, heat), t_air, speed
 
-    # --- node balances (as AtticNetwork.derivatives)
-    lower = deck_lo + q_fr_lo + q_ceiling_air + vent_lo - q_mix + q_enc_air
-    upper = deck_up + q_fr_up + vent_up + q_mix
+
+@numba.njit(cache=True, **_JIT)
+def _interior(x, u, fan, prm, ints, t_up, t_lo):
+    """Framing, attic floor, ceiling and control box flows [W]: (framing -> upper air, framing -> lower air,
+    attic floor -> lower air, insulation top -> gypsum, ceiling gain to the rooms, triac heat, control box
+    -> lower air, control box air temperature [degC])."""
+    t_fr, t_ct, t_gyp = x[ints[_I_FRAMING]], x[ints[_I_CEILING_TOP]], x[ints[_I_GYPSUM]]
+    f_up, a_fr, floor_area = prm[_F_UP], prm[_FRAMING_AREA], prm[_FLOOR_AREA]
+    # framing and attic floor to the air, Walton natural convection (vertical framing, floor facing up)
+    q_fr_up = _walton(t_fr - t_up, 0.0, True) * f_up * a_fr * (t_fr - t_up)
+    q_fr_lo = _walton(t_fr - t_lo, 0.0, True) * (1 - f_up) * a_fr * (t_fr - t_lo)
+    q_ceiling_air = _walton(t_ct - t_lo, 1.0, True) * floor_area * (t_ct - t_lo)
+    # ceiling: the insulation top (a surface node) to the gypsum's centre through the insulation and half the
+    # gypsum, the gypsum's centre to the rooms through its other half and the room film (plane-wall conduction,
+    # Incropera & DeWitt chapter 3)
+    q_insulation = floor_area * (t_ct - t_gyp) / prm[_R_INSULATION]
+    q_room = floor_area * (t_gyp - u[_U_T_ROOM]) / prm[_R_ROOM]
+    # the triac's conduction loss heats the control box while the fan runs; the box loses to the lower air
+    q_triac = fan * prm[_TRIAC_LOSS]
+    i_enc = ints[_I_ENCLOSURE]
+    t_enc = x[i_enc] if i_enc >= 0 else t_lo
+    q_enc_air = prm[_ENCLOSURE_G] * (t_enc - t_lo) if i_enc >= 0 else 0.0
+    return q_fr_up, q_fr_lo, q_ceiling_air, q_insulation, q_room, q_triac, q_enc_air, t_enc
+
+
+@numba.njit(cache=True, _nrt=False, **_JIT)
+def _network(x, u, fan, air, prm, planes, ints, heat, plane_out, stride, surfaces):
+    """Every heat flow of the network at one state [W], in the order of :data:`FLOWS`; roof plane p's net
+    gains of its cover and deck go to ``plane_out[p]`` and ``plane_out[stride + p]`` and, with ``surfaces``,
+    its outer surface and deck underside temperatures to ``plane_out[2 stride + p]`` and
+    ``plane_out[3 stride + p]``. The network's one source of heat flows: :func:`rhs` and :func:`flows` both
+    read it."""
+    n_p = ints[_N_PLANES]
+    t_lo, t_up = x[ints[_I_LOWER]], x[ints[_I_UPPER]]
+    t_ct = x[ints[_I_CEILING_TOP]]
+    k_ct = t_ct + KELVIN
+    k_ct4 = k_ct * k_ct * k_ct * k_ct
+    solar = sky = ground = ext = cond = deck_up = deck_lo = deck_floor = t_deck_mean = 0.0
+    for p in range(n_p):
+        q_sol, q_sky, q_gr, q_ext, q_cond, q_up, q_lo, q_fl, t_so, t_si = _plane(p, x, u, planes, prm, n_p, t_up,
+                                                                                 t_lo, k_ct4)
+        plane_out[p] = q_sol + q_sky + q_gr + q_ext - q_cond
+        plane_out[stride + p] = q_cond - q_up - q_lo - q_fl
+        if surfaces:
+            plane_out[2 * stride + p] = t_so
+            plane_out[3 * stride + p] = t_si
+        solar += q_sol
+        sky += q_sky
+        ground += q_gr
+        ext += q_ext
+        cond += q_cond
+        deck_up += q_up
+        deck_lo += q_lo
+        deck_floor += q_fl
+        t_deck_mean += planes[p, _DECK_SHARE] * t_si
+    fr_up, fr_lo, ceiling_air, insulation, room, triac, enc_air, t_enc = _interior(x, u, fan, prm, ints, t_up, t_lo)
+    vent_lo, vent_up, mix = _air_paths(t_lo, t_up, u, fan, air, prm, ints[_LAYERS])
+    house_s, house_l = _house_air(t_lo, t_up, u, air, prm)
+    q_s, p_self, t_air, speed = _sensor(x, u, fan, air, prm, ints, heat, t_up, t_lo, t_deck_mean, t_ct, t_enc)
+    return (solar, sky, ground, ext, cond, deck_up, deck_lo, deck_floor, fr_up, fr_lo, ceiling_air, vent_lo,
+            vent_up, vent_lo + vent_up, mix, insulation, room, q_s, fan * air[_FAN_POWER], house_s, house_l,
+            p_self, triac, enc_air, t_air, speed)
+
+
+@numba.njit(cache=True, _nrt=False, **_JIT)
+def rhs(x, u, fan, air, prm, planes, ints, heat, out):
+    """Node temperature derivatives [K/s] then the books' rates [W] at one state, written into ``out``.
+
+    Parameters
+    ----------
+    x : float64[n_nodes]
+        Node temperatures [degC] in the network's node order.
+    u : float64[6 + P]
+        Forcing: :data:`FORCING_BASE` (temp_out [degC], temp_sky_k [K], wind_speed [m/s], temp_dew
+        [degC], pressure [Pa], temp_room [degC]), then the plane-of-array irradiance of each plane [W/m2].
+    fan : float
+        Fan state, 0.0 off or 1.0 on.
+    air : float64[8]
+        Held air flows in :data:`AIR_ORDER` (:func:`air_vector`).
+    prm, planes, ints, heat
+        The network's :class:`Packed` arrays.
+    out : float64[n_nodes + len(BOOKS)]
+        Filled with each node's balance over its capacity (lumped capacitance), then the books' rates.
+    """
+    n_p = ints[_N_PLANES]
+    n = ints[_N_NODES]
+    q = _network(x, u, fan, air, prm, planes, ints, heat, out, n_p, False)
+    for p in range(n_p):
+        out[p] = out[p] / planes[p, _C_COVER]
+        out[n_p + p] = out[n_p + p] / planes[p, _C_DECK]
+    lower = (q[_Q_DECK_LOWER] + q[_Q_FRAMING_LOWER] + q[_Q_CEILING_AIR] + q[_Q_VENT_LOWER] - q[_Q_LAYER_EXCHANGE]
+             + q[_Q_ENCLOSURE_AIR])
+    upper = q[_Q_DECK_UPPER] + q[_Q_FRAMING_UPPER] + q[_Q_VENT_UPPER] + q[_Q_LAYER_EXCHANGE]
     c_air = prm[_C_AIR]
     if ints[_LAYERS] == 2:
         w_up = prm[_W_UP]
-        out[i_lo] = lower / (c_air * (1.0 - w_up))
-        out[i_up] = upper / (c_air * w_up)
+        out[ints[_I_LOWER]] = lower / (c_air * (1.0 - w_up))
+        out[ints[_I_UPPER]] = upper / (c_air * w_up)
     else:
-        out[i_lo] = (lower + upper) / c_air
-    out[ints[_I_FRAMING]] = -(q_fr_up + q_fr_lo) / prm[_C_FRAMING]
-    out[ints[_I_CEILING_TOP]] = (deck_floor - q_ceiling_air - q_insulation) / prm[_C_CEILING_TOP]
-    out[ints[_I_GYPSUM]] = (q_insulation - q_room) / prm[_C_GYPSUM]
+        out[ints[_I_LOWER]] = (lower + upper) / c_air
+    out[ints[_I_FRAMING]] = -(q[_Q_FRAMING_UPPER] + q[_Q_FRAMING_LOWER]) / prm[_C_FRAMING]
+    out[ints[_I_CEILING_TOP]] = (q[_Q_DECK_FLOOR] - q[_Q_CEILING_AIR] - q[_Q_INSULATION]) / prm[_C_CEILING_TOP]
+    out[ints[_I_GYPSUM]] = (q[_Q_INSULATION] - q[_Q_CEILING_GAIN]) / prm[_C_GYPSUM]
+    i_enc = ints[_I_ENCLOSURE]
     if i_enc >= 0:
-        out[i_enc] = (q_triac - q_enc_air) / prm[_C_ENCLOSURE]
-    out[n - 1] = (q_sensor + p_self) / prm[_SENSOR_C]
-    # --- books, in the order of BOOKS
-    out[n] = b_solar
-    out[n + 1] = b_sky
-    out[n + 2] = b_ground
-    out[n + 3] = b_ext
-    out[n + 4] = vent_lo + vent_up
-    out[n + 5] = q_room
-    out[n + 6] = q_triac
-    out[n + 7] = p_fan
-    out[n + 8] = q_house_s
-    out[n + 9] = q_house_l
+        out[i_enc] = (q[_Q_TRIAC] - q[_Q_ENCLOSURE_AIR]) / prm[_C_ENCLOSURE]
+    out[n - 1] = (q[_Q_SENSOR] + q[_Q_SELF_HEATING]) / prm[_SENSOR_C]
+    for k in range(_N_BOOKS):
+        out[n + k] = q[_BOOK_FLOWS[k]]
+
+
+@numba.njit(cache=True, _nrt=False, **_JIT)
+def flows(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
+    """The named flows of :data:`FLOWS` at one state into ``q`` [W; the local air in degC, its speed in m/s],
+    and each roof plane's :data:`PLANE_FLOWS` into ``q_planes`` (float64[4 P]: the covers' and the decks' net
+    gains [W], the outer surfaces' and the deck undersides' temperatures [degC]). Arguments as :func:`rhs`."""
+    values = _network(x, u, fan, air, prm, planes, ints, heat, q_planes, ints[_N_PLANES], True)
+    for j in range(N_FLOWS):
+        q[j] = values[j]
+
+
+@numba.njit(cache=True, **_JIT)
+def flows_columns(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
+    """:func:`flows` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (8, m), into q
+    (N_FLOWS, m) and q_planes (4 P, m)."""
+    qj = np.empty(N_FLOWS)
+    pj = np.empty(q_planes.shape[0])
+    for j in range(x.shape[1]):
+        flows(x[:, j].copy(), u[:, j].copy(), fan[j], air[:, j].copy(), prm, planes, ints, heat, qj, pj)
+        q[:, j] = qj
+        q_planes[:, j] = pj
+
+
+@numba.njit(cache=True, **_JIT)
+def local_air_columns(x, u, fan, air, prm, planes, ints, out):
+    """The sensor's local air temperature [degC] for each column j of x (n_nodes, m), u, fan and air (as
+    :func:`flows_columns`), into out (m,): what :func:`flows` gives as ``sensor_local_air``, alone."""
+    n_p = ints[_N_PLANES]
+    for j in range(x.shape[1]):
+        t_lo, t_up = x[ints[_I_LOWER], j], x[ints[_I_UPPER], j]
+        k_ct = x[ints[_I_CEILING_TOP], j] + KELVIN
+        k_ct4 = k_ct * k_ct * k_ct * k_ct
+        t_deck_mean = 0.0
+        for p in range(n_p):
+            t_si = _inner_surface(x[n_p + p, j], planes[p, _R_INNER], planes[p, _COS_TILT], prm[_F_UP], t_up, t_lo,
+                                  planes[p, _G_DECK_FLOOR] / planes[p, _AREA], k_ct4)
+            t_deck_mean += planes[p, _DECK_SHARE] * t_si
+        i_enc = ints[_I_ENCLOSURE]
+        t_enc = x[i_enc, j] if i_enc >= 0 else t_lo
+        out[j] = _local_at(x[:, j], u[:, j], fan[j], air[:, j], prm, ints, t_up, t_lo, t_deck_mean,
+                           x[ints[_I_CEILING_TOP], j], t_enc)[0]
+
+
+@numba.njit(cache=True, **_JIT)
+def deck_underside_max(x, prm, planes, ints, order):
+    """The highest deck underside temperature [degC] over the columns of x (n_nodes, m), any plane.
+
+    The underside lies between its sheathing's centre and the attic's air layers and floor (its balance is a
+    weighted mean of them with positive weights), so it never exceeds the highest of those; ``order`` lists
+    the columns by that bound, highest first, and the search stops where the bound falls below the best
+    underside found (exact, and it solves only a few columns)."""
+    n_p = ints[_N_PLANES]
+    best = -math.inf
+    for j in order:
+        t_lo, t_up, t_ct = x[ints[_I_LOWER], j], x[ints[_I_UPPER], j], x[ints[_I_CEILING_TOP], j]
+        bound = max(t_lo, t_up, t_ct)
+        for p in range(n_p):
+            bound = max(bound, x[n_p + p, j])
+        if bound < best:
+            break
+        k_ct = t_ct + KELVIN
+        k_ct4 = k_ct * k_ct * k_ct * k_ct
+        for p in range(n_p):
+            t_si = _inner_surface(x[n_p + p, j], planes[p, _R_INNER], planes[p, _COS_TILT], prm[_F_UP], t_up, t_lo,
+                                  planes[p, _G_DECK_FLOOR] / planes[p, _AREA], k_ct4)
+            best = max(best, t_si)
+    return best
+
+
+@numba.njit(cache=True, **_JIT)
+def rhs_columns(x, u, fan, air, prm, planes, ints, heat, out):
+    """:func:`rhs` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (8, m), into out
+    (n_out, m)."""
+    oj = np.empty(out.shape[0])
+    for j in range(x.shape[1]):
+        rhs(x[:, j].copy(), u[:, j].copy(), fan[j], air[:, j].copy(), prm, planes, ints, heat, oj)
+        out[:, j] = oj
 
 
 jitcache.restore()

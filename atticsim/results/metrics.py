@@ -15,7 +15,8 @@ import pandas as pd
 
 from atticsim.constants import KELVIN
 from atticsim.airflow.model import stack_states
-from atticsim.network.model import ATTIC_BOOKS, BOOKS
+from atticsim.network.kernel import AIR_ORDER
+from atticsim.network.model import ATTIC_BOOKS, BOOKS, FORCING_BASE
 
 J_PER_KWH = 3.6e6
 
@@ -100,9 +101,9 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
     attic_air = net.mean_air(temps)
     if summary_only:
         # what the summary reads: the outdoor air, the flows the sensor's placement and the airflow figures use
-        f = forcing.sample(run.t, channels=1)
-        air = stack_states(run.air, names=("fan_flow", "in_lower", "outdoor_flow"), runs=run.air_runs)
-        sensor_local_air = net.sensor_local(temps, f, run.fan, SimpleNamespace(**air)).t_air
+        f = forcing.sample(run.t)
+        air = stack_states(run.air, names=AIR_ORDER + ("outdoor_flow",), runs=run.air_runs)
+        sensor_local_air = net.sensor_local_air(temps, f, run.fan, SimpleNamespace(**air))
         ts = pd.DataFrame({"attic_air_c": attic_air, "fan_on": run.fan.astype(int)},
                           index=pd.DatetimeIndex(times, name="time"))
     else:
@@ -137,7 +138,7 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "attic_air_mean_c": float(np.mean(attic_air)),
         "attic_upper_air_max_c": float(np.max(temps[net.i_upper])),
         "outdoor_air_max_c": float(np.max(f[0])),
-        "deck_max_c": float(np.max(temps[net.n_planes:2 * net.n_planes])),
+        "deck_max_c": net.deck_underside_max(temps),
         "sensor_max_c": float(np.max(temps[idx["sensor"]])),
         "ceiling_heat_gain_kwh": books["ceiling_gain"] / J_PER_KWH,
         "ceiling_heat_gain_no_fan_kwh": books_nf["ceiling_gain"] / J_PER_KWH if books_nf else None,
@@ -170,12 +171,15 @@ def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
 
     cols = {"outdoor_air_c": f[0], "sky_c": f[1] - KELVIN, "wind_speed_m_s": f[2]}
     for i, p in enumerate(net.plane_names):
-        cols[f"poa_{p}_w_m2"] = f[4 + i]
+        cols[f"poa_{p}_w_m2"] = f[len(FORCING_BASE) + i]
     cols["attic_air_c"] = attic_air
     for name, i in idx.items():
         if name != "air":
             cols[name + "_c"] = temps[i]
-    cols["sensor_local_air_c"] = q["sensor_local_air"] * np.ones(run.t.size)
+    for i, p in enumerate(net.plane_names):
+        cols[f"roof_surface_{p}_c"] = q["roof_surface"][i]
+        cols[f"deck_underside_{p}_c"] = q["deck_underside"][i]
+    cols["sensor_local_air_c"] = q["sensor_local_air"]
     cols["fan_on"] = run.fan.astype(int)
     cols["outdoor_air_flow_m3_s"] = air["outdoor_flow"]
     cols["fan_flow_m3_s"] = air["fan_flow"]
@@ -185,13 +189,13 @@ def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
     for j, name in enumerate(net.airflow.path_names):
         cols[f"flow_{name.replace(' ', '_')}_m3_s"] = air["path_flows"][:, j]
     cols["airflow_mass_residual"] = air["residual"]
-    cols["solar_absorbed_w"] = q["solar"].sum(axis=0)
-    cols["roof_longwave_w"] = (q["sky"] + q["ground"]).sum(axis=0)
-    cols["roof_convection_w"] = q["exterior_convection"].sum(axis=0)
+    cols["solar_absorbed_w"] = q["solar"]
+    cols["roof_longwave_w"] = q["sky"] + q["ground"]
+    cols["roof_convection_w"] = q["exterior_convection"]
     cols["ventilation_heat_w"] = q["ventilation"]
     cols["ceiling_heat_gain_w"] = q["ceiling_gain"]
-    cols["fan_power_w"] = q["fan_electric"] * np.ones(run.t.size)
-    cols["house_air_load_w"] = (q["house_air_sensible"] + q["house_air_latent"]) * np.ones(run.t.size)
+    cols["fan_power_w"] = q["fan_electric"]
+    cols["house_air_load_w"] = q["house_air_sensible"] + q["house_air_latent"]
     return pd.DataFrame(cols, index=pd.DatetimeIndex(times, name="time"))
 
 

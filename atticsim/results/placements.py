@@ -9,19 +9,8 @@ import pandas as pd
 
 from atticsim.network.placement import PLACEMENTS
 
-#: Plain-language reasons a technician understands, by placement.
-WHY = {
-    "intake": "it sits in the stream of outdoor air the fan pulls in: as soon as the fan starts it reads "
-              "outdoor air, drops below the switch-off point and stops the fan; the attic heats again and "
-              "the fan restarts",
-    "exhaust": "it sits in the fan's fast air stream, so it follows the attic air closely while the fan runs",
-    "deck": "it touches the sheathing, which runs hotter than the air in sun and colder at night, so the "
-            "fan runs longer by day",
-    "board": "the triac's own heat warms the control box while the fan runs, so the sensor reads high and "
-             "holds the fan on",
-    "ridge": "it reads the hottest air near the ridge",
-    "mid": "it reads the mixed mid-attic air",
-}
+#: Plain-language reasons a technician understands, by placement (from the placement records).
+WHY = {name: p.why for name, p in PLACEMENTS.items()}
 
 
 def _one(args):
