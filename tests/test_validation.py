@@ -188,18 +188,3 @@ def test_validate_page_option(tmp_path, monkeypatch):
     res = CliRunner().invoke(cli, ["validate", "--page", str(tmp_path / "nowhere" / "v.md")])
     assert res.exit_code == 2 and "does not exist" in res.output
 
-
-def test_the_known_miss_of_the_hand_worked_network_is_the_half_layers():
-    # The page explains H7-H11 by the roof's and the gypsum's half layers: the hand-worked network with half of
-    # each layer in the path must then reproduce atticsim's steady state (no sun and constant sun).
-    from atticsim.validation.hand_network import steady_state
-    from atticsim.validation.heat_transfer import _constant_run
-    from atticsim.validation.houses import demo_house
-
-    sc = demo_house({"attic": {"air_layers": 1}, "vents": {"passive_ach": 0.0}, "fan": {"enabled": False}})
-    for t_out, poa in ((40.0, 0.0), (35.0, 800.0)):
-        temps, flux, _ = _constant_run(t_out, poa)
-        half = steady_state(sc, t_out, 3.0, [poa, poa], layer_share=0.5)
-        assert temps["air"] == pytest.approx(half["air"], abs=2e-3)
-        assert temps["deck_south"] == pytest.approx(half["deck"][0], abs=2e-3)
-        assert flux == pytest.approx(half["ceiling_w_m2"], rel=2e-4)

@@ -1,125 +1,133 @@
-"""The constant-weather house worked by hand: the attic's heat paths written out from the model's documented
-structure with the published correlations, solved for the steady state, independently of atticsim's network.
+"""The network at steady state under constant weather against the resistance network worked by hand.
 
-Paths (one well-mixed attic air node; sealed attic: no ventilation, fan off):
+A house of our own (the demo bungalow with one well-mixed air node, no vents, the fan stopped) under constant
+weather with the sky at air temperature: heat flows from the outdoor air through the exterior film, the whole
+covering and sheathing, the attic's inside films (in parallel with the deck's radiation to the attic floor)
+and the whole ceiling to the rooms. The hand calculation is the handbook's series-parallel resistance sum
+(ASHRAE Handbook Fundamentals, heat transmission chapter: U = 1 / sum R, films and layers in series,
+parallel paths added as conductances), its film coefficients taken from the same correlations at the surface
+temperatures the sum itself gives (iterated, as a design calculation iterates its film temperatures); with
+constant sun on the roof the outer surface balance is the sol-air form (ASHRAE Handbook Fundamentals,
+sol-air temperature) with the inward path as one more resistance.
 
-- outdoors -> each roof plane's outer surface: absorbed sun alpha I; long-wave eps sigma (F_sky (T_sky^4 - T^4)
-  + F_ground (T_out^4 - T^4)), F_sky = (1 + cos b)/2, F_ground = (1 - cos b)/2 (Duffie & Beckman, sect. 2.15 and
-  3.9); convection h = h_forced + h_natural, Sparrow's forced term 2.537 W_f R_f sqrt(P V / A) with W_f 0.75
-  (wind direction not modelled) and R_f 1.67 for granulated shingles, Walton's natural term (Walton 1983,
-  NBSIR 83-2655);
-- outer surface -> inner surface (the deck's underside): conduction through the WHOLE covering and sheathing,
-  R = t_cover/k_cover + t_sheathing/k_sheathing (a layer lumped at its centre reaches each of its surfaces
-  through half its resistance, so the surfaces are a whole layer apart);
-- deck underside -> attic air: Walton's natural convection (surface facing down); deck underside -> top of the
-  insulation: gray two-surface exchange sigma G (T1^4 - T2^4), G = 1/((1-e1)/(e1 A1) + 1/A1 + (1-e2)/(e2 A2)),
-  each plane seeing its share of the floor (Incropera & DeWitt, radiation exchange chapter);
-- top of the insulation -> attic air: Walton (surface facing up); top of the insulation -> rooms: the
-  insulation's R-value, the WHOLE gypsum board and the room-side film in series;
-- framing: no net heat in the steady state (it exchanges only with the attic air).
+Used by the validation cases (``atticsim validate``) and by ``tests/test_network_steady.py``.
 """
 
 from __future__ import annotations
 
-import math
-
-SIGMA = 5.670374419e-8  # W/(m2 K4), Stefan-Boltzmann constant (CODATA 2018)
-KELVIN = 273.15
-#: Sparrow, Ramsey & Mass (1979) texture multiplier of the brick/granulated class (Walton 1983; from memory)
-R_GRANULAR = 1.67
+T_OUT, T_ROOM, WIND, DEW, PRESSURE = 35.0, 24.0, 2.0, 20.0, 101325.0
+DAYS = 20
 
 
-def walton(dt, cos_tilt, facing_up):
-    """Walton's (1983) natural convection coefficient [W/m2K] for surface minus air dt [K]."""
-    c = abs(cos_tilt)
-    unstable = dt > 0.0 if facing_up else dt < 0.0
-    cube = abs(dt) ** (1.0 / 3.0)
-    return 9.482 * cube / (7.238 - c) if unstable else 1.810 * cube / (1.382 + c)
+def quiet_house():
+    """The demo bungalow (fictional) with one well-mixed air node, no ventilation and the fan stopped."""
+    from atticsim.scenario import demo_scenario
+
+    return demo_scenario(["attic.air_layers=1", "vents.passive_ach=0", "fan.enabled=false"])
 
 
-def sparrow(wind, perimeter, area, r_f=R_GRANULAR, w_f=0.75):
-    """Sparrow's forced convection term [W/m2K] as Walton (1983) gives it."""
-    return 2.537 * w_f * r_f * math.sqrt(perimeter * wind / area)
-
-
-def steady_state(scenario, t_out, wind, poa, t_sky=None, layer_share=1.0):
-    """The sealed attic's steady state under constant weather, worked by hand.
-
-    Parameters
-    ----------
-    scenario : Scenario
-        One air layer, no openings, passive air changes 0 (checked).
-    t_out : float
-        Outdoor air [degC] (the ground at the same temperature).
-    wind : float
-        Wind speed [m/s].
-    poa : sequence of float
-        Irradiance on each roof plane [W/m2].
-    t_sky : float, optional
-        Sky temperature [degC]; default the outdoor air.
-    layer_share : float
-        Share of each layer's resistance (the roof's two layers, the gypsum) in the path: 1 for the physics
-        above; 0.5 reproduces a network that leaves half of each layer out (a diagnosis, not a model).
-
-    Returns
-    -------
-    dict
-        ``cover`` and ``deck`` (lists per plane), ``air``, ``floor`` [degC]; ``ceiling_w`` [W] and
-        ``ceiling_w_m2`` [W/m2] into the rooms.
-    """
+def constant_forcing(net, poa, n, step=3600.0):
+    """Forcing of ``n`` samples ``step`` apart: constant weather (sky at air temperature) and constant
+    irradiance ``poa`` [W/m2] on every plane."""
     import numpy as np
-    from scipy.optimize import root
 
-    roof, attic, ceiling = scenario.roof, scenario.attic, scenario.ceiling
-    if attic.air_layers != 1 or scenario.vents.openings or scenario.vents.passive_ach != 0.0 \
-            or scenario.fan.enabled or roof.surface_texture != "granular":
-        raise ValueError("the hand-worked network is a sealed attic with one air layer, no fan, granular roof")
-    planes = roof.planes
-    area = [p.area for p in planes]
-    cos_b = [math.cos(math.radians(p.tilt)) for p in planes]
-    perim = [p.perimeter or 4.0 * math.sqrt(p.area) for p in planes]
-    r_layers = layer_share * sum(layer.prop("thickness") / layer.prop("conductivity")
-                                 for layer in (roof.covering, roof.sheathing))
-    gyp = ceiling.gypsum
-    r_down = ceiling.insulation + layer_share * gyp.prop("thickness") / gyp.prop("conductivity") + ceiling.room_film
-    a_floor = attic.floor_area
-    share = [a_floor * a / sum(area) for a in area]
-    e_f, e_u = attic.floor_emittance, roof.underside_emittance
-    g = [1.0 / ((1 - e_f) / (e_f * s) + 1.0 / s + (1 - e_u) / (e_u * a)) for s, a in zip(share, area)]
-    eps, alpha = roof.emittance, roof.absorptance
-    k_out = t_out + KELVIN
-    k_sky = (t_out if t_sky is None else t_sky) + KELVIN
-    n = len(planes)
+    from atticsim.constants import KELVIN
+    from atticsim.forcing.build import Forcing
+    from atticsim.network.model import FORCING_BASE
 
-    def residuals(x):
-        cov, deck, air, floor = x[:n], x[n:2 * n], x[2 * n], x[2 * n + 1]
-        res = np.empty(2 * n + 2)
-        to_air = to_floor = 0.0
-        for p in range(n):
-            kc = cov[p] + KELVIN
-            f_sky, f_gnd = (1 + cos_b[p]) / 2, (1 - cos_b[p]) / 2
-            h_ext = sparrow(wind, perim[p], area[p]) + walton(cov[p] - t_out, cos_b[p], True)
-            outside = (alpha * poa[p] + eps * SIGMA * (f_sky * (k_sky**4 - kc**4) + f_gnd * (k_out**4 - kc**4))
-                       + h_ext * (t_out - cov[p]))
-            through = (cov[p] - deck[p]) / r_layers
-            q_air = walton(deck[p] - air, cos_b[p], False) * (deck[p] - air) * area[p]
-            q_rad = SIGMA * g[p] * ((deck[p] + KELVIN) ** 4 - (floor + KELVIN) ** 4)
-            res[p] = outside - through
-            res[n + p] = through * area[p] - q_air - q_rad
-            to_air += q_air
-            to_floor += q_rad
-        floor_air = walton(floor - air, 1.0, True) * (floor - air) * a_floor
-        res[2 * n] = to_air + floor_air
-        res[2 * n + 1] = to_floor - floor_air - a_floor * (floor - ceiling.room_temperature) / r_down
-        return res
+    base = {"temp_out": T_OUT, "temp_sky_k": T_OUT + KELVIN, "wind_speed": WIND, "temp_dew": DEW,
+            "pressure": PRESSURE, "temp_room": T_ROOM}
+    rows = [np.full(n, base[c]) for c in FORCING_BASE] + [np.full(n, poa)] * net.n_planes
+    return Forcing(times=None, step=step, values=np.vstack(rows), channels=[], notes=[])
 
-    # a start with every surface a little apart from the air (|dT|^(1/3) has no slope at dT = 0)
-    hot = float(t_out) + alpha * max(poa) / 15.0
-    x0 = np.array([hot + 0.3] * n + [hot] * n + [0.5 * (hot + t_out) - 0.3, 0.5 * (hot + t_out) - 0.6])
-    sol = root(residuals, x0, method="hybr", tol=1e-12)
-    if not sol.success or np.max(np.abs(residuals(sol.x))) > 1e-6:
-        raise RuntimeError(f"the hand-worked network did not converge: {sol.message}")
-    x = sol.x
-    q = a_floor * (x[2 * n + 1] - ceiling.room_temperature) / r_down
-    return {"cover": list(x[:n]), "deck": list(x[n:2 * n]), "air": float(x[2 * n]), "floor": float(x[2 * n + 1]),
-            "ceiling_w": float(q), "ceiling_w_m2": float(q / a_floor)}
+
+def steady_run(net, poa):
+    """The network after DAYS of constant weather (sky at air temperature) and constant irradiance ``poa``
+    [W/m2] on every plane; returns the last state and the flows there."""
+    import numpy as np
+
+    from atticsim.hybrid.compiled import integrate_compiled
+    from atticsim.network.model import BOOKS
+
+    step = 3600.0
+    n = int(DAYS * 86400 / step) + 1
+    forcing = constant_forcing(net, poa, n, step)
+    net.air = net.airflow.solve(T_OUT, T_OUT, WIND, False)
+    y0 = np.concatenate([np.full(net.n_nodes, T_OUT), np.zeros(len(BOOKS))])
+    t_end = (n - 1) * step
+    out = np.arange(0.0, t_end + 1.0, 86400.0)  # daily outputs on one grid from the start
+    run = integrate_compiled(net, forcing, None, 0.0, t_end, y0, False, out)
+    x0, x1 = run.y[:net.n_nodes, -2], run.y[:net.n_nodes, -1]
+    if np.max(np.abs(x1 - x0)) >= 1e-4:
+        raise RuntimeError(f"not steady after {DAYS} days: the last day moved a node {np.max(np.abs(x1 - x0)):.2e} K")
+    q = net.flows(x1[:, None], forcing.values[:, -1:], False)
+    return x1, {k: v[..., 0] for k, v in q.items()}
+
+
+def hand_worked(net, sc, poa):
+    """The steady state by the series-parallel resistance sum, per unit roof or floor area; the film
+    coefficients iterated at the temperatures it gives. Returns outer surface, deck underside, attic air,
+    insulation top temperatures [degC] and the ceiling's heat flow [W]."""
+    from atticsim.constants import KELVIN, SIGMA
+    from atticsim.network.heat_transfer import forced_convection_sparrow, walton_natural
+
+    roof, ceiling = sc.roof, sc.ceiling
+    r_layers = sum(layer.prop("thickness") / layer.prop("conductivity") for layer in (roof.covering, roof.sheathing))
+    r_gyp = ceiling.gypsum.prop("thickness") / ceiling.gypsum.prop("conductivity")
+    r_ceiling = ceiling.insulation + r_gyp + ceiling.room_film            # insulation top -> rooms
+    a_roof, a_floor = float(net.area.sum()), sc.attic.floor_area
+    area, perimeter, cos_t = float(net.area[0, 0]), float(net.perimeter[0, 0]), float(net.cos_tilt[0, 0])
+    g = float(net.g_deck_floor.sum())                                      # gray exchange factor [m2]
+    eps = roof.emittance
+    h_f = forced_convection_sparrow(WIND, perimeter, area, net.roughness)  # Sparrow et al. 1979
+    t_so, t_si, t_air, t_ct = T_OUT + 10, T_OUT + 5, T_OUT, T_OUT - 2
+    for _ in range(60):
+        k_so, k_o, k_si, k_ct = t_so + KELVIN, T_OUT + KELVIN, t_si + KELVIN, t_ct + KELVIN
+        # exterior film: convection (Sparrow + Walton) and long-wave to sky and ground at air temperature,
+        # eps sigma (T^4 - T_o^4) = eps sigma (T^2 + T_o^2)(T + T_o) (T - T_o) exactly
+        h_o = h_f + walton_natural(t_so - T_OUT, cos_t, True) + eps * SIGMA * (k_so**2 + k_o**2) * (k_so + k_o)
+        # inside: deck underside -> air -> floor (convection) in parallel with deck -> floor (radiation)
+        u_conv_deck = walton_natural(t_si - t_air, cos_t, False) * a_roof            # W/K
+        u_conv_floor = walton_natural(t_ct - t_air, 1.0, True) * a_floor             # W/K
+        u_rad = SIGMA * g * (k_si**2 + k_ct**2) * (k_si + k_ct)                        # W/K
+        u_inside = 1.0 / (1.0 / u_conv_deck + 1.0 / u_conv_floor) + u_rad             # W/K, deck -> floor
+        # from the outer surface to the rooms: layers, inside, ceiling in series [K/W]
+        r_in = r_layers / a_roof + 1.0 / u_inside + r_ceiling / a_floor
+        # outer surface: absorbed sun + film from outdoors = flow inwards (sol-air form with the inward path)
+        t_so = (roof.absorptance * poa * a_roof + h_o * a_roof * T_OUT + T_ROOM / r_in) / (
+            h_o * a_roof + 1.0 / r_in)
+        q = (t_so - T_ROOM) / r_in                                                     # W, outer surface -> rooms
+        t_si = t_so - q * r_layers / a_roof
+        t_ct = T_ROOM + q * r_ceiling / a_floor
+        # the air between deck and floor on the convective path
+        q_conv = q - u_rad * (t_si - t_ct)
+        t_air = t_si - q_conv / u_conv_deck
+    return t_so, t_si, t_air, t_ct, q
+
+
+def first_warming_rate(net, sc, poa):
+    """The roof covering's warming rate [K/s] at the instant constant sun ``poa`` [W/m2] comes on, the house
+    uniformly at the outdoor temperature under a sky at that temperature, worked by hand.
+
+    The covering is lumped at its centre, half its resistance r/2 below its massless outer surface. At the
+    first instant every node is at T_o, so the surface takes the absorbed sun and passes it on to the outdoor
+    film and into the covering: alpha I = h_o (T_s - T_o) + (T_s - T_o) / (r/2), with h_o the exterior film
+    (Sparrow's forced and Walton's natural convection, and long-wave exactly linearised as in
+    :func:`hand_worked`) at T_s, iterated; the covering's centre warms at (T_s - T_o) / (r/2) / (rho c t).
+    """
+    from atticsim.constants import KELVIN, SIGMA
+    from atticsim.network.heat_transfer import forced_convection_sparrow, walton_natural
+
+    cover = sc.roof.covering
+    r_half = 0.5 * cover.prop("thickness") / cover.prop("conductivity")
+    capacity = cover.prop("density") * cover.prop("specific_heat") * cover.prop("thickness")  # J/(m2 K)
+    area, perimeter, cos_t = float(net.area[0, 0]), float(net.perimeter[0, 0]), float(net.cos_tilt[0, 0])
+    h_f = forced_convection_sparrow(WIND, perimeter, area, net.roughness)
+    absorbed = sc.roof.absorptance * poa
+    t_s = T_OUT + 10.0
+    for _ in range(60):
+        k_s, k_o = t_s + KELVIN, T_OUT + KELVIN
+        h_o = (h_f + walton_natural(t_s - T_OUT, cos_t, True)
+               + sc.roof.emittance * SIGMA * (k_s**2 + k_o**2) * (k_s + k_o))
+        t_s = T_OUT + absorbed / (h_o + 1.0 / r_half)
+    return (t_s - T_OUT) / r_half / capacity
