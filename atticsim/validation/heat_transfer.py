@@ -116,7 +116,9 @@ _HAND = ("the handbook's series-parallel resistance sum, worked by hand (ASHRAE 
          "(atticsim.validation.hand_network)")
 _QUIET = ("the demo house (fictional: two 78.3 m2 planes at 6/12, dark shingles on 11 mm OSB, 140 m2 of R-30 over "
           "gypsum) with one air node, no vents and the fan stopped, under constant weather: outdoor air, sky and "
-          "ground at 35 degC, wind 2 m/s, rooms at 24 degC, {sun}; atticsim (fast solver) after 20 days")
+          "ground at 35 degC, wind 2 m/s, rooms at 24 degC, {sun}; atticsim (fast solver) started with the whole "
+          "house at 35 degC, after 20 days (with sun, the final value of the step response whose start is the "
+          "first warming rate below)")
 
 
 @lru_cache(maxsize=None)
@@ -164,7 +166,8 @@ _quiet_case("steady_roof_layers", "Constant sun: the roof's layers' resistance b
                    "+ OSB 11 mm / 0.13 W/mK = 0.1625 m2K/W (plane wall, Incropera & DeWitt chapter 3)"))
 
 
-@case(group="roof and attic heat transfer", name="Sun switched on: the roof covering's first warming rate",
+@case(group="roof and attic heat transfer",
+      name="Sun switched on (step response): the roof covering's first warming rate",
       source=("the covering's energy balance at the first instant, worked by hand (atticsim.validation."
               "hand_network.first_warming_rate): the massless outer surface splits the absorbed sun between the "
               "outdoor film and half the covering's resistance, alpha I = (h_o + 2/r) (T_s - T_o); the centre "

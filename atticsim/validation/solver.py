@@ -147,7 +147,8 @@ def sensor_step():
     worst = float(np.max(np.abs(run.y[net.index["sensor"]] - expected)))
     k = int(np.searchsorted(t_out, 25.0))
     return Comparison(float(run.y[net.index["sensor"], k]), float(expected[k]),
-                      note="largest difference over the 200 s: " + ("under 0.0001 K" if worst < 1e-4 else f"{worst:.4f} K"))
+                      note="largest difference over the 200 s: "
+                           + ("under 0.0001 K" if worst < 1e-4 else f"{worst:.4f} K"))
 
 
 class _DrivenRC:
