@@ -69,8 +69,8 @@ def dark_roof_excess():
                                            "from memory for new white paint) and R-19")
       + "; the published bound is taken as a range from -10 K to 0 K",
       why=("In the model a white roof that still absorbs 30 % of the sun stays well above the outdoor air at "
-           "midday, and the attic air follows it; the measured attics stayed at or below the outdoor air. This "
-           "run's figures under the table give the roof surface's excess at that hour and the attic's with a "
+           "midday, and the attic air follows it; the measured attics stayed at or below the outdoor air. F2's "
+           "line in the case list below gives this run's roof surface excess at that hour and the attic's with a "
            "lower absorptance (0.25) and with twice the ventilation (8 air changes an hour): neither alone closes "
            "the gap. The dark roof (F1) is within its band, so the miss lies in how little heat a reflective "
            "roof lets through, which the model overstates or the single measured house understates; not "
