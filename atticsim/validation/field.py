@@ -16,7 +16,9 @@ _FLORIDA = ("Ours: the demo house (fictional; 140 m2 gable attic, 4 air changes 
             "FL, hot-humid) for 8-31 July; the figure is the mean day's attic air (volume mean) minus outdoor "
             "air at the hour the outdoor air peaks. Theirs: side-by-side unoccupied houses in Ft. Myers, FL, "
             "R-19 ceilings, 8-31 July 2000, attic air measured at mid-attic")
-_WHITE = {"roof": {"absorptance": 0.30, "surface_texture": "glassy", "covering": {"material": "metal"}}}
+# (every optical property given; a finish the demo's covering may carry is dropped with its material)
+_WHITE = {"roof": {"absorptance": 0.30, "emittance": 0.90, "surface_texture": "glassy",
+                   "covering": {"material": "metal", "finish": None}}}
 
 
 @lru_cache(maxsize=None)

@@ -19,6 +19,15 @@ T_OUT, T_ROOM, WIND, DEW, PRESSURE = 35.0, 24.0, 2.0, 20.0, 101325.0
 DAYS = 20
 
 
+def roof_optics(roof):
+    """(absorptance, emittance) of the roof covering: the scenario's own values, or, where the schema leaves
+    them to the covering's finish, the finish's preset (``Roof.optics``)."""
+    if hasattr(roof, "optics"):
+        values, _ = roof.optics()
+        return values["absorptance"], values["emittance"]
+    return roof.absorptance, roof.emittance
+
+
 def quiet_house():
     """The demo bungalow (fictional) with one well-mixed air node, no ventilation and the fan stopped."""
     from atticsim.scenario import demo_scenario
@@ -78,7 +87,7 @@ def hand_worked(net, sc, poa):
     a_roof, a_floor = float(net.area.sum()), sc.attic.floor_area
     area, perimeter, cos_t = float(net.area[0, 0]), float(net.perimeter[0, 0]), float(net.cos_tilt[0, 0])
     g = float(net.g_deck_floor.sum())                                      # gray exchange factor [m2]
-    eps = roof.emittance
+    alpha, eps = roof_optics(roof)
     h_f = forced_convection_sparrow(WIND, perimeter, area, net.roughness)  # Sparrow et al. 1979
     t_so, t_si, t_air, t_ct = T_OUT + 10, T_OUT + 5, T_OUT, T_OUT - 2
     for _ in range(60):
@@ -94,7 +103,7 @@ def hand_worked(net, sc, poa):
         # from the outer surface to the rooms: layers, inside, ceiling in series [K/W]
         r_in = r_layers / a_roof + 1.0 / u_inside + r_ceiling / a_floor
         # outer surface: absorbed sun + film from outdoors = flow inwards (sol-air form with the inward path)
-        t_so = (roof.absorptance * poa * a_roof + h_o * a_roof * T_OUT + T_ROOM / r_in) / (
+        t_so = (alpha * poa * a_roof + h_o * a_roof * T_OUT + T_ROOM / r_in) / (
             h_o * a_roof + 1.0 / r_in)
         q = (t_so - T_ROOM) / r_in                                                     # W, outer surface -> rooms
         t_si = t_so - q * r_layers / a_roof
@@ -123,11 +132,12 @@ def first_warming_rate(net, sc, poa):
     capacity = cover.prop("density") * cover.prop("specific_heat") * cover.prop("thickness")  # J/(m2 K)
     area, perimeter, cos_t = float(net.area[0, 0]), float(net.perimeter[0, 0]), float(net.cos_tilt[0, 0])
     h_f = forced_convection_sparrow(WIND, perimeter, area, net.roughness)
-    absorbed = sc.roof.absorptance * poa
+    alpha, eps = roof_optics(sc.roof)
+    absorbed = alpha * poa
     t_s = T_OUT + 10.0
     for _ in range(60):
         k_s, k_o = t_s + KELVIN, T_OUT + KELVIN
         h_o = (h_f + walton_natural(t_s - T_OUT, cos_t, True)
-               + sc.roof.emittance * SIGMA * (k_s**2 + k_o**2) * (k_s + k_o))
+               + eps * SIGMA * (k_s**2 + k_o**2) * (k_s + k_o))
         t_s = T_OUT + absorbed / (h_o + 1.0 / r_half)
     return (t_s - T_OUT) / r_half / capacity

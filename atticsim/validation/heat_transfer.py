@@ -32,6 +32,7 @@ def roof_film_coefficient():
 
     from atticsim.network.model import build_network
     from atticsim.scenario import demo_scenario
+    from atticsim.validation.hand_network import roof_optics
 
     sc = demo_scenario()
     net = build_network(sc)
@@ -45,7 +46,7 @@ def roof_film_coefficient():
         return float(net.derivatives(np.full((net.n_nodes, 1), t_cov), column, np.array([False]))[i_cover, 0])
 
     t_e = brentq(balance, t_o, t_o + 150.0)
-    return Comparison(sc.roof.absorptance * irr / (t_e - t_o), 17.0,
+    return Comparison(roof_optics(sc.roof)[0] * irr / (t_e - t_o), 17.0,
                       note=f"roof covering settles at {t_e:.1f} degC")
 
 
