@@ -38,9 +38,11 @@ def _register():
     from atticsim.cli.run import run
     from atticsim.cli.sweep import sweep
     from atticsim.cli.thermostat import thermostat
+    from atticsim.cli.validate import validate
 
     for command in (run, designday, thermostat, placements, sweep):
         cli.add_command(command)
+    cli.add_command(validate)
 
 
 _register()

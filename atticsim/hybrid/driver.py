@@ -222,3 +222,23 @@ def integrate(network, forcing, controller, t_start, t_end, y0, output_times, si
         run.notes.append(f"the reference solver ran: {exc}")
         return run
     return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, stepper, fallback=reference)
+
+
+def run_fast(network, forcing, t_start, t_end, y0, output_times, controller=None, **settings) -> HybridRun:
+    """:func:`simulate_hybrid` with the compiled stepper alone (``settings`` as
+    :class:`atticsim.hybrid.compiled.CompiledStepper` takes them), for tests and the validation cases."""
+    from atticsim.hybrid.compiled import CompiledStepper
+
+    out = np.ascontiguousarray(output_times, dtype=float)
+    stepper = CompiledStepper(network, forcing, out, np.empty((len(y0), out.size)), **settings)
+    return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, stepper)
+
+
+def run_reference(network, forcing, t_start, t_end, y0, output_times, controller=None, rtol=1e-6,
+                  max_step=300.0) -> HybridRun:
+    """:func:`simulate_hybrid` with the reference (LSODA) stepper, for tests and the validation cases."""
+    from atticsim.hybrid.reference import ReferenceStepper
+
+    out = np.ascontiguousarray(output_times, dtype=float)
+    stepper = ReferenceStepper(network, forcing, out, np.empty((len(y0), out.size)), rtol=rtol, max_step=max_step)
+    return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, stepper)
