@@ -159,7 +159,7 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
     notes = list(raw.notes)
     if summary_only:
         return SimulationResult(summary, None, ts, events, notes, scenario, None)
-    daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n)
+    daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n, scenario.house.cooling_cop)
     return SimulationResult(summary, daily, ts, events, notes, scenario, monthly_figures(daily))
 
 
@@ -200,13 +200,14 @@ def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
 
 
 def monthly_figures(daily: pd.DataFrame) -> pd.DataFrame:
-    """Per calendar month: run hours, starts, short cycles, fan kWh, ceiling gain with and without the fan
-    (sums of the days), and the peak attic air temperature (maximum of the days)."""
+    """Per calendar month: run hours, starts, short cycles, fan kWh, ceiling gain with and without the fan,
+    conditioned-air load and net benefit (sums of the days), and the peak attic air temperature (maximum
+    of the days)."""
     if daily.empty:
         return daily
     month = pd.to_datetime(daily["date"]).dt.strftime("%Y-%m")
-    sums = ["fan_run_hours", "fan_starts", "short_cycles", "fan_energy_kwh", "ceiling_heat_gain_kwh",
-            "ceiling_heat_gain_no_fan_kwh"]
+    sums = [c for c in ("fan_run_hours", "fan_starts", "short_cycles", "fan_energy_kwh", "ceiling_heat_gain_kwh",
+                        "ceiling_heat_gain_no_fan_kwh", "conditioned_air_load_kwh", "net_benefit_kwh") if c in daily]
     g = daily.groupby(month)
     out = g[sums].sum(min_count=1)
     out["attic_air_max_c"] = g["attic_air_max_c"].max()
@@ -280,16 +281,19 @@ def airflow_figures(scenario, raw, air, books, books_nf):
     return figures
 
 
-def _daily(ts, run, nofan, intervals, forcing, period, short_cycle, n):
-    """Per local day: run hours, starts, short cycles, median cycle, kWh, attic max/mean, ceiling gains."""
+def _daily(ts, run, nofan, intervals, forcing, period, short_cycle, n, cop=3.0):
+    """Per local day: run hours, starts, short cycles, median cycle, kWh, attic max/mean, ceiling gains,
+    the load of conditioned air drawn through the ceiling and the net benefit (as in the summary)."""
     base = forcing.times[0]
     day0 = period.start.normalize()
     edges = pd.date_range(day0, period.end + pd.Timedelta("1D"), freq="1D")
     edges = edges[(edges >= day0)]
     rows = []
 
-    def cum(book_series_run, t):
-        return np.interp(t, book_series_run.t, book_series_run.y[n + BOOKS.index("ceiling_gain")])
+    def cum(book_series_run, t, books=("ceiling_gain",)):
+        return sum(np.interp(t, book_series_run.t, book_series_run.y[n + BOOKS.index(b)]) for b in books)
+
+    house_air = ("house_air_sensible", "house_air_latent")
 
     # sorted arrays and positions instead of per-day filters (intervals and events are in time order)
     starts = np.array([s for s, _, _ in intervals], dtype=float)
@@ -319,6 +323,11 @@ def _daily(ts, run, nofan, intervals, forcing, period, short_cycle, n):
             "ceiling_heat_gain_kwh": (cum(run, hi) - cum(run, lo)) / J_PER_KWH,
             "ceiling_heat_gain_no_fan_kwh": ((cum(nofan, hi) - cum(nofan, lo)) / J_PER_KWH
                                              if nofan is not None else None),
+            "conditioned_air_load_kwh": (cum(run, hi, house_air) - cum(run, lo, house_air)) / J_PER_KWH,
         }
+        if nofan is not None:
+            load_nf = (cum(nofan, hi, house_air) - cum(nofan, lo, house_air)) / J_PER_KWH
+            avoided = row["ceiling_heat_gain_no_fan_kwh"] - row["ceiling_heat_gain_kwh"]
+            row["net_benefit_kwh"] = (avoided - (row["conditioned_air_load_kwh"] - load_nf)) / cop - row["fan_energy_kwh"]
         rows.append(row)
     return pd.DataFrame(rows)
