@@ -16,3 +16,27 @@ period_options = [
     click.option("--start", help="First day (ISO date, local standard time)."),
     click.option("--end", help="Last day, inclusive (ISO date), or an end instant."),
 ]
+
+
+def given_options(ctx) -> list[tuple[str, str]]:
+    """The options the user gave the command, as typed (for the report's 'what was asked')."""
+    out = []
+    for param in ctx.command.params:
+        value = ctx.params.get(param.name)
+        if value in (None, False, (), []) or param.name == "force":
+            continue
+        name = param.opts[0] if param.opts and param.opts[0].startswith("-") else param.name.upper()
+        values = value if isinstance(value, (list, tuple)) else [value]
+        for v in values:
+            out.append((name, "" if v is True else str(v)))
+    return out
+
+
+def command_line(ctx) -> str:
+    """The command as a line (its options as given; arguments quoted where they hold spaces)."""
+    import shlex
+
+    parts = [ctx.command_path]
+    for name, value in given_options(ctx):
+        parts += [value] if not name.startswith("-") else ([name] + ([value] if value else []))
+    return " ".join(shlex.quote(p) if p != ctx.command_path else p for p in parts)
