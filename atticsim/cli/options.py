@@ -9,7 +9,7 @@ force_option = click.option("--force", is_flag=True, help="Overwrite files in an
 set_option = click.option("--set", "overrides", multiple=True, metavar="KEY=VALUE",
                           help='Override a scenario value, e.g. --set fan.flow="1500 cfm" (repeatable).')
 units_option = click.option("--units", type=click.Choice(["si", "ip"]), default="si", show_default=True,
-                            help="Units of the terminal summary and the figure.")
+                            help="Units of the terminal summary and the figures; ip also adds IP columns and keys (degF, Btu/h, cfm, kBtu...) beside the SI ones in the files.")
 weather_option = click.option("--weather", type=click.Path(dir_okay=False),
                               help="Weather file to use instead of the scenario's (or demo:NAME).")
 period_options = [

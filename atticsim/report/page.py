@@ -176,3 +176,14 @@ class Page:
                 f"<header><h1>{esc(self.title)}</h1><p>{esc(self.subtitle)}</p>"
                 f"<p>Prepared with atticsim {esc(__version__)} on {esc(created)}.</p></header>"
                 f"<nav><strong>Contents</strong><ol>{toc}</ol></nav><main>{body}</main></body></html>\n")
+
+
+def write_page(path, text: str) -> None:
+    """Write a page atomically (a temporary file beside it, then a rename): never half a page."""
+    import os
+    from pathlib import Path
+
+    path = Path(path)
+    tmp = path.with_name(f".tmp-{path.name}")
+    tmp.write_text(text, encoding="utf-8")
+    os.replace(tmp, path)

@@ -436,3 +436,57 @@ def placements_figure(results: dict, units: str = "si"):
 def plot_placements(results: dict, path: str | Path, units: str = "si") -> None:
     """Write the figure of :func:`placements_figure` to a PNG file."""
     save_figure(placements_figure(results, units), path)
+
+
+def hysteresis_loop_figure(report: dict, units: str = "si"):
+    """The thermostat's hysteresis loop: the fan's state against the thermistor's temperature, with the
+    5-95 % spread of the parts around each switching point and the air temperatures at the switches.
+
+    Parameters
+    ----------
+    report : dict
+        :func:`atticsim.report.thermostat.thermostat_report` (``on_c``, ``off_c``, ``on_band_c``,
+        ``off_band_c``, ``on_worst_c``, ``off_worst_c``, ``on_air_c``, ``off_air_c``, ``action``).
+    """
+    conv, tunit = _temp(units)
+    on, off = float(conv(report["on_c"])), float(conv(report["off_c"]))
+    rise = report["action"] == "close-on-rise"
+    lo, hi = min(on, off), max(on, off)
+    pad = max(2.0, 0.8 * (hi - lo))
+    x0, x1 = lo - pad, hi + pad
+    fig = _new_figure(9, 4.6)
+    ax = fig.subplots(1, 1)
+    for key, colour, name in (("on", "#E69F00", "switch-on"), ("off", "#56B4E9", "switch-off")):
+        b = [float(conv(v)) for v in report[f"{key}_band_c"]]
+        w = [float(conv(v)) for v in report[f"{key}_worst_c"]]
+        ax.axvspan(w[0], w[1], color=colour, alpha=0.18, lw=0, label=f"{name}, worst case of the parts")
+        ax.axvspan(b[0], b[1], color=COLOURS["hysteresis"] if key == "on" else "#999933", alpha=0.55, lw=0,
+                   label=f"{name}, 5-95 % of the parts")
+    # the loop: warming along the bottom (off) to the switch-on, then along the top (on) back to the switch-off
+    if rise:
+        xs = [x0, on, on, x1, off, off, x0]
+        ys = [0, 0, 1, 1, 1, 0, 0]
+    else:
+        xs = [x1, on, on, x0, off, off, x1]
+        ys = [0, 0, 1, 1, 1, 0, 0]
+    ax.plot(xs, ys, color=COLOURS["attic"], lw=2.2, label="fan state (nominal parts)")
+    warm, cool = (on, off) if rise else (off, on)
+    ax.annotate("", xy=(warm, 0.5 + (0.12 if rise else -0.12)), xytext=(warm, 0.5 - (0.12 if rise else -0.12)),
+                arrowprops={"arrowstyle": "->", "color": COLOURS["attic"], "lw": 1.8})
+    ax.annotate("", xy=(cool, 0.5 - (0.12 if rise else -0.12)), xytext=(cool, 0.5 + (0.12 if rise else -0.12)),
+                arrowprops={"arrowstyle": "->", "color": COLOURS["attic"], "lw": 1.8})
+    ax.axvline(float(conv(report["on_air_c"])), color=COLOURS["outdoor"], lw=1.0, ls="--",
+               label="air temperature at switch-on (self-heating)")
+    ax.axvline(float(conv(report["off_air_c"])), color=COLOURS["sensor"], lw=1.0, ls="--",
+               label="air temperature at switch-off (self-heating)")
+    ax.text(on, 1.06, f"on {on:.2f} {tunit}", ha="center", fontsize=9)
+    ax.text(off, -0.12, f"off {off:.2f} {tunit}", ha="center", va="top", fontsize=9)
+    ax.set_xlim(x0, x1)
+    ax.set_ylim(-0.25, 1.2)
+    ax.set_yticks([0, 1], ["fan off", "fan on"])
+    ax.set_xlabel(f"thermistor temperature [{tunit}]")
+    ax.set_title(f"Hysteresis loop: {abs(on - off):.2f} {'°F' if units == 'ip' else 'K'} wide "
+                 f"(switch closes on {'rise' if rise else 'fall'})", fontsize=11, loc="left")
+    ax.grid(alpha=0.3)
+    _legend(ax)
+    return fig
