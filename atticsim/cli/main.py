@@ -33,13 +33,14 @@ def cli():
 
 
 def _register():
+    from atticsim.cli.compare import compare
     from atticsim.cli.designday import designday
     from atticsim.cli.placements import placements
     from atticsim.cli.run import run
     from atticsim.cli.sweep import sweep
     from atticsim.cli.thermostat import thermostat
 
-    for command in (run, designday, thermostat, placements, sweep):
+    for command in (run, designday, thermostat, placements, sweep, compare):
         cli.add_command(command)
 
 

@@ -490,3 +490,52 @@ def hysteresis_loop_figure(report: dict, units: str = "si"):
     ax.grid(alpha=0.3)
     _legend(ax)
     return fig
+
+
+def compare_figure(a, b, units: str = "si"):
+    """Two runs overlaid: temperatures and fan state (traces over up to 10 days, else each day's attic
+    maximum and run hours). ``a`` and ``b`` have ``timeseries``, ``summary`` and ``name``."""
+    import pandas as pd
+
+    conv, tunit = _temp(units)
+    ta, tb = a.timeseries, b.timeseries
+    days = max((t.index[-1] - t.index[0]).total_seconds() / 86400.0 for t in (ta, tb))
+    fig = _new_figure(12, 7.5)
+    ax, ax2 = fig.subplots(2, 1, sharex=True, gridspec_kw={"height_ratios": [3, 1.2]})
+    la, lb = f"A ({a.name})", f"B ({b.name})"
+    if days <= LONG_PERIOD_DAYS:
+        for run, lab, col, style in ((a, la, COLOURS, "-"), (b, lb, B_COLOURS, "--")):
+            ts = run.timeseries
+            idx = ts.index.tz_localize(None)
+            ax.plot(idx, conv(ts["attic_air_c"]), color=col["attic"], lw=1.5, ls=style, label=f"attic air, {lab}")
+            if "sensor_c" in ts:
+                ax.plot(idx, conv(ts["sensor_c"]), color=col["sensor"], lw=0.9, ls=style, label=f"sensor, {lab}")
+            ax.plot(idx, conv(ts["outdoor_air_c"]), color=col["outdoor"], lw=1.0, ls=style, label=f"outdoor air, {lab}")
+        for k, (run, lab, col) in enumerate(((a, la, COLOURS["fan_on"]), (b, lb, B_COLOURS["fan_on"]))):
+            ts = run.timeseries
+            ax2.fill_between(ts.index.tz_localize(None), k - 0.4, k + 0.4, where=ts["fan_on"].to_numpy() > 0,
+                             step="post", color=col, lw=0, label=f"fan running, {lab}")
+        ax2.set_yticks([0, 1], ["A", "B"])
+        ax2.set_ylim(-0.6, 1.6)
+        ax2.invert_yaxis()
+        ax2.set_ylabel("fan running")
+    else:
+        for run, lab, col, style in ((a, la, COLOURS, "-"), (b, lb, B_COLOURS, "--")):
+            ts = run.timeseries
+            g = ts[["attic_air_c", "outdoor_air_c"]].resample("1D").max()
+            d = g.index.tz_localize(None) + pd.Timedelta("12h")
+            ax.plot(d, conv(g["attic_air_c"]), color=col["attic"], ls=style, lw=1.3, label=f"attic air, daily max, {lab}")
+            ax.plot(d, conv(g["outdoor_air_c"]), color=col["outdoor"], ls=style, lw=1.0,
+                    label=f"outdoor air, daily max, {lab}")
+            run_h = _daily_from_ts(ts)
+            ax2.plot(pd.to_datetime(run_h["date"]) + pd.Timedelta("12h"), run_h["fan_run_hours"], color=col["fan_on"],
+                     ls=style, lw=1.2, label=f"fan run hours per day, {lab}")
+        ax2.set_ylabel("run [h/day]")
+    ax.set_ylabel(f"temperature [{tunit}]")
+    ax.set_title(f"A: {a.name} (solid)   B: {b.name} (dashed)", fontsize=11, loc="left")
+    ax.grid(alpha=0.3)
+    ax2.grid(alpha=0.3)
+    _legend(ax)
+    _legend(ax2)
+    _dates(ax2, _tz_label(ta.index))
+    return fig
