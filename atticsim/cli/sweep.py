@@ -79,6 +79,8 @@ def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, wea
     from atticsim.study.analysis import recommendation_text
     from atticsim.study.runner import run_study
 
+    if force and not resume:  # an earlier study's page must not outlive it (run_study clears its own files)
+        (Path(out) / "report.html").unlink(missing_ok=True)
     outcome = run_study(study, out, workers=workers, scheduler=scheduler, resume=resume, force=force,
                         progress=sys.stderr, command={"sweep": click.get_current_context().params})
     from atticsim.cli.options import command_line, given_options

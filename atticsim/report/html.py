@@ -561,3 +561,24 @@ def compare_page(a, b, diff_rows, units="si", command=None, folder=None) -> str:
     fp = {"atticsim_version": __version__, "run_id": ""}
     page.section("trace", "Version and fingerprint", trace_section(fp, command))
     return page.html()
+
+
+# --- any other command ----------------------------------------------------------------------------
+
+def generic_page(title: str, subtitle: str, asked: list, summary: dict, warnings=(), notes=(), figures=None,
+                 units: str = "si", command=None, fp: dict | None = None, inputs=None) -> str:
+    """A report page for a command without a page of its own (e.g. a validation run): what was asked,
+    the summary's figures (words and units from the keys), warnings, notes and cautions, figures
+    (``{caption: png bytes}``), the model's limits and the trace, in the same order as every page."""
+    page = Page(title, subtitle)
+    page.section("asked", "What was asked", inputs_section(inputs, asked, None))
+    page.section("answers", "The answers", answer_cards(summary, units), summary_table(summary, units))
+    page.section("warnings", "Warnings and cautions", warnings_and_cautions(list(warnings), list(notes), None))
+    if figures:
+        page.section("figures", "Figures", *(figure(png, cap, cap) for cap, png in figures.items()))
+    page.section("model", "How the model works, and its limits", bullets(MODEL_LINES), "<h3>Limits</h3>",
+                 bullets(LIMITS_LINES))
+    page.section("trace", "Version and fingerprint", trace_section(fp or {"atticsim_version": __version__}, command))
+    if inputs is not None:
+        page.section("inputs", "Every input as written", all_inputs_section(inputs))
+    return page.html()
