@@ -220,3 +220,50 @@ IP_FACTORS = {
     "r_value": (1.0 / R_IP_TO_SI, "h.ft2.F/Btu"),
     "volume": (1.0 / 0.3048**3, "ft3"),
 }
+
+
+#: More SI -> IP factors for files and figures (NIST SP 811 appendix B): W -> Btu_IT/h, kWh -> kBtu_IT,
+#: m/s -> mph, W/m2 -> Btu_IT/(h ft2).
+IP_FACTORS.update({
+    "power": (3.41214163, "Btu/h"),
+    "energy_kbtu": (3.41214163, "kBtu"),
+    "velocity": (1.0 / 0.44704, "mph"),
+    "irradiance": (3.41214163 * 0.3048**2, "Btu/h.ft2"),
+})
+
+
+def _scale(kind):
+    factor = IP_FACTORS[kind][0]
+    return lambda v: v * factor
+
+
+#: Name endings of SI columns and keys -> (ending of the IP companion, conversion), longest ending first.
+#: Trade units: degF, delta degF, Btu/h, kBtu (heat and electricity alike, beside the kWh kept in SI),
+#: cfm, ft3, ft2, in. w.c., mph, Btu/h.ft2. ``_per_k`` endings (conductances) have no companion.
+IP_SUFFIXES = (
+    ("_w_m2", "_btu_h_ft2", _scale("irradiance")),
+    ("_m3_s", "_cfm", _scale("flow")),
+    ("_m3s", "_cfm", _scale("flow")),
+    ("_m_s", "_mph", _scale("velocity")),
+    ("_kwh", "_kbtu", _scale("energy_kbtu")),
+    ("_m3", "_ft3", _scale("volume")),
+    ("_m2", "_ft2", _scale("area")),
+    ("_pa", "_in_wc", _scale("pressure")),
+    ("_w", "_btu_h", _scale("power")),
+    ("_c", "_f", c_to_f),
+    ("_k", "_delta_f", k_to_delta_f),
+)
+
+
+def ip_companion(name: str):
+    """(IP name, conversion) for an SI column or key named by its unit ending, or None.
+
+    ``attic_air_c`` -> ``attic_air_f`` (degF), ``fan_flow_m3_s`` -> ``fan_flow_cfm``, ``ceiling_heat_gain_w``
+    -> ``ceiling_heat_gain_btu_h``, ``fan_energy_kwh`` -> ``fan_energy_kbtu``.
+    """
+    if name.endswith("_per_k"):
+        return None
+    for si, ip, convert in IP_SUFFIXES:
+        if name.endswith(si) and len(name) > len(si):
+            return name[: -len(si)] + ip, convert
+    return None

@@ -22,7 +22,8 @@ from atticsim.cli.options import force_option, out_option, scenario_argument, se
 @force_option
 def designday(scenario, out, date, tmax, daily_range, dew, wind, overrides, units, force):
     """Run SCENARIO's house on a clear design day at its site (ASHRAE daily temperature profile,
-    clear-sky sun), repeated until the attic's response is periodic; writes the same files as run."""
+    clear-sky sun), repeated until the attic's response is periodic; writes the same files as run,
+    report.html included."""
     from atticsim.pipeline import design_day
     from atticsim.report.text import summary_text
     from atticsim.results.export import result_writers
@@ -34,7 +35,18 @@ def designday(scenario, out, date, tmax, daily_range, dew, wind, overrides, unit
     sc = load_scenario(scenario, list(overrides))
     result = design_day(sc, date, to_si(tmax, "temperature"), to_si(daily_range, "temperature_difference"),
                         dew_point=to_si(dew, "temperature") if dew else None, wind_speed=to_si(wind, "velocity"))
-    files = write_outputs(out, result_writers(result, units), force=force)
+    from atticsim.cli.options import command_line, given_options
+    from atticsim.report.html import report_writer, run_page
+    from atticsim.report.inputs import scenario_inputs
+
+    ctx = click.get_current_context()
+    design = {"date": date, "maximum": tmax, "daily range": daily_range, "dew point": dew or "the day's minimum",
+              "wind": wind}
+    inputs = scenario_inputs(scenario, overrides, sc)
+    writers = result_writers(result, units)
+    writers["report.html"] = report_writer(lambda folder: run_page(
+        result, units, inputs, given_options(ctx), command_line(ctx), folder, kind="design day", design=design))
+    files = write_outputs(out, writers, force=force)
     click.echo(summary_text(result, units))
     click.echo(f"periodic to {result.summary['periodic_residual_k']:.2e} K after "
                f"{result.summary['spinup_days_used']} repeated days; wrote {len(files)} files to {out}", err=True)

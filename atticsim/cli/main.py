@@ -33,6 +33,7 @@ def cli():
 
 
 def _register():
+    from atticsim.cli.compare import compare
     from atticsim.cli.designday import designday
     from atticsim.cli.placements import placements
     from atticsim.cli.run import run
@@ -40,7 +41,7 @@ def _register():
     from atticsim.cli.thermostat import thermostat
     from atticsim.cli.validate import validate
 
-    for command in (run, designday, thermostat, placements, sweep):
+    for command in (run, designday, thermostat, placements, sweep, compare):
         cli.add_command(command)
     cli.add_command(validate)
 

@@ -22,8 +22,8 @@ from atticsim.cli.options import (force_option, out_option, period_options, scen
 @units_option
 @force_option
 def placements(scenario, out, only, start, end, months, workers, overrides, units, force):
-    """Compare sensor placements for SCENARIO: writes placements.csv, placements.json and
-    placements.png, and says which placements short-cycle and why."""
+    """Compare sensor placements for SCENARIO: writes placements.csv, placements.json, placements.png and
+    report.html, and says which placements short-cycle and why."""
     from atticsim.report.cautions import caution_text
     from atticsim.report.plots import plot_placements
     from atticsim.results.output import check_output_dir, write_json, write_outputs
@@ -37,11 +37,20 @@ def placements(scenario, out, only, start, end, months, workers, overrides, unit
     results = run_placements(sc, names, start=start, end=end, months=months, workers=workers)
     table = placement_table(results)
     findings = placement_findings(table, sc.simulation.short_cycle / 60.0)
+    from atticsim.cli.options import command_line, given_options
+    from atticsim.report.html import placements_page, report_writer
+    from atticsim.report.inputs import scenario_inputs
+    from atticsim.results.export import ip_table
+
+    ctx = click.get_current_context()
+    inputs = scenario_inputs(scenario, overrides, sc)
     files = write_outputs(out, {
-        "placements.csv": lambda p: table.to_csv(p, index=False, float_format="%.4f"),
-        "placements.json": lambda p: write_json(p, {"placements": table.to_dict(orient="records"),
+        "placements.csv": lambda p: ip_table(table, units).to_csv(p, index=False, float_format="%.4f"),
+        "placements.json": lambda p: write_json(p, {"placements": ip_table(table, units).to_dict(orient="records"),
                                                     "findings": findings}),
         "placements.png": lambda p: plot_placements(results, p, units),
+        "report.html": report_writer(lambda folder: placements_page(
+            sc, results, table, findings, units, inputs, given_options(ctx), command_line(ctx), folder)),
     }, force=force)
     with_cols = ["placement", "starts_per_day", "short_cycles", "median_on_minutes", "fan_run_hours",
                  "attic_air_max_c", "ceiling_heat_gain_kwh", "sensor_lag_min", "overshoot_at_switch_on_k"]

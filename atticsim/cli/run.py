@@ -26,8 +26,8 @@ from atticsim.cli.options import (force_option, out_option, period_options, scen
 def run(scenario, out, weather, start, end, months, year, solver, overrides, units, force):
     """Simulate SCENARIO (a TOML file; the built-in demo house if omitted) and write results to --out.
 
-    Writes summary.json, daily.csv, monthly.csv, timeseries.csv, events.csv, temperatures.png and
-    monthly.png. --weather takes a file, pvlib:FILE (a typical-year file shipped with pvlib) or demo:NAME.
+    Writes summary.json, daily.csv, monthly.csv, timeseries.csv, events.csv, temperatures.png,
+    monthly.png and report.html (one page to hand a client). --weather takes a file, pvlib:FILE (a typical-year file shipped with pvlib) or demo:NAME.
     """
     from atticsim.results.output import check_output_dir
     from atticsim.scenario import load_scenario
@@ -41,6 +41,9 @@ def run(scenario, out, weather, start, end, months, year, solver, overrides, uni
         overrides.append(f'weather.file="{w}"')
     sc = load_scenario(scenario, overrides)
 
+    from atticsim.cli.options import command_line, given_options
+    from atticsim.report.html import report_writer, run_page
+    from atticsim.report.inputs import scenario_inputs
     from atticsim.report.text import summary_text
     from atticsim.results.export import result_writers
     from atticsim.results.output import write_outputs
@@ -50,6 +53,11 @@ def run(scenario, out, weather, start, end, months, year, solver, overrides, uni
         click.echo(f"atticsim: warning: {w}", err=True)
     click.echo(f"simulating {sc.house.name} ...", err=True)
     result = simulate(sc, start=start, end=end, months=months, year=year)
-    files = write_outputs(out, result_writers(result, units), force=force)
+    ctx = click.get_current_context()
+    inputs = scenario_inputs(scenario, overrides, sc)
+    writers = result_writers(result, units)
+    writers["report.html"] = report_writer(lambda folder: run_page(
+        result, units, inputs, given_options(ctx), command_line(ctx), folder))
+    files = write_outputs(out, writers, force=force)
     click.echo(summary_text(result, units))
     click.echo(f"wrote {len(files)} files to {out}", err=True)

@@ -46,7 +46,7 @@ def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, wea
     Writes points.csv/points.parquet (every varied value and figure per point), study.json (versions, seed,
     inputs), journal.jsonl (one line per finished point; --resume continues from it), pareto.csv and
     pareto.png (heat against fan electricity), recommendation.json (the rule, the chosen point, its runner-up,
-    range edges, warnings) and short_cycling_map.png.
+    range edges, warnings), short_cycling_map.png and report.html (the study on one page).
 
     Example: atticsim sweep --vary thermostat.on=36:44:2degC --vary thermostat.hysteresis=1:5:1K
     --start 2025-07-01 --end 2025-07-07 --out hysteresis_study
@@ -91,6 +91,16 @@ def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, wea
 
     outcome = run_study(study, out, workers=workers, scheduler=scheduler, resume=resume, force=force,
                         progress=sys.stderr, command={"sweep": click.get_current_context().params})
+    from atticsim.cli.options import command_line, given_options
+    from atticsim.report.html import study_page
+    from atticsim.report.inputs import scenario_inputs
+    from atticsim.report.page import write_page
+
+    ctx = click.get_current_context()
+    scenario_path = Path(study.scenario) if study.scenario else None
+    inputs = scenario_inputs(scenario_path, study.base_overrides)
+    write_page(Path(out) / "report.html", study_page(study, outcome, inputs, given_options(ctx), command_line(ctx), out))
+    outcome.files.append(Path(out) / "report.html")
     for note in outcome.notes:
         click.echo(f"note: {note}", err=True)
     click.echo(recommendation_text(outcome.recommendation, outcome.table, [a.key for a in study.axes]))

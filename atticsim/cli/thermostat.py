@@ -6,7 +6,9 @@ import json
 
 import click
 
-from atticsim.cli.options import scenario_argument, set_option, units_option
+from pathlib import Path
+
+from atticsim.cli.options import force_option, scenario_argument, set_option, units_option
 
 
 @click.command()
@@ -25,13 +27,17 @@ from atticsim.cli.options import scenario_argument, set_option, units_option
 @click.option("--write", "write_to", type=click.Path(dir_okay=False),
               help="With --design: write SCENARIO with the chosen feedback resistor and trimmer setting to this "
                    "file, ready to run.")
-@click.option("--force", is_flag=True, help="Overwrite the --write file if it exists.")
 @units_option
-def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis, series, write_to, force, units):
+@click.option("--out", "out", type=click.Path(file_okay=False),
+              help="Also write thermostat.json, hysteresis_loop.png and report.html to this folder.")
+@force_option
+def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis, series, write_to, units, out,
+               force):
     """Explain SCENARIO's circuit thermostat: the temperatures its parts really switch at (with
     self-heating and tolerances), its LED current, its mains-side supply, its timer stage and the time
     rules the simulation applies; or, with --design, the parts that give wanted temperatures (of the air by
-    default: the thermistor's own dissipation included)."""
+    default: the thermistor's own dissipation included). With --out, the same as files and a report page;
+    --force replaces an existing --out folder or --write file."""
     from atticsim.report.thermostat import design_report, design_text, thermostat_report, thermostat_text
     from atticsim.scenario import load_scenario
     from atticsim.units import to_si
@@ -39,10 +45,12 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis
     if write_to and not design:
         raise click.UsageError("--write needs --design (it writes the parts the design chooses)")
     if write_to and not force:
-        from pathlib import Path
-
         if Path(write_to).exists():
             raise FileExistsError(f"{write_to}: file exists; pass --force to overwrite it")
+    if out:
+        from atticsim.results.output import check_output_dir
+
+        check_output_dir(Path(out), force)
     sc = load_scenario(scenario, list(overrides))
     for w in sc.input_warnings:
         click.echo(f"atticsim: warning: {w}", err=True)
@@ -72,6 +80,29 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis
             click.echo(f"wrote {path}: the scenario with feedback {report['feedback_ohm']:,.0f} ohm and the trimmer "
                        f"set to {report['sense_trim_ohm']:,.0f} ohm; run it with: atticsim run {path} --out DIR",
                        err=True)
+        design_result = report
     else:
         report = thermostat_report(sc)
         click.echo(json.dumps(report, indent=2) if as_json else thermostat_text(report, units))
+        design_result = None
+    if out:
+        from atticsim.cli.options import command_line, given_options
+        from atticsim.report.html import circuit_page, report_writer
+        from atticsim.report.inputs import scenario_inputs
+        from atticsim.report.plots import hysteresis_loop_figure, save_figure
+        from atticsim.results.export import ip_summary
+        from atticsim.results.output import write_json, write_outputs
+
+        ctx = click.get_current_context()
+        # the circuit as built (with --design, as designed: its thresholds are in the design's report)
+        circuit = thermostat_report(sc)
+        inputs = scenario_inputs(scenario, overrides, sc)
+        writers = {
+            "thermostat.json": lambda p: write_json(p, ip_summary({**circuit, **({"design": design_result}
+                                                                                  if design_result else {})}, units)),
+            "hysteresis_loop.png": lambda p: save_figure(hysteresis_loop_figure(circuit, units), p),
+            "report.html": report_writer(lambda folder: circuit_page(
+                sc, circuit, units, inputs, given_options(ctx), command_line(ctx), folder, design_result)),
+        }
+        files = write_outputs(out, writers, force=force)
+        click.echo(f"wrote {len(files)} files to {out}", err=True)

@@ -42,7 +42,7 @@ JOURNAL = "journal.jsonl"
 STUDY_JSON = "study.json"
 #: Every file a study writes into DIR (``--force`` removes these and nothing else).
 STUDY_FILES = (STUDY_JSON, JOURNAL, "points.csv", "points.parquet", "pareto.csv", "pareto.png",
-               "recommendation.json", "short_cycling_map.png")
+               "recommendation.json", "short_cycling_map.png", "report.html")
 NET_BENEFIT_BASIS = ("the run's net_benefit_kwh: electricity at the meter = cooling savings (ceiling heat kept out on "
                      "cooled days / house.cooling_cop) - the cooling cost of conditioned air drawn - fan energy - "
                      "the heating penalty when the heating runs on electricity (see each point's energy_basis in "
