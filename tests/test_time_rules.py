@@ -134,3 +134,21 @@ def test_fast_agrees_with_reference_with_time_rules(name, extra):
                 timed += 1
     if any("min_run" in e for e in extra):
         assert timed > 0
+
+
+def test_a_logged_fan_switches_exactly_when_the_log_changes():
+    # a fan log (on at 500 s, still on at 700 s, off at 1300 s, on at 2000 s): the driver switches the fan at
+    # those instants exactly, whatever the sensor does, and skips entries that change nothing
+    from atticsim.hybrid.controller import LoggedFan
+
+    net = _Ramp()
+    forcing = Forcing(times=None, step=3600.0, values=np.zeros((1, 3)), channels=["unused"], notes=[])
+    out = np.arange(0.0, 2501.0, 100.0)
+    y0 = np.concatenate([[30.0], np.zeros(len(BOOKS))])
+    log = LoggedFan([0.0, 500.0, 700.0, 1300.0, 2000.0], [False, True, True, False, True])
+    stepper = ReferenceStepper(net, forcing, out, np.empty((y0.size, out.size)), rtol=1e-10)
+    run = simulate_hybrid(net, forcing, log, 0.0, 2500.0, y0, out, stepper)
+    assert [(round(t, 6), fan, cause) for t, fan, _, cause in run.events] == [
+        (500.0, True, "log"), (1300.0, False, "log"), (2000.0, True, "log")]
+    # the sensor rose 0.01 K/s for 500 s, fell for 800 s, rose for 700 s, fell for 500 s: 30 + 5 - 8 + 7 - 5
+    assert run.y_end[0] == pytest.approx(29.0, abs=1e-6)

@@ -29,7 +29,7 @@ ZERO_BAND = 1e-6
 #: The time rules, in the order of their records.
 RULES = ("start_delay", "run_on", "min_run", "min_rest")
 #: Causes of a fan switch, for the event records: the switch's level, or the rule that held the fan.
-CAUSES = ("threshold",) + RULES
+CAUSES = ("threshold",) + RULES + ("log",)
 
 
 def _rule_values(rules):
@@ -145,6 +145,57 @@ class HeldFan:
         return None
 
     def expired(self, t):
+        return None
+
+
+class LoggedFan:
+    """A controller that follows a logged fan state: the fan switches exactly at the instants the log changes
+    (a calibration against measured data drives the fan this way, so that the thermostat's own errors are
+    kept apart). Events have the cause "log".
+
+    Parameters
+    ----------
+    times : sequence of float
+        Increasing instants [s on the forcing's clock] at which the log's state takes effect.
+    states : sequence of bool
+        The fan state from each instant on (before the first: the first state).
+    """
+
+    def __init__(self, times, states):
+        self.times = [float(t) for t in times]
+        self.states = [bool(s) for s in states]
+        if len(self.times) != len(self.states) or not self.times:
+            raise ValueError("a fan log needs one state per instant, and at least one")
+        if any(b <= a for a, b in zip(self.times, self.times[1:])):
+            raise ValueError("a fan log's instants must increase")
+        self.fan, self._next = self.states[0], 0
+
+    def start(self, t, sensor_temp) -> bool:
+        i = sum(1 for ti in self.times if ti <= t + 1e-9)
+        self.fan = self.states[max(i - 1, 0)]
+        self._next = i
+        self._skip_same()
+        return self.fan
+
+    def _skip_same(self):
+        while self._next < len(self.times) and self.states[self._next] == self.fan:
+            self._next += 1
+
+    def watch(self):
+        return 0.0, 0
+
+    def deadline(self) -> float:
+        return self.times[self._next] if self._next < len(self.times) else math.inf
+
+    def crossed(self, t):
+        return None
+
+    def expired(self, t):
+        if self._next < len(self.times) and self.times[self._next] <= t + 1e-9:
+            self.fan = self.states[self._next]
+            self._next += 1
+            self._skip_same()
+            return "log"
         return None
 
 
