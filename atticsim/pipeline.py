@@ -138,7 +138,7 @@ def model_notes(scenario) -> list[str]:
 
 
 def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, months=None,
-            year=None, reuse_no_fan=False) -> RawRuns:
+            year=None, reuse_no_fan=False, controller=None) -> RawRuns:
     """Integrate the scenario with the fan under thermostat control and, optionally, with no fan.
 
     Parameters
@@ -155,6 +155,10 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         Reuse the no-fan run of an earlier call in this process when nothing it depends on differs
         (studies that vary only the thermostat run it once per worker instead of once per point), and the
         forcing when the weather frame, site, weather options, roof and period are the same.
+    controller : object, optional
+        Drives the fan instead of the scenario's thermostat (e.g. :class:`atticsim.hybrid.controller.LoggedFan`
+        to follow a logged fan state; its instants on the forcing's clock, seconds from
+        ``RawRuns.forcing.times[0]``; or a log made with ``LoggedFan.at_instants``, which this puts on it).
     """
     if weather is None:
         weather = load_weather(scenario.weather.file, year=year)
@@ -171,7 +175,10 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
 
     pressure = float(np.nanmean(frame["pressure"])) if "pressure" in frame else 101325.0
     network = build_network(scenario, pressure=pressure)
-    controller = controller_from_scenario(scenario)
+    if controller is None:
+        controller = controller_from_scenario(scenario)
+    elif hasattr(controller, "clocked"):
+        controller = controller.clocked(forcing.times[0])  # a log given by instants, on this forcing's clock
     y0 = np.zeros(network.n_nodes + len(BOOKS))
     y0[:network.n_nodes] = forcing.at(period.t_start)[0]
 

@@ -156,10 +156,25 @@ class LoggedFan:
     Parameters
     ----------
     times : sequence of float
-        Increasing instants [s on the forcing's clock] at which the log's state takes effect.
+        Increasing instants [s on the forcing's clock] at which the log's state takes effect (or tz-aware
+        timestamps, with :meth:`clocked` giving the controller on a forcing's clock).
     states : sequence of bool
         The fan state from each instant on (before the first: the first state).
     """
+
+    @classmethod
+    def at_instants(cls, instants, states):
+        """A log given by tz-aware instants (pandas timestamps), to be put on a forcing's clock by
+        :meth:`clocked` (``run_raw`` does so)."""
+        log = cls.__new__(cls)
+        log.instants, log.log_states = list(instants), [bool(s) for s in states]
+        return log
+
+    def clocked(self, origin):
+        """This log on the clock of a forcing that starts at ``origin`` (a tz-aware timestamp)."""
+        if not hasattr(self, "instants"):
+            return self
+        return LoggedFan([(i - origin).total_seconds() for i in self.instants], self.log_states)
 
     def __init__(self, times, states):
         self.times = [float(t) for t in times]
