@@ -138,7 +138,7 @@ def model_notes(scenario) -> list[str]:
 
 
 def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, months=None,
-            year=None, reuse_no_fan=False, controller=None) -> RawRuns:
+            year=None, reuse_no_fan=False, controller=None, progress=None) -> RawRuns:
     """Integrate the scenario with the fan under thermostat control and, optionally, with no fan.
 
     Parameters
@@ -159,6 +159,9 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         Drives the fan instead of the scenario's thermostat (e.g. :class:`atticsim.hybrid.controller.LoggedFan`
         to follow a logged fan state; its instants on the forcing's clock, seconds from
         ``RawRuns.forcing.times[0]``; or a log made with ``LoggedFan.at_instants``, which this puts on it).
+    progress : callable, optional
+        ``progress(stage, fraction)`` with stage "with fan" or "without fan" and the share of that run done
+        [0-1], called about every simulated day (for a progress bar).
     """
     if weather is None:
         weather = load_weather(scenario.weather.file, year=year)
@@ -188,7 +191,11 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         net = network if enabled else build_network(no_fan_scenario, pressure=pressure)
         ctl = controller if enabled else None
         y_start = _spin_up(net, forcing, ctl, period, y0.copy(), sim.spinup_days, sim)
-        run = integrate(net, forcing, ctl, period.t_start, period.t_end, y_start, output_times, sim)
+        stage = "with fan" if enabled else "without fan"
+        report = (lambda fraction: progress(stage, fraction)) if progress is not None else None
+        run = integrate(net, forcing, ctl, period.t_start, period.t_end, y_start, output_times, sim, progress=report)
+        if progress is not None:
+            progress(stage, 1.0)
         return run, y_start
 
     with_fan, y_fan = one(scenario.fan.enabled)

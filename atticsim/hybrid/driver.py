@@ -114,7 +114,7 @@ class _Rows:
 
 
 def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_times, stepper,
-                    fallback=None) -> HybridRun:
+                    fallback=None, progress=None) -> HybridRun:
     """Integrate the hybrid system from t_start to t_end.
 
     Parameters
@@ -136,6 +136,9 @@ def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_tim
     fallback : callable, optional
         ``fallback(out_y)`` makes the stepper that takes over (writing into the same rows) if ``stepper``
         fails.
+    progress : callable, optional
+        ``progress(fraction)`` is called with the share of the period done [0-1] at most about every simulated
+        day (for a progress bar).
     """
     airflow = getattr(network, "airflow", None)  # None: no air flows (a bare network)
     update = airflow.update_interval if airflow is not None else math.inf
@@ -149,6 +152,8 @@ def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_tim
     next_air = t if airflow is not None else math.inf
     after_switch, calls = False, 0
     state = air = None
+    span = max(t_end - t_start, 1e-9)
+    reported = t
     while t < t_end - 1e-9:
         if airflow is not None and t >= next_air - 1e-9:
             u = forcing.at(t)
@@ -176,6 +181,9 @@ def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_tim
             stepper, fallback = replacement, None
             continue
         rows.hold(k0, k, fan, state)
+        if progress is not None and t - reported >= 86400.0:
+            progress((t - t_start) / span)
+            reported = t
         after_switch = False
         cause = None
         if crossed:
@@ -198,10 +206,11 @@ def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_tim
                      air_runs=rows.runs(), notes=notes)
 
 
-def integrate(network, forcing, controller, t_start, t_end, y0, output_times, simulation) -> HybridRun:
+def integrate(network, forcing, controller, t_start, t_end, y0, output_times, simulation,
+              progress=None) -> HybridRun:
     """:func:`simulate_hybrid` with the stepper the scenario's ``simulation`` settings ask for: the compiled
     stepper (``solver = "fast"``; the reference takes over where it cannot go on, or when the outputs are
-    not on one regular grid) or the reference stepper (``"reference"``)."""
+    not on one regular grid) or the reference stepper (``"reference"``); ``progress`` as there."""
     from atticsim.hybrid.reference import ReferenceStepper
 
     out = np.ascontiguousarray(output_times, dtype=float)
@@ -211,17 +220,20 @@ def integrate(network, forcing, controller, t_start, t_end, y0, output_times, si
         return ReferenceStepper(network, forcing, out, rows, rtol=simulation.rtol, max_step=simulation.max_step)
 
     if simulation.solver != "fast":
-        return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, reference(out_y))
+        return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, reference(out_y),
+                               progress=progress)
     from atticsim.hybrid.compiled import CompiledStepper
 
     try:
         stepper = CompiledStepper(network, forcing, out, out_y, tol=simulation.fast_tolerance,
                                   check_step=min(60.0, simulation.max_step))
     except ValueError as exc:
-        run = simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, reference(out_y))
+        run = simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, reference(out_y),
+                              progress=progress)
         run.notes.append(f"the reference solver ran: {exc}")
         return run
-    return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, stepper, fallback=reference)
+    return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, stepper, fallback=reference,
+                           progress=progress)
 
 
 def run_fast(network, forcing, t_start, t_end, y0, output_times, controller=None, **settings) -> HybridRun:
