@@ -56,6 +56,7 @@ owns the events, the airflow updates and the records; the reference stepper
 from __future__ import annotations
 
 import math
+from typing import NamedTuple
 
 import numba as nb
 import numpy as np
@@ -318,6 +319,390 @@ def _max_change(p, q):
     return change
 
 
+class _Work(NamedTuple):
+    """Scratch vectors of :func:`advance` (made once per call by :func:`_work`): the forcing at a segment's
+    start, end and middle (u0, u1, um) and the rates there (f0, f1, fm); the remainder a + b s + c s^2 and the
+    previous segment's b, c; the ends z1, zm and their next iterates; the outputs' vectors (zs, zt, yb, ybt,
+    p*, q*, r*); the crossing's (zi, it_, v0, v1, tmp, sub)."""
+
+    u0: np.ndarray
+    u1: np.ndarray
+    um: np.ndarray
+    f0: np.ndarray
+    f1: np.ndarray
+    fm: np.ndarray
+    a: np.ndarray
+    b: np.ndarray
+    c: np.ndarray
+    b_prev: np.ndarray
+    c_prev: np.ndarray
+    z1: np.ndarray
+    zm: np.ndarray
+    g0a: np.ndarray
+    g0a_m: np.ndarray
+    z1n: np.ndarray
+    zmn: np.ndarray
+    xe: np.ndarray
+    rm: np.ndarray
+    r1: np.ndarray
+    bb: np.ndarray
+    cb: np.ndarray
+    zs: np.ndarray
+    zi: np.ndarray
+    zt: np.ndarray
+    it_: np.ndarray
+    v0: np.ndarray
+    v1: np.ndarray
+    tmp: np.ndarray
+    yb: np.ndarray
+    ybt: np.ndarray
+    p0: np.ndarray
+    p1: np.ndarray
+    p2: np.ndarray
+    q0: np.ndarray
+    q1: np.ndarray
+    q2: np.ndarray
+    r0: np.ndarray
+    r1b: np.ndarray
+    r2: np.ndarray
+    sub: np.ndarray
+
+
+@nb.njit(cache=True)
+def _work(n, nb_, n_u):
+    """The scratch vectors of :func:`advance` for n nodes, nb_ books and n_u forcing channels."""
+    n_tot = n + nb_
+    return _Work(np.empty(n_u), np.empty(n_u), np.empty(n_u), np.empty(n_tot), np.empty(n_tot), np.empty(n_tot),
+                 np.empty(n), np.zeros(n), np.zeros(n), np.zeros(n), np.zeros(n), np.empty(n), np.empty(n),
+                 np.empty(n), np.empty(n), np.empty(n), np.empty(n), np.empty(n), np.empty(n), np.empty(n),
+                 np.empty(nb_), np.empty(nb_), np.empty(n), np.empty(n), np.empty(n), np.empty(n), np.empty(n),
+                 np.empty(n), np.empty(n), np.empty(nb_), np.empty(nb_), np.empty(n), np.empty(n), np.empty(n),
+                 np.empty(n), np.empty(n), np.empty(n), np.empty(nb_), np.empty(nb_), np.empty(nb_),
+                 np.empty((BLOCKS, n, n)))
+
+
+class _System(NamedTuple):
+    """What the network's rates depend on besides its state: fan state, held air flows, packed parameters
+    (:class:`atticsim.network.kernel.Packed`), the forcing's samples and their spacing [s]."""
+
+    fan: float
+    air: np.ndarray
+    prm: np.ndarray
+    planes: np.ndarray
+    ints: np.ndarray
+    heat: np.ndarray
+    f_values: np.ndarray
+    f_step: float
+
+
+@nb.njit(cache=True, _nrt=False)
+def _rates(x, u, s, out):
+    """The network's rates (nodes, then books) at x under forcing u: :func:`atticsim.network.kernel.rhs`."""
+    kernel.rhs(x, u, s.fan, s.air, s.prm, s.planes, s.ints, s.heat, out)
+
+
+@nb.njit(cache=True)
+def _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta):
+    """One try of the segment [t, t + h]: the fixed point for the remainder's slope b and curvature c (its
+    true values at the segment's middle and end), from the previous segment's.
+
+    Returns (converged, iterations, contraction estimate eta, right-hand sides). Stops when the last change,
+    or the error left that the contraction rate implies, is below tol_iter (the stopping rule of simplified
+    Newton iterations and its carried rate, Hairer & Wanner, Solving ODEs II, sect. IV.8; from memory), or
+    early when the segment is already far outside ``tol`` (rejection is sure: a segment too long also
+    converges slowly).
+    """
+    n = x.size
+    _assign(w.b, w.b_prev)
+    _assign(w.c, w.c_prev)
+    block_mv(blk, 1, w.a, w.g0a)        # G0 a over h and h / 2: fixed through the iterations
+    block_mv(blk_m, 1, w.a, w.g0a_m)
+    _with_g0a(blk, w.g0a, w.b, w.c, w.z1)
+    _with_g0a(blk_m, w.g0a_m, w.b, w.c, w.zm)
+    _forcing_at(s.f_values, s.f_step, t + h, w.u1)
+    _forcing_at(s.f_values, s.f_step, t + 0.5 * h, w.um)
+    converged = False
+    change_prev = math.inf
+    n_rhs = 0
+    # the error the first iteration leaves is estimated with the contraction of earlier segments (1 at the
+    # start of a call: no estimate yet), raised to the power 0.8 per try so that it drifts back towards 1
+    eta = max(eta, 1e-16) ** 0.8
+    iters = 0
+    for iters in range(1, 31):
+        for i in range(n):
+            w.xe[i] = x[i] + w.z1[i]
+        _rates(w.xe, w.u1, s, w.f1)
+        for i in range(n):
+            w.xe[i] = x[i] + w.zm[i]
+        _rates(w.xe, w.um, s, w.fm)
+        n_rhs += 2
+        matvec(jac, w.z1, w.r1)
+        matvec(jac, w.zm, w.rm)
+        for i in range(n):
+            w.r1[i] = w.f1[i] - w.r1[i]
+            w.rm[i] = w.fm[i] - w.rm[i]
+            # the quadratic through r(0) = a, r(h/2) = rm, r(h) = r1
+            w.b[i] = (4.0 * w.rm[i] - w.r1[i] - 3.0 * w.a[i]) / h
+            w.c[i] = 2.0 * (w.r1[i] - 2.0 * w.rm[i] + w.a[i]) / (h * h)
+        if iters >= 2 and h > 1.0 and _largest(w.c) * h * h * h / 6.0 > 8.0 * tol:
+            break
+        _with_g0a(blk, w.g0a, w.b, w.c, w.z1n)
+        _with_g0a(blk_m, w.g0a_m, w.b, w.c, w.zmn)
+        change = max(_max_change(w.z1n, w.z1), _max_change(w.zmn, w.zm))
+        # theta = change / change_prev, eta = theta / (1 - theta): the error left is about eta change
+        if iters >= 2:
+            theta = change / change_prev
+            eta = theta / (1.0 - theta) if theta < 1.0 else 1.0
+        if change < tol_iter or eta * change < tol_iter:
+            converged = True
+            # the rates were taken at the previous iterate: carry them to the accepted one by the linear model
+            # (the next segment starts from f1; only the middle's book rates are used)
+            _shift_rates(jac, jac_b, w.z1n, w.z1, w.f1, w.r1, True)
+            _shift_rates(jac, jac_b, w.zmn, w.zm, w.fm, w.rm, False)
+        _assign(w.z1, w.z1n)
+        _assign(w.zm, w.zmn)
+        if converged:
+            break
+        change_prev = change
+        if not change < 1e6:
+            break
+    return converged, iters, eta, n_rhs
+
+
+@nb.njit(cache=True, _nrt=False)
+def _largest(c):
+    """max |c_i|: with it, the error a remainder linear between the ends would leave (it misses the middle by
+    c h^2 / 4, about (2/3) h |c| h^2 / 4 = |c| h^3 / 6 in the nodes; the quadratic taken errs far less)."""
+    err = 0.0
+    for i in range(c.size):
+        err = max(err, abs(c[i]))
+    return err
+
+
+@nb.njit(cache=True)
+def _segment(w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta, first_after_switch):
+    """The segment from t: tried at length h and halved until its fixed point converges within the error
+    check (:func:`_fixed_point`, :func:`_largest`).
+
+    Returns (accepted, h, iterations, eta, j_pref, first_after_switch, rejected tries, right-hand sides):
+    accepted False when even half a second would not converge. ``j_pref`` indexes the preferred length
+    segment / 2^j: twice as long next when well inside the tolerance (error ~ h^3), halved with each rejection.
+    """
+    jac, jac_b, _, store, lens, meta, cnt, _, _, _ = lin
+    n_rej, n_rhs, iters = 0, 0, 0
+    while True:
+        blk = store[_lookup(h, lens, store, cnt, jac, s0, chain_)]
+        blk_m = store[_lookup(0.5 * h, lens, store, cnt, jac, s0, chain_)]
+        converged, iters, eta, nr = _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta)
+        n_rhs += nr
+        if not converged and h < 0.5:
+            return False, h, iters, eta, j_pref, first_after_switch, n_rej, n_rhs
+        if converged:
+            err = _largest(w.c)
+            err *= h * h * h / 6.0
+            if err <= tol or h <= 1.0:
+                # the error this curvature gives over the preferred length: a segment cut short (by the grid
+                # after a switch, a weather sample or the end) errs less by (h / h_pref)^3 and on its own
+                # would let the next segment double too soon
+                h_pref = segment / 2.0**j_pref
+                err_pref = err * (h_pref / h) ** 3 if h < h_pref else err
+                if first_after_switch:
+                    # where the next switch into this state starts: this spacing, twice it when it was the
+                    # first try and far inside the tolerance (a start that is too long costs rejected segments,
+                    # one too short a few more segments)
+                    grow = n_rej == 0 and err_pref < tol / 512.0
+                    meta[4] = h_pref * (2.0 if grow else 1.0)
+                    first_after_switch = False
+                if err_pref < 0.125 * tol and j_pref > 0:
+                    j_pref -= 1
+                return True, h, iters, eta, j_pref, first_after_switch, n_rej, n_rhs
+        n_rej += 1
+        h = 0.5 * h
+        while segment / 2.0**j_pref > h + 1e-9 and j_pref < 40:
+            j_pref += 1
+
+
+@nb.njit(cache=True, _nrt=False)
+def _book_remainder(w, jac_b, h, n):
+    """The books' rates f_b(x0) + J_b z + r_b(s): the same quadratic remainder r_b = f0 + bb s + cb s^2
+    through their true values at the segment's start, middle and end."""
+    matvec(jac_b, w.z1, w.bb)
+    matvec(jac_b, w.zm, w.cb)
+    for i in range(w.bb.size):
+        rb1 = w.f1[n + i] - w.bb[i]
+        rbm = w.fm[n + i] - w.cb[i]
+        w.bb[i] = (4.0 * rbm - rb1 - 3.0 * w.f0[n + i]) / h
+        w.cb[i] = 2.0 * (rb1 - 2.0 * rbm + w.f0[n + i]) / (h * h)
+
+
+@nb.njit(cache=True)
+def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, out_y, i_sensor, level,
+            direction):
+    """The outputs and the sensor checks on the check grid inside (t, t + h], from the segment's exact
+    solution. A check step from sigma by q_step costs two matrix-vector products: z(sigma + q) = Phi z + P0 +
+    sigma P1 + sigma^2 P2 and J_b int z grows by K z + R0 + sigma R1 + sigma^2 R2 (the remainder
+    r(sigma) = a + b sigma + c sigma^2 expanded; P, R per segment, K = J_b G0(q) per linearisation).
+
+    Returns (status, crossed, sigma, step, k): status OFF_GRID when an output instant is off the check grid;
+    when the sensor reached its level within the check step from sigma, crossed is True (w.zs and w.yb hold
+    the state and the books' increment at sigma); else the outputs up to t + h are written.
+    """
+    jac, jac_b, _, store, lens, _, cnt, _, _, k_q = lin
+    n, nb_ = x.size, books.size
+    first = origin + (math.floor((t - origin) / q_step + 1e-9) + 1.0) * q_step - t
+    i_q = _lookup(q_step, lens, store, cnt, jac, s0, chain_)
+    blk_q = store[i_q]
+    if i_q != cnt[1]:
+        matmul(jac_b, blk_q[1], k_q)  # K = J_b G0(q)
+        cnt[1] = i_q
+    expanded = first + q_step < h - 1e-6
+    if expanded:
+        _expanded(blk_q, w.a, w.b, w.c, w.p0, w.p1, w.p2, w.q0, w.q1, w.q2)
+        matvec(jac_b, w.q0, w.r0)
+        matvec(jac_b, w.q1, w.r1b)
+        matvec(jac_b, w.q2, w.r2)
+    sigma = 0.0
+    _zero(w.zs)
+    _zero(w.yb)
+    g_prev = (x[i_sensor] - level) * direction
+    step = 0.0
+    last = False
+    n_out = out_t.size
+    while not last:
+        step = first if sigma == 0.0 else q_step
+        if sigma + step >= h - 1e-6:
+            step = h - sigma
+            last = True
+        _check_step(w, blk, blk_q, store, lens, cnt, jac, jac_b, k_q, s0, chain_, sigma, step, last,
+                    expanded and abs(step - q_step) < 1e-9, n, nb_)
+        s_new = sigma + step
+        if direction != 0:
+            g_new = (x[i_sensor] + w.zt[i_sensor] - level) * direction
+            if g_prev < 0.0 <= g_new:
+                return DONE, True, sigma, step, k
+            g_prev = g_new
+        now = t + s_new
+        while k < n_out and out_t[k] <= now + 1e-6:
+            if abs(out_t[k] - now) > 1e-6:
+                return OFF_GRID, False, sigma, step, k
+            for i in range(n):
+                out_y[i, k] = x[i] + w.zt[i]
+            for i in range(nb_):
+                out_y[n + i, k] = (books[i] + (w.f0[n + i] + (0.5 * w.bb[i] + w.cb[i] / 3.0 * s_new) * s_new) * s_new
+                                   + w.ybt[i])
+            k += 1
+        _assign(w.zs, w.zt)
+        _assign(w.yb, w.ybt)
+        sigma = s_new
+    return DONE, False, sigma, step, k
+
+
+@nb.njit(cache=True)
+def _check_step(w, blk, blk_q, store, lens, cnt, jac, jac_b, k_q, s0, chain_, sigma, step, last, on_grid, n,
+                nb_):
+    """The state w.zt and the books' increment w.ybt after a check step of length ``step`` from sigma (from
+    w.zs, w.yb): by the expansion for a full check step on the grid (:func:`_checks`), straight from the
+    segment's blocks at its end, or from the step's own blocks for the first step to the grid."""
+    if on_grid:
+        # (at sigma = 0, z = 0: z = P0, J_b int z = R0); the segment's end keeps z1 itself
+        if sigma == 0.0:
+            _assign(w.zt, w.p0)
+            _assign(w.ybt, w.r0)
+        else:
+            if last:
+                _assign(w.zt, w.z1)
+            else:
+                block_mv(blk_q, 0, w.zs, w.zt)
+            matvec(k_q, w.zs, w.ybt)
+            s2 = sigma * sigma
+            if not last:
+                for i in range(n):
+                    w.zt[i] += w.p0[i] + sigma * w.p1[i] + s2 * w.p2[i]
+            for i in range(nb_):
+                w.ybt[i] += w.yb[i] + w.r0[i] + sigma * w.r1b[i] + s2 * w.r2[i]
+    elif last:
+        # the segment's end: straight from the h blocks (int z = G1 a + G2 b + 2 G3 c)
+        _assign(w.zt, w.z1)
+        block_mv(blk, 2, w.a, w.it_)
+        block_mv_add(blk, 3, w.b, 1.0, w.it_)
+        block_mv_add(blk, 4, w.c, 2.0, w.it_)
+        matvec(jac_b, w.it_, w.ybt)
+    else:
+        # the first step (to the check grid) from z = 0: G0 a + G1 b + 2 G2 c, int G1 a + G2 b + 2 G3 c
+        blk_f = store[_lookup(step, lens, store, cnt, jac, s0, chain_)]
+        _from_start(blk_f, w.a, w.b, w.c, w.zt)
+        block_mv(blk_f, 2, w.a, w.it_)
+        block_mv_add(blk_f, 3, w.b, 1.0, w.it_)
+        block_mv_add(blk_f, 4, w.c, 2.0, w.it_)
+        matvec(jac_b, w.it_, w.ybt)
+
+
+@nb.njit(cache=True)
+def _locate(w, x, jac, chain_, s0, levels, sigma, step, i_sensor, level, direction):
+    """The crossing in (sigma, sigma + step], w.zs the state at sigma. Binary descent on the doubling chain:
+    from the longest link that fits down to the base step, step on by a link when the sensor stays short of its
+    level at the link's end (so the bracket's lower end moves up and the crossing stays in it), then the root of
+    a cubic Hermite interpolant of the sensor's exact values and slopes in the last base step, and the state
+    there by the Taylor series. Returns the crossing's sigma; w.zt holds the state there and w.zi the integral
+    of z from the first sigma on."""
+    n = x.size
+    s_hi = sigma + step
+    _zero(w.zi)
+    g_lo = (x[i_sensor] + w.zs[i_sensor] - level) * direction
+    lev = levels
+    while lev > 0 and s0 * 2.0**lev > step + 1e-9:
+        lev -= 1
+    while lev >= 1:
+        hl = s0 * 2.0**lev
+        if sigma + hl < s_hi - 1e-9:
+            _remainder_at(w, sigma, n)
+            _step_on(chain_[lev], w.zs, w.zi, w.v0, w.v1, w.c, w.zt, w.it_)
+            g_hi = (x[i_sensor] + w.zt[i_sensor] - level) * direction
+            if g_hi < 0.0:
+                _assign(w.zs, w.zt)
+                _assign(w.zi, w.it_)
+                g_lo = g_hi
+                sigma += hl
+        lev -= 1
+    base = chain_[0]
+    while True:
+        hs = min(s0, s_hi - sigma)
+        if abs(hs - s0) < 1e-12:
+            sb = base
+        else:
+            taylor(jac, hs, w.sub)
+            sb = w.sub
+        _remainder_at(w, sigma, n)
+        _step_on(sb, w.zs, w.zi, w.v0, w.v1, w.c, w.zt, w.it_)
+        g_hi = (x[i_sensor] + w.zt[i_sensor] - level) * direction
+        if g_hi >= 0.0 or sigma + hs >= s_hi - 1e-9:
+            # slopes from the model: z' = J z + r(s)
+            s_end = sigma + hs
+            d_lo = w.v0[i_sensor]
+            d_hi = w.a[i_sensor] + (w.b[i_sensor] + w.c[i_sensor] * s_end) * s_end
+            for j in range(n):
+                d_lo += jac[i_sensor, j] * w.zs[j]
+                d_hi += jac[i_sensor, j] * w.zt[j]
+            theta = _cubic_root(g_lo, d_lo * direction, max(g_hi, 0.0), d_hi * direction, hs)
+            delta = theta * hs
+            _taylor_state(jac, w.zs, w.v0, w.v1, w.c, delta, w.zt, w.tmp)
+            for i in range(n):
+                w.zi[i] += w.tmp[i]
+            return sigma + delta
+        _assign(w.zi, w.it_)
+        _assign(w.zs, w.zt)
+        g_lo = g_hi
+        sigma += hs
+
+
+@nb.njit(cache=True, _nrt=False)
+def _remainder_at(w, sigma, n):
+    """v0 = r(sigma) and v1 = r'(sigma) of the remainder a + b s + c s^2."""
+    for i in range(n):
+        w.v0[i] = w.a[i] + (w.b[i] + w.c[i] * sigma) * sigma
+        w.v1[i] = w.b[i] + 2.0 * w.c[i] * sigma
+
+
 @nb.njit(cache=True)
 def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, ints, heat,
             f_values, f_step, out_t, k, out_y, i_sensor, level, direction, tol, tol_iter, drift, age,
@@ -334,73 +719,23 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     t_end, SWITCH at a located crossing (t its instant), OFF_GRID when an output instant does not fall on
     the check grid, FAILED when a segment's end does not converge even at half a second.
     """
-    n = x.size
-    nb_ = books.size
-    n_tot = n + nb_
-    n_u = f_values.shape[0]
-    u0 = np.empty(n_u)
-    u1 = np.empty(n_u)
-    um = np.empty(n_u)
-    f0 = np.empty(n_tot)
-    f1 = np.empty(n_tot)
-    fm = np.empty(n_tot)
-    jac, jac_b, links, store, lens, meta, cnt, x_lin, air_lin, k_q = lin
-    a = np.empty(n)
-    b = np.zeros(n)
-    c = np.zeros(n)
-    b_prev = np.zeros(n)
-    c_prev = np.zeros(n)
-    z1 = np.empty(n)
-    zm = np.empty(n)
-    g0a = np.empty(n)
-    g0a_m = np.empty(n)
-    z1n = np.empty(n)
-    zmn = np.empty(n)
-    xe = np.empty(n)
-    rm = np.empty(n)
-    r1 = np.empty(n)
-    bb = np.empty(nb_)
-    cb = np.empty(nb_)
-    zs = np.empty(n)
-    zi = np.empty(n)
-    zt = np.empty(n)
-    it_ = np.empty(n)
-    v0 = np.empty(n)
-    v1 = np.empty(n)
-    tmp = np.empty(n)
-    yb = np.empty(nb_)
-    ybt = np.empty(nb_)
-    p0 = np.empty(n)
-    p1 = np.empty(n)
-    p2 = np.empty(n)
-    q0 = np.empty(n)
-    q1 = np.empty(n)
-    q2 = np.empty(n)
-    r0 = np.empty(nb_)
-    r1b = np.empty(nb_)
-    r2 = np.empty(nb_)
-    sub = np.empty((BLOCKS, n, n))
-    n_rhs = 0
-    n_jac = 0
-    n_rej = 0
-    n_seg = 0
-    n_out = out_t.size
-
-    if k < n_out and abs(out_t[k] - t) < 1e-6:
+    n, nb_ = x.size, books.size
+    s = _System(fan, air, prm, planes, ints, heat, f_values, f_step)
+    w = _work(n, nb_, f_values.shape[0])
+    jac, jac_b, links, _, _, meta, cnt, x_lin, air_lin, _ = lin
+    n_rhs, n_jac, n_rej, n_seg = 0, 0, 0, 0
+    if k < out_t.size and abs(out_t[k] - t) < 1e-6:
         out_y[:n, k] = x
         out_y[n:, k] = books
         k += 1
-    _forcing_at(f_values, f_step, t, u0)
-    kernel.rhs(x, u0, fan, air, prm, planes, ints, heat, f0)
+    _forcing_at(f_values, f_step, t, w.u0)
+    _rates(x, w.u0, s, w.f0)
     n_rhs += 1
     if not (meta[0] > 0.0 and _max_change(x, x_lin) <= drift and t - meta[3] <= age and _air_close(air, air_lin)):
-        _relinearise(x, u0, t, fan, air, prm, planes, ints, heat, f0, lin, q_step, unit_halvings, segment)
+        _relinearise(x, w.u0, t, fan, air, prm, planes, ints, heat, w.f0, lin, q_step, unit_halvings, segment)
         n_rhs += n
         n_jac += 1
-    s0 = meta[1]
-    chain_ = links[:int(meta[2]) + 1]
     j_pref = 0
-    iters = 0
     if after_switch:
         # the state moves fast after a switch: start at the spacing remembered from the previous switch into
         # this fan state (about two check steps the first time), and let the segments grow
@@ -408,301 +743,83 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
         while segment / 2.0**j_pref > start and j_pref < 40:
             j_pref += 1
     first_after_switch = after_switch
-    err = 0.0
     eta = 1.0
-
+    iters = 0
     while t < t_end - 1e-9:
         # renew the linearisation when the nodes have moved or it is old
         if _max_change(x, x_lin) > drift or t - meta[3] > age or iters > slow_iters:
-            _relinearise(x, u0, t, fan, air, prm, planes, ints, heat, f0, lin, q_step, unit_halvings, segment)
+            _relinearise(x, w.u0, t, fan, air, prm, planes, ints, heat, w.f0, lin, q_step, unit_halvings, segment)
             n_rhs += n
             n_jac += 1
-            s0 = meta[1]
-            chain_ = links[:int(meta[2]) + 1]
         if cnt[0] > _CACHE - 28:
             cnt[0] = 0  # full: start over (a segment, halved down to 1 s, needs at most 26 entries)
             cnt[1] = -1
-        # segment end: the next instant of the grid of the preferred length (segment / 2^j, nested in the
-        # segment grid, so that lengths repeat and their blocks come from the cache), a weather sample or
-        # the end
-        h_pref = segment / 2.0**j_pref
-        t_pref = origin + (math.floor((t - origin) / h_pref + 1e-9) + 1.0) * h_pref
-        t_w = (math.floor(t / f_step + 1e-9) + 1.0) * f_step
-        h = min(t_pref, t_w, t_end) - t
-        _assign(a, f0)
-        if n_seg > 0 and _slope_jump(f_values, f_step, t, u0, um):
+        s0, chain_ = meta[1], links[:int(meta[2]) + 1]
+        h = _segment_length(t, t_end, origin, segment, j_pref, f_step)
+        _assign(w.a, w.f0)
+        if n_seg > 0 and _slope_jump(f_values, f_step, t, w.u0, w.um):
             # at a weather sample the forcing's slope changes, and the remainder's slope with it by
             # df/du (u'_after - u'_before): one directional difference over KINK_SPAN carries the prediction
             # across the kink (a prediction only: the fixed point still matches the true rates)
-            kernel.rhs(x, um, fan, air, prm, planes, ints, heat, fm)
+            _rates(x, w.um, s, w.fm)
             n_rhs += 1
             for i in range(n):
-                b_prev[i] += (fm[i] - f0[i]) / KINK_SPAN
-        # --- the segment: fixed point for the remainder's b and c (true values at its middle and end), then
-        # the error check; halved until accepted
-        while True:
-            blk = store[_lookup(h, lens, store, cnt, jac, s0, chain_)]
-            blk_m = store[_lookup(0.5 * h, lens, store, cnt, jac, s0, chain_)]
-            _assign(b, b_prev)
-            _assign(c, c_prev)
-            block_mv(blk, 1, a, g0a)        # G0 a over h and h / 2: fixed through the iterations
-            block_mv(blk_m, 1, a, g0a_m)
-            _with_g0a(blk, g0a, b, c, z1)
-            _with_g0a(blk_m, g0a_m, b, c, zm)
-            _forcing_at(f_values, f_step, t + h, u1)
-            _forcing_at(f_values, f_step, t + 0.5 * h, um)
-            converged = False
-            change_prev = math.inf
-            # the error the first iteration leaves is estimated with the contraction of earlier segments
-            # (1 at the start of a call: no estimate yet)
-            eta = max(eta, 1e-16) ** 0.8
-            for iters in range(1, 31):
-                for i in range(n):
-                    xe[i] = x[i] + z1[i]
-                kernel.rhs(xe, u1, fan, air, prm, planes, ints, heat, f1)
-                for i in range(n):
-                    xe[i] = x[i] + zm[i]
-                kernel.rhs(xe, um, fan, air, prm, planes, ints, heat, fm)
-                n_rhs += 2
-                matvec(jac, z1, r1)
-                matvec(jac, zm, rm)
-                for i in range(n):
-                    r1[i] = f1[i] - r1[i]
-                    rm[i] = fm[i] - rm[i]
-                    # the quadratic through r(0) = a, r(h/2) = rm, r(h) = r1
-                    b[i] = (4.0 * rm[i] - r1[i] - 3.0 * a[i]) / h
-                    c[i] = 2.0 * (r1[i] - 2.0 * rm[i] + a[i]) / (h * h)
-                if iters >= 2 and h > 1.0:
-                    # far outside the tolerance already: halve without converging (rejection is sure
-                    # enough, and a segment too long also converges slowly)
-                    err = 0.0
-                    for i in range(n):
-                        err = max(err, abs(c[i]))
-                    if err * h * h * h / 6.0 > 8.0 * tol:
-                        break
-                _with_g0a(blk, g0a, b, c, z1n)
-                _with_g0a(blk_m, g0a_m, b, c, zmn)
-                change = max(_max_change(z1n, z1), _max_change(zmn, zm))
-                # converged when the change, or the error left estimated from the contraction rate
-                # theta = change / change_prev, eta change with eta = theta / (1 - theta), is below tol_iter;
-                # at the first iteration eta is the last one measured, raised to the power 0.8 per try of a
-                # segment so that it drifts back towards 1 until measured again (the stopping rule of simplified Newton
-                # iterations and its carried rate, Hairer & Wanner, Solving ODEs II, sect. IV.8; from memory)
-                if iters >= 2:
-                    theta = change / change_prev
-                    eta = theta / (1.0 - theta) if theta < 1.0 else 1.0
-                if change < tol_iter or eta * change < tol_iter:
-                    converged = True
-                    # the rates were taken at the previous iterate: carry them to the accepted one by the
-                    # linear model (the next segment starts from f1)
-                    _shift_rates(jac, jac_b, z1n, z1, f1, r1, True)
-                    _shift_rates(jac, jac_b, zmn, zm, fm, rm, False)  # (only the middle's book rates are used)
-                _assign(z1, z1n)
-                _assign(zm, zmn)
-                if converged:
-                    break
-                change_prev = change
-                if not change < 1e6:
-                    break
-            if not converged and h < 0.5:
-                return FAILED, t, k, n_rhs, n_jac, n_rej, n_seg
-            if converged:
-                # error check: a remainder linear between the ends would miss the middle by c h^2 / 4, an
-                # error of about (2/3) h |c| h^2 / 4 in the nodes; the quadratic taken here errs far less
-                err = 0.0
-                for i in range(n):
-                    err = max(err, abs(c[i]))
-                err *= h * h * h / 6.0
-                if err <= tol or h <= 1.0:
-                    n_seg += 1
-                    # the error this curvature gives over the preferred length: a segment cut short (by the
-                    # grid after a switch, a weather sample or the end) errs less by (h / h_pref)^3 and on
-                    # its own would let the next segment double too soon
-                    h_pref = segment / 2.0**j_pref
-                    err_pref = err * (h_pref / h) ** 3 if h < h_pref else err
-                    if first_after_switch:
-                        # where the next switch into this state starts: this spacing, twice it when it was
-                        # the first try and far inside the tolerance (a start that is too long costs rejected
-                        # segments, one too short a few more segments)
-                        grow = n_rej == 0 and err_pref < tol / 512.0
-                        meta[4] = h_pref * (2.0 if grow else 1.0)
-                        first_after_switch = False
-                    # next: twice as long when well inside the tolerance (error ~ h^3)
-                    if err_pref < 0.125 * tol and j_pref > 0:
-                        j_pref -= 1
-                    break
-            n_rej += 1
-            h = 0.5 * h
-            while segment / 2.0**j_pref > h + 1e-9 and j_pref < 40:
-                j_pref += 1
-        # the books' rates: the same quadratic remainder through their values at the start, middle and end
-        matvec(jac_b, z1, bb)
-        matvec(jac_b, zm, cb)
-        for i in range(nb_):
-            rb1 = f1[n + i] - bb[i]
-            rbm = fm[n + i] - cb[i]
-            bb[i] = (4.0 * rbm - rb1 - 3.0 * f0[n + i]) / h
-            cb[i] = 2.0 * (rb1 - 2.0 * rbm + f0[n + i]) / (h * h)
-        # --- outputs and sensor checks on the check grid inside (t, t + h]. Steps of q_step from sigma:
-        # z(sigma + q) = Phi z + P0 + sigma P1 + sigma^2 P2 and J_b int z grows by K z + R0 + sigma R1
-        # + sigma^2 R2 (the remainder r(sigma) = a + b sigma + c sigma^2 expanded; P, R per segment, K per
-        # linearisation), so that an output instant costs two matrix-vector products.
-        first = origin + (math.floor((t - origin) / q_step + 1e-9) + 1.0) * q_step - t
-        i_q = _lookup(q_step, lens, store, cnt, jac, s0, chain_)
-        blk_q = store[i_q]
-        if i_q != cnt[1]:
-            matmul(jac_b, blk_q[1], k_q)  # K = J_b G0(q)
-            cnt[1] = i_q
-        expanded = first + q_step < h - 1e-6
-        if expanded:
-            _expanded(blk_q, a, b, c, p0, p1, p2, q0, q1, q2)
-            matvec(jac_b, q0, r0)
-            matvec(jac_b, q1, r1b)
-            matvec(jac_b, q2, r2)
-        sigma = 0.0
-        _zero(zs)
-        _zero(yb)
-        g_prev = (x[i_sensor] - level) * direction
-        crossed = False
-        step = 0.0
-        last = False
-        while not last:
-            step = first if sigma == 0.0 else q_step
-            if sigma + step >= h - 1e-6:
-                step = h - sigma
-                last = True
-            if expanded and abs(step - q_step) < 1e-9:
-                # a check step from sigma by the expansion (at sigma = 0, z = 0: z = P0, J_b int z = R0); the
-                # segment's end keeps z1 itself
-                if sigma == 0.0:
-                    _assign(zt, p0)
-                    _assign(ybt, r0)
-                else:
-                    if last:
-                        _assign(zt, z1)
-                    else:
-                        block_mv(blk_q, 0, zs, zt)
-                    matvec(k_q, zs, ybt)
-                    s2 = sigma * sigma
-                    if not last:
-                        for i in range(n):
-                            zt[i] += p0[i] + sigma * p1[i] + s2 * p2[i]
-                    for i in range(nb_):
-                        ybt[i] += yb[i] + r0[i] + sigma * r1b[i] + s2 * r2[i]
-            elif last:
-                # the segment's end: straight from the h blocks (int z = G1 a + G2 b + 2 G3 c)
-                _assign(zt, z1)
-                block_mv(blk, 2, a, it_)
-                block_mv_add(blk, 3, b, 1.0, it_)
-                block_mv_add(blk, 4, c, 2.0, it_)
-                matvec(jac_b, it_, ybt)
-            else:
-                # the first step (to the check grid) from z = 0: G0 a + G1 b + 2 G2 c, int G1 a + G2 b + 2 G3 c
-                blk_f = store[_lookup(step, lens, store, cnt, jac, s0, chain_)]
-                _from_start(blk_f, a, b, c, zt)
-                block_mv(blk_f, 2, a, it_)
-                block_mv_add(blk_f, 3, b, 1.0, it_)
-                block_mv_add(blk_f, 4, c, 2.0, it_)
-                matvec(jac_b, it_, ybt)
-            s_new = sigma + step
-            if direction != 0:
-                g_new = (x[i_sensor] + zt[i_sensor] - level) * direction
-                if g_prev < 0.0 <= g_new:
-                    crossed = True
-                    break
-                g_prev = g_new
-            now = t + s_new
-            while k < n_out and out_t[k] <= now + 1e-6:
-                if abs(out_t[k] - now) > 1e-6:
-                    return OFF_GRID, t, k, n_rhs, n_jac, n_rej, n_seg
-                for i in range(n):
-                    out_y[i, k] = x[i] + zt[i]
-                for i in range(nb_):
-                    out_y[n + i, k] = (books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * s_new) * s_new) * s_new
-                                       + ybt[i])
-                k += 1
-            _assign(zs, zt)
-            _assign(yb, ybt)
-            sigma = s_new
+                w.b_prev[i] += (w.fm[i] - w.f0[i]) / KINK_SPAN
+        ok, h, iters, eta, j_pref, first_after_switch, rejected, nr = _segment(
+            w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta, first_after_switch)
+        n_rhs += nr
+        n_rej += rejected
+        if not ok:
+            return FAILED, t, k, n_rhs, n_jac, n_rej, n_seg
+        n_seg += 1
+        blk = _blocks_over(lin, h, s0, chain_)
+        _book_remainder(w, jac_b, h, n)
+        status, crossed, sigma, step, k = _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t,
+                                                  k, out_y, i_sensor, level, direction)
+        if status == OFF_GRID:
+            return OFF_GRID, t, k, n_rhs, n_jac, n_rej, n_seg
         if not crossed:
             for i in range(nb_):
-                books[i] = books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * h) * h) * h + ybt[i]
+                books[i] = books[i] + (w.f0[n + i] + (0.5 * w.bb[i] + w.cb[i] / 3.0 * h) * h) * h + w.ybt[i]
             for i in range(n):
-                x[i] += z1[i]
+                x[i] += w.z1[i]
             t = t + h
-            _assign(f0, f1)
-            _assign(u0, u1)
+            _assign(w.f0, w.f1)
+            _assign(w.u0, w.u1)
             for i in range(n):
-                b_prev[i] = b[i] + 2.0 * c[i] * h   # the remainder's slope and curvature carried on
-                c_prev[i] = c[i]
+                w.b_prev[i] = w.b[i] + 2.0 * w.c[i] * h   # the remainder's slope and curvature carried on
+                w.c_prev[i] = w.c[i]
             continue
-        # --- locate the crossing in (sigma, sigma + step]. Binary descent on the doubling chain: from the
-        # longest link that fits down to the base step, step on by a link when the sensor stays short of its
-        # level at the link's end (so the bracket's lower end moves up and the crossing stays in the
-        # bracket), then a cubic Hermite root in the last base step. int z is kept from sigma on (the
-        # books' part up to sigma is yb).
-        s_hi = sigma + step
-        _zero(zi)
-        g_lo = (x[i_sensor] + zs[i_sensor] - level) * direction
-        lev = int(meta[2])
-        while lev > 0 and s0 * 2.0**lev > step + 1e-9:
-            lev -= 1
-        while lev >= 1:
-            hl = s0 * 2.0**lev
-            if sigma + hl < s_hi - 1e-9:
-                for i in range(n):
-                    v0[i] = a[i] + (b[i] + c[i] * sigma) * sigma
-                    v1[i] = b[i] + 2.0 * c[i] * sigma
-                _step_on(chain_[lev], zs, zi, v0, v1, c, zt, it_)
-                g_hi = (x[i_sensor] + zt[i_sensor] - level) * direction
-                if g_hi < 0.0:
-                    _assign(zs, zt)
-                    _assign(zi, it_)
-                    g_lo = g_hi
-                    sigma += hl
-            lev -= 1
-        base = chain_[0]
-        while True:
-            hs = min(s0, s_hi - sigma)
-            if abs(hs - s0) < 1e-12:
-                sb = base
-            else:
-                taylor(jac, hs, sub)
-                sb = sub
-            for i in range(n):
-                v0[i] = a[i] + (b[i] + c[i] * sigma) * sigma
-                v1[i] = b[i] + 2.0 * c[i] * sigma
-            _step_on(sb, zs, zi, v0, v1, c, zt, it_)
-            g_hi = (x[i_sensor] + zt[i_sensor] - level) * direction
-            if g_hi >= 0.0 or sigma + hs >= s_hi - 1e-9:
-                # slopes from the model: z' = J z + r(s)
-                s_end = sigma + hs
-                d_lo = v0[i_sensor]
-                d_hi = a[i_sensor] + (b[i_sensor] + c[i_sensor] * s_end) * s_end
-                for j in range(n):
-                    d_lo += jac[i_sensor, j] * zs[j]
-                    d_hi += jac[i_sensor, j] * zt[j]
-                theta = _cubic_root(g_lo, d_lo * direction, max(g_hi, 0.0), d_hi * direction, hs)
-                delta = theta * hs
-                _taylor_state(jac, zs, v0, v1, c, delta, zt, tmp)
-                for i in range(n):
-                    zi[i] += tmp[i]
-                sigma += delta
-                break
-            _assign(zi, it_)
-            _assign(zs, zt)
-            g_lo = g_hi
-            sigma += hs
+        sigma = _locate(w, x, jac, chain_, s0, int(meta[2]), sigma, step, i_sensor, level, direction)
+        # the books to the crossing: up to the check step (yb) and over its part (J_b int z)
         for i in range(nb_):
             acc = 0.0
             for j in range(n):
-                acc += jac_b[i, j] * zi[j]
-            books[i] = (books[i] + (f0[n + i] + (0.5 * bb[i] + cb[i] / 3.0 * sigma) * sigma) * sigma + yb[i]
-                        + acc)
+                acc += jac_b[i, j] * w.zi[j]
+            books[i] = (books[i] + (w.f0[n + i] + (0.5 * w.bb[i] + w.cb[i] / 3.0 * sigma) * sigma) * sigma
+                        + w.yb[i] + acc)
         for i in range(n):
-            x[i] += zt[i]
+            x[i] += w.zt[i]
         return SWITCH, t + sigma, k, n_rhs, n_jac, n_rej, n_seg
     return DONE, t, k, n_rhs, n_jac, n_rej, n_seg
+
+
+@nb.njit(cache=True)
+def _blocks_over(lin, h, s0, chain_):
+    """The blocks over h from the linearisation's cache (computed when missing)."""
+    jac, _, _, store, lens, _, cnt, _, _, _ = lin
+    return store[_lookup(h, lens, store, cnt, jac, s0, chain_)]
+
+
+@nb.njit(cache=True, _nrt=False)
+def _segment_length(t, t_end, origin, segment, j_pref, f_step):
+    """The next segment's length: to the next instant of the grid of the preferred length (segment / 2^j,
+    nested in the segment grid, so that lengths repeat and their blocks come from the cache), a weather
+    sample or the end."""
+    h_pref = segment / 2.0**j_pref
+    t_pref = origin + (math.floor((t - origin) / h_pref + 1e-9) + 1.0) * h_pref
+    t_w = (math.floor(t / f_step + 1e-9) + 1.0) * f_step
+    return min(t_pref, t_w, t_end) - t
 
 
 
