@@ -18,8 +18,8 @@ import pandas as pd
 
 from atticsim.forcing.build import build_forcing, period_bounds
 from atticsim.forcing.weather import load_weather
-from atticsim.network.model import BOOKS, FORCING_BASE, build_network
-from atticsim.hybrid.controller import controller_from_scenario
+from atticsim.assembly import build_network, controller_from_scenario
+from atticsim.network.model import BOOKS
 from atticsim.hybrid.driver import HybridRun, integrate
 
 DAY = 86400.0

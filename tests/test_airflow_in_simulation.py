@@ -98,7 +98,7 @@ def test_ventilation_carries_each_flow_at_the_density_of_its_air():
     # the heat carried into the lower layer is c_p (rho_out Q_passive + rho_upper Q_fan) (T_out - T_lower)
     # (enthalpy flow, common practice), worked here by hand for one state.
     from atticsim import demo_scenario
-    from atticsim.network.model import build_network
+    from atticsim.assembly import build_network
 
     net = build_network(demo_scenario(["attic.air_layers=2"]))
     model = net.airflow

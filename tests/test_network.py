@@ -5,7 +5,8 @@ import pytest
 from scipy.optimize import brentq
 
 from atticsim.forcing.build import Forcing, build_forcing
-from atticsim.network.model import BOOKS, build_network
+from atticsim.network.model import BOOKS
+from atticsim.assembly import build_network
 from atticsim.scenario import demo_scenario
 from atticsim.hybrid.driver import simulate_hybrid
 from atticsim.hybrid.reference import ReferenceStepper

@@ -10,7 +10,8 @@ import numpy as np
 import pytest
 
 from atticsim.network import kernel
-from atticsim.network.model import ATTIC_BOOKS, BOOKS, build_network
+from atticsim.network.model import ATTIC_BOOKS, BOOKS
+from atticsim.assembly import build_network
 from atticsim.network.placement import PLACEMENTS
 from atticsim.scenario import demo_scenario, load_scenario
 from atticsim.sensor.body import BODY_SHAPES, PRESETS

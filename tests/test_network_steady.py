@@ -14,7 +14,7 @@ sol-air temperature) with the inward path as one more resistance.
 
 import pytest
 
-from atticsim.network.model import build_network
+from atticsim.assembly import build_network
 from atticsim.validation.hand_network import hand_worked, quiet_house, steady_run
 
 

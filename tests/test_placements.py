@@ -9,10 +9,11 @@ from atticsim.forcing.build import build_forcing
 from atticsim.hybrid.controller import HeldFan
 from atticsim.hybrid.driver import simulate_hybrid
 from atticsim.hybrid.reference import ReferenceStepper
-from atticsim.network.model import BOOKS, build_network
+from atticsim.network.model import BOOKS
+from atticsim.assembly import build_network
 from atticsim.pipeline import run_raw
 from atticsim.results.metrics import build_result
-from atticsim.results.placements import placement_table, run_placements
+from atticsim.study.placements import placement_table, run_placements
 from atticsim.scenario import demo_scenario
 from atticsim.sensor.body import preset
 

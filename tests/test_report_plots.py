@@ -155,7 +155,7 @@ def test_daily_net_benefit_adds_up_with_the_conditioned_air_term():
 
 
 def test_placements_figure_one_colour_per_placement():
-    from atticsim.results.placements import run_placements
+    from atticsim.study.placements import run_placements
 
     sc = atticsim.demo_scenario(["simulation.spinup_days=1"])
     results = run_placements(sc, ["ridge", "intake"], start="2025-07-01", end="2025-07-01")

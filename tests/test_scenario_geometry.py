@@ -5,7 +5,7 @@ import math
 
 import pytest
 
-from atticsim.network.model import build_network
+from atticsim.assembly import build_network
 from atticsim.scenario import demo_scenario
 from atticsim.scenario.geometry import attic_geometry, section_share, volume_share_above
 

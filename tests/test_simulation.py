@@ -7,6 +7,7 @@ import pytest
 
 from atticsim.forcing.synthetic import DEMO_CLIMATES, synthetic_weather
 from atticsim.scenario import demo_scenario
+from atticsim.network.kernel import FORCING_BASE
 from atticsim.pipeline import run_raw, simulate
 
 
@@ -133,7 +134,7 @@ def test_reused_forcing_is_the_one_a_fresh_build_gives(clear_week):
     third = pipeline.run_raw(steeper, weather=clear_week, start="2025-07-15", end="2025-07-15",
                              include_no_fan=False, reuse_no_fan=True)
     assert third.forcing is not first.forcing and len(pipeline._FORCINGS) == 2
-    poa = len(pipeline.FORCING_BASE)  # the first plane's irradiance
+    poa = len(FORCING_BASE)  # the first plane's irradiance
     assert not np.array_equal(third.forcing.values[poa], first.forcing.values[poa])
 
 

@@ -6,6 +6,8 @@ from pathlib import Path
 
 import click
 
+from atticsim.network.placement import PLACEMENTS
+
 from atticsim.cli.options import (force_option, out_option, period_options, scenario_argument, set_option,
                                   units_option)
 
@@ -13,7 +15,7 @@ from atticsim.cli.options import (force_option, out_option, period_options, scen
 @click.command()
 @scenario_argument
 @out_option
-@click.option("--only", help="Comma list of placements (default all): ridge,mid,exhaust,intake,deck,board.")
+@click.option("--only", help="Comma list of placements (default all): " + ",".join(PLACEMENTS) + ".")
 @period_options[0]
 @period_options[1]
 @click.option("--months", help="Month range or season instead of dates.")
@@ -27,7 +29,7 @@ def placements(scenario, out, only, start, end, months, workers, overrides, unit
     from atticsim.report.cautions import caution_text
     from atticsim.report.plots import plot_placements
     from atticsim.results.output import check_output_dir, write_json, write_outputs
-    from atticsim.results.placements import placement_findings, placement_table, run_placements
+    from atticsim.study.placements import placement_findings, placement_table, run_placements
     from atticsim.scenario import load_scenario
 
     check_output_dir(Path(out), force)

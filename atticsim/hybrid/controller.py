@@ -212,20 +212,3 @@ class LoggedFan:
             self._skip_same()
             return "log"
         return None
-
-
-def controller_from_scenario(scenario) -> Controller:
-    """The controller a scenario's ``[thermostat]`` table describes: its switching points and its time rules
-    (the ``thermostat.*`` keys and the circuit's timer stage: ``Thermostat.time_rules``).
-
-    For a circuit thermostat the switching points are the circuit's exact thermistor temperatures
-    (node equations solved by :func:`atticsim.circuit.switching_temperatures`); the sensor node is the
-    thermistor, so self-heating is in the sensor's temperature, not in the thresholds.
-    """
-    th = scenario.thermostat
-    if th.kind == "circuit":
-        t = th.thresholds()
-        on, off = t.on_c, t.off_c
-    else:
-        on, off = th.on, th.off
-    return Controller(th.action, on, off, th.time_rules())

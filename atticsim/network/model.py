@@ -12,9 +12,9 @@ Nodes (temperatures in degC in the state vector):
 - ``sensor`` (the thermistor, a small mass coupled to its local air; kept out of the building's books).
 
 The heat flows themselves are written once, compiled, in :mod:`atticsim.network.kernel` (its module and
-function docstrings give each equation and source); this module holds the parameters a scenario gives them
-(:func:`build_network`) and evaluates the flows and derivatives over columns of states for the reference
-solver and the results.
+function docstrings give each equation and source); this module holds the parameters (a scenario gives them
+through :func:`atticsim.assembly.build_network`) and evaluates the flows and derivatives over columns of
+states for the reference solver and the results.
 
 The books integrate, as extra ODE states, the heat that crosses the boundary of the building nodes
 (solar, sky, ground, exterior convection, ventilation, ceiling gain to the rooms), the fan's electric
@@ -28,13 +28,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from atticsim.airflow.model import AirflowModel
-from atticsim.air import air_density
-from atticsim.constants import CP_AIR, P_STANDARD
-from atticsim.materials import INSULATION, WOOD_SPECIFIC_HEAT
+from atticsim.constants import P_STANDARD
 from atticsim.network import kernel
-from atticsim.network.heat_transfer import SURFACE_TEXTURE, gray_two_surface_factor, view_factors_tilted
-from atticsim.scenario.geometry import attic_geometry
 from atticsim.network.kernel import ATTIC_BOOKS, BOOKS, FLOWS, FORCING_BASE, PLANE_FLOWS  # noqa: F401
 
 #: Fields of AtticNetwork whose change leaves the packed parameters valid.
@@ -230,105 +225,3 @@ class AtticNetwork:
         out = np.empty((pk.n_out, x.shape[1]))
         kernel.rhs_columns(x, u, fan, a, pk.prm, pk.planes, pk.ints, pk.heat, out)
         return out
-
-
-def sensor_power(scenario):
-    """Power heating the sensor: the circuit's divider dissipation at the thermistor's temperature and the
-    comparator's state (exact node solution, atticsim.circuit), or the scenario's constant self_heating."""
-    th = scenario.thermostat
-    if th.kind == "circuit":
-        from atticsim.circuit import thermistor_power_function
-
-        return thermistor_power_function(th.circuit_params())
-    return scenario.sensor.self_heating
-
-
-def triac_loss(scenario) -> float:
-    """Heat the triac puts into the control box while the fan runs [W]: ``sensor.triac_loss`` if given,
-    else the circuit's mains-side figure (P = V_T0 I_avg + r_T I_rms^2, atticsim.circuit.mains), else
-    1.5 W (about 1 V across a triac carrying a 1.5 A fan; from memory)."""
-    if scenario.sensor.triac_loss is not None:
-        return scenario.sensor.triac_loss
-    th = scenario.thermostat
-    if th.kind == "circuit" and th.mains is not None:
-        from atticsim.circuit.mains import triac_conduction_loss
-
-        m = th.mains.mains_params()
-        return float(triac_conduction_loss(m.fan_current, m.triac_v_t0, m.triac_r_t))
-    return 1.5
-
-
-def build_network(scenario, pressure: float = P_STANDARD) -> AtticNetwork:
-    """Build the network's parameters from a validated scenario (see the module docstring)."""
-    roof, attic, ceiling = scenario.roof, scenario.attic, scenario.ceiling
-    planes = roof.planes
-    col = lambda values: np.asarray(values, dtype=float).reshape(-1, 1)  # noqa: E731
-    area = col([p.area for p in planes])
-    tilt = np.array([p.tilt for p in planes])
-    f_sky, f_ground = view_factors_tilted(tilt)
-    perimeter = col([p.perimeter if p.perimeter else 4.0 * np.sqrt(p.area) for p in planes])
-
-    def layer_capacity_and_r(layer):
-        thickness = layer.prop("thickness")
-        return (layer.prop("density") * layer.prop("specific_heat") * thickness,  # J/(m2 K)
-                thickness / layer.prop("conductivity"))  # m2K/W
-
-    cap_cov, r_cov = layer_capacity_and_r(roof.covering)
-    cap_sh, r_sh = layer_capacity_and_r(roof.sheathing)
-    cap_gyp, r_gyp = layer_capacity_and_r(ceiling.gypsum)
-    # Insulation depth that carries the R-value at the default conductivity sets its mass.
-    cap_ins = ceiling.insulation * INSULATION["conductivity"] * ceiling.insulation_density * INSULATION["specific_heat"]
-    total_area = float(area.sum())
-    floor_share = attic.floor_area * area / total_area
-    g = np.array([gray_two_surface_factor(fs, attic.floor_emittance, a, roof.underside_emittance)
-                  for fs, a in zip(floor_share.ravel(), area.ravel())]).reshape(-1, 1)
-    # Attic air capacity at 35 degC (rho ~1.146 kg/m3); its small change with temperature is ignored.
-    c_air = float(air_density(35.0, pressure)) * CP_AIR * attic.volume
-    sensor = scenario.sensor
-    air_nodes = ["air"] if attic.air_layers == 1 else ["air_lower", "air_upper"]
-    board = sensor.placement == "board"
-    names = ([f"cover_{p.name}" for p in planes] + [f"deck_{p.name}" for p in planes]
-             + air_nodes + ["framing", "ceiling_top", "gypsum"] + (["enclosure"] if board else []) + ["sensor"])
-    body = None
-    if sensor.body is not None:
-        from atticsim.sensor.body import preset
-
-        body = preset(sensor.body)
-    geometry = attic_geometry(scenario)
-    optics, _ = roof.optics()
-    openings = scenario.vents.openings
-    if openings:
-        layer_height = geometry.interface_height if attic.air_layers == 2 else 0.0
-        intake_area = sum(o.net_free_area for o in openings if o.height < layer_height or o.kind == "soffit")
-    else:
-        # Without described openings: the code minimum, half of 1/150 of the floor at the intakes
-        # (IRC 2018 R806.2 with the usual half-high, half-low split).
-        intake_area = attic.floor_area / 300.0
-    return AtticNetwork(
-        plane_names=[p.name for p in planes], area=area, cos_tilt=col(np.cos(np.radians(tilt))),
-        perimeter=perimeter, roughness=SURFACE_TEXTURE[optics["surface_texture"]],
-        absorptance=optics["absorptance"], emittance=optics["emittance"], f_sky=col(f_sky), f_ground=col(f_ground),
-        c_cover=cap_cov * area, c_deck=cap_sh * area,
-        u_cover_deck=np.full_like(area, 1.0 / (0.5 * r_cov + 0.5 * r_sh)),
-        r_outer=np.full_like(area, 0.5 * r_cov), r_inner=np.full_like(area, 0.5 * r_sh),
-        g_deck_floor=g, floor_area=attic.floor_area, c_air=c_air,
-        upper_fraction=geometry.upper_volume_share, upper_deck_share=geometry.upper_deck_share,
-        upper_framing_share=geometry.upper_framing_share, layers=attic.air_layers,
-        layer_mixing=attic.layer_mixing_ach * attic.volume / 3600.0, fan_mixing_ratio=attic.fan_mixing_ratio,
-        interface_area=geometry.interface_area, cross_section=geometry.cross_section,
-        flow_length=geometry.length,
-        framing_area=attic.framing_area, c_framing=attic.framing_mass * WOOD_SPECIFIC_HEAT,
-        c_ceiling_top=0.5 * cap_ins * attic.floor_area,
-        c_gypsum=(cap_gyp + 0.5 * cap_ins) * attic.floor_area,
-        r_insulation=ceiling.insulation + 0.5 * r_gyp, r_room=ceiling.room_film + 0.5 * r_gyp,
-        room_relative_humidity=scenario.house.indoor_relative_humidity,
-        airflow=AirflowModel(scenario, pressure),
-        placement=sensor.placement, sensor_body=body, sensor_conductance=sensor.dissipation_constant,
-        sensor_capacity=body.heat_capacity if body is not None else sensor.dissipation_constant * sensor.time_constant,
-        sensor_power=sensor_power(scenario), contact_conductance=sensor.contact_conductance,
-        fan_area=np.pi * scenario.fan.diameter**2 / 4.0, intake_area=intake_area,
-        enclosure_conductance=sensor.enclosure_conductance if board else 0.0,
-        c_enclosure=sensor.enclosure_capacity if board else 0.0,
-        triac_loss=triac_loss(scenario) if board else 0.0,
-        pressure=pressure, node_names=names,
-    )

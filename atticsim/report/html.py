@@ -430,7 +430,7 @@ def placements_page(scenario, results, table_df, findings, units="si", inputs=No
                     command=None, folder=None) -> str:
     """Sensor placements side by side, with the reasons each behaves as it does."""
     from atticsim.report.inputs import fingerprint
-    from atticsim.results.placements import WHY
+    from atticsim.study.placements import WHY
 
     first = next(iter(results.values()))
     s = first.summary

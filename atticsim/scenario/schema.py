@@ -14,6 +14,7 @@ import numpy as np
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, PrivateAttr, model_validator
 
 from atticsim.materials import COVERING_FINISHES, MATERIALS
+from atticsim.network.placement import PLACEMENTS
 from atticsim.scenario.thermostat import CircuitThermostat, SetpointThermostat
 from atticsim.units import to_si
 
@@ -328,7 +329,8 @@ class Sensor(_Model):
     ``body`` preset its coupling follows the local air speed (sphere/cylinder convection correlations).
     """
 
-    placement: Literal["ridge", "mid", "exhaust", "intake", "deck", "board"] = "mid"
+    placement: Literal[tuple(PLACEMENTS)] = Field(  # type: ignore[valid-type]
+        "mid", description="where the sensor sits: " + "; ".join(f"{p.name}: {p.sees}" for p in PLACEMENTS.values()))
     body: Literal["epoxy-bead-2mm", "glass-bead-1mm", "disc-5mm", "probe-6mm"] | None = None
     time_constant: Duration = Field(20.0, gt=0.0, le=3600.0, description="s, in attic air (without body)")
     dissipation_constant: Conductance = Field(0.0015, gt=0.0, description="W/K, to attic air (without body)")

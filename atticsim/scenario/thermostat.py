@@ -154,6 +154,18 @@ class SetpointThermostat(_Thermostat):
                              f"minimum run or minimum rest (got on {self.on:g} degC, off {self.off:g} degC)")
         return self
 
+    def switch_points(self) -> tuple[float, float]:
+        """(on, off): the sensor temperatures at which the switch calls for the fan and releases it [degC]."""
+        return self.on, self.off
+
+    def sensor_heating(self, sensor):
+        """Power heating the sensor [W]: the scenario's constant ``sensor.self_heating``."""
+        return sensor.self_heating
+
+    def triac_heat(self):
+        """The triac's conduction loss [W] this thermostat knows of: None (no mains side described)."""
+        return None
+
 
 class CircuitValues(_Model):
     """Component values of the thermostat circuit (``[thermostat.circuit]``)."""
@@ -380,6 +392,29 @@ class CircuitThermostat(_Thermostat):
             led_current=c.led_current, led_ideality=c.led_ideality, output_low=c.output_low,
             input_offset=c.input_offset, feedback_on=c.feedback_on, thermistor_position=c.thermistor_position,
             action=self.action, sink_guaranteed=c.sink_guaranteed, trigger_current=c.trigger_current)
+
+    def switch_points(self) -> tuple[float, float]:
+        """(on, off): the thermistor temperatures at which the circuit switches [degC] (its node equations,
+        :func:`atticsim.circuit.switching_temperatures`; self-heating is in the sensor's temperature)."""
+        t = self.thresholds()
+        return t.on_c, t.off_c
+
+    def sensor_heating(self, sensor):
+        """Power heating the sensor: the divider's dissipation at the thermistor's temperature and the
+        comparator's state [W] (a function of (temperature, fan state); atticsim.circuit)."""
+        from atticsim.circuit import thermistor_power_function
+
+        return thermistor_power_function(self.circuit_params())
+
+    def triac_heat(self):
+        """The triac's conduction loss while the fan runs [W] from the mains side, P = V_T0 I_avg + r_T I_rms^2
+        (atticsim.circuit.mains), or None without a mains side."""
+        if self.mains is None:
+            return None
+        from atticsim.circuit.mains import triac_conduction_loss
+
+        m = self.mains.mains_params()
+        return float(triac_conduction_loss(m.fan_current, m.triac_v_t0, m.triac_r_t))
 
     def thresholds(self):
         """Switching thermistor temperatures of the circuit (atticsim.circuit.Thresholds)."""

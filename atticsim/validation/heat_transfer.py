@@ -30,7 +30,7 @@ def roof_film_coefficient():
     import numpy as np
     from scipy.optimize import brentq
 
-    from atticsim.network.model import build_network
+    from atticsim.assembly import build_network
     from atticsim.scenario import demo_scenario
     from atticsim.validation.hand_network import roof_optics
 
@@ -125,7 +125,7 @@ _QUIET = ("the demo house (fictional: two 78.3 m2 planes at 6/12, dark shingles 
 @lru_cache(maxsize=None)
 def _quiet(poa):
     """(atticsim's steady state: nodes and flows, the hand-worked one, the scenario) with ``poa`` W/m2."""
-    from atticsim.network.model import build_network
+    from atticsim.assembly import build_network
     from atticsim.validation.hand_network import hand_worked, quiet_house, steady_run
 
     sc = quiet_house()
@@ -180,7 +180,8 @@ def sun_step_rate():
     import numpy as np
 
     from atticsim.hybrid.driver import run_fast
-    from atticsim.network.model import BOOKS, build_network
+    from atticsim.network.model import BOOKS
+    from atticsim.assembly import build_network
     from atticsim.validation.hand_network import T_OUT, WIND, constant_forcing, first_warming_rate, quiet_house
 
     sc = quiet_house()

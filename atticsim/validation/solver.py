@@ -125,7 +125,8 @@ def sensor_step():
 
     from atticsim.forcing.build import build_forcing
     from atticsim.hybrid.driver import run_fast
-    from atticsim.network.model import BOOKS, build_network
+    from atticsim.network.model import BOOKS
+    from atticsim.assembly import build_network
     from atticsim.validation.houses import constant_weather, demo_house
 
     sc = demo_house({"attic": {"volume": 1e9, "ridge_height": 2.5, "air_layers": 1},
