@@ -10,7 +10,7 @@ Python API (the CLI only wraps it)::
 Heavy libraries load on first use, so ``import atticsim`` stays light.
 """
 
-__version__ = "0.1.0"
+from atticsim.version import __version__
 
 __all__ = ["load_scenario", "demo_scenario", "simulate", "__version__"]
 

@@ -20,7 +20,8 @@ from atticsim.forcing.build import build_forcing, period_bounds
 from atticsim.forcing.weather import load_weather
 from atticsim.assembly import build_network, controller_from_scenario
 from atticsim.network.model import BOOKS
-from atticsim.hybrid.driver import HybridRun, integrate
+from atticsim.hybrid.driver import HybridRun
+from atticsim.hybrid.solve import integrate
 
 DAY = 86400.0
 

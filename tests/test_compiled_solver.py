@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 
 from atticsim.hybrid import compiled
-from atticsim.hybrid.driver import integrate
+from atticsim.hybrid.solve import integrate
 from atticsim.pipeline import run_raw
 from atticsim.scenario import load_scenario
 

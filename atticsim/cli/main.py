@@ -6,7 +6,7 @@ import sys
 
 import click
 
-from atticsim import __version__
+from atticsim.version import __version__
 
 
 class AtticsimGroup(click.Group):

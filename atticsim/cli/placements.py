@@ -40,7 +40,8 @@ def placements(scenario, out, only, start, end, months, workers, overrides, unit
     table = placement_table(results)
     findings = placement_findings(table, sc.simulation.short_cycle / 60.0)
     from atticsim.cli.options import command_line, given_options
-    from atticsim.report.html import placements_page, report_writer
+    from atticsim.report.html import report_writer
+    from atticsim.study.pages import placements_page
     from atticsim.report.inputs import scenario_inputs
     from atticsim.results.export import ip_table
 

@@ -92,7 +92,7 @@ def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, wea
     outcome = run_study(study, out, workers=workers, scheduler=scheduler, resume=resume, force=force,
                         progress=sys.stderr, command={"sweep": click.get_current_context().params})
     from atticsim.cli.options import command_line, given_options
-    from atticsim.report.html import study_page
+    from atticsim.study.pages import study_page
     from atticsim.report.inputs import scenario_inputs
     from atticsim.report.page import write_page
 

@@ -64,7 +64,7 @@ import numpy as np
 from atticsim import jitcache
 from atticsim.hybrid.blocks import (BLOCKS, base_step, block_mv, block_mv_add, blocks_for, chain_into, matmul, matvec,
                                     taylor)
-from atticsim.hybrid.driver import StepperFailed
+from atticsim.hybrid.stepper import StepperFailed
 from atticsim.network import kernel
 
 jitcache.route()  # this module's compiled functions cache in atticsim's own folder (atticsim.jitcache)

@@ -27,20 +27,12 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from atticsim.hybrid.controller import HeldFan
+from atticsim.hybrid.stepper import StepperFailed
 from atticsim.network.kernel import FORCING_BASE
 
 #: Forcing channels the loop reads for the airflow.
 _T_OUT, _WIND, _PRESSURE, _T_ROOM = (FORCING_BASE.index(c) for c in ("temp_out", "wind_speed", "pressure",
                                                                       "temp_room"))
-
-
-class StepperFailed(RuntimeError):
-    """A stepper could not advance (its reason in the message) from ``t`` [s], the output row ``k`` next; the
-    state it was given is left at t. The loop hands over to the fallback stepper."""
-
-    def __init__(self, reason, t, k):
-        super().__init__(reason)
-        self.t, self.k = t, k
 
 
 @dataclass
@@ -204,53 +196,3 @@ def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_tim
     return HybridRun(t=output_times[:k].copy(), y=out_y if k == output_times.size else out_y[:, :k].copy(),
                      fan=rows.fan[:k], events=events, y_end=y, n_rhs=calls, air_updates=updates,
                      air_runs=rows.runs(), notes=notes)
-
-
-def integrate(network, forcing, controller, t_start, t_end, y0, output_times, simulation,
-              progress=None) -> HybridRun:
-    """:func:`simulate_hybrid` with the stepper the scenario's ``simulation`` settings ask for: the compiled
-    stepper (``solver = "fast"``; the reference takes over where it cannot go on, or when the outputs are
-    not on one regular grid) or the reference stepper (``"reference"``); ``progress`` as there."""
-    from atticsim.hybrid.reference import ReferenceStepper
-
-    out = np.ascontiguousarray(output_times, dtype=float)
-    out_y = np.empty((len(y0), out.size))
-
-    def reference(rows):
-        return ReferenceStepper(network, forcing, out, rows, rtol=simulation.rtol, max_step=simulation.max_step)
-
-    if simulation.solver != "fast":
-        return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, reference(out_y),
-                               progress=progress)
-    from atticsim.hybrid.compiled import CompiledStepper
-
-    try:
-        stepper = CompiledStepper(network, forcing, out, out_y, tol=simulation.fast_tolerance,
-                                  check_step=min(60.0, simulation.max_step))
-    except ValueError as exc:
-        run = simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, reference(out_y),
-                              progress=progress)
-        run.notes.append(f"the reference solver ran: {exc}")
-        return run
-    return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, stepper, fallback=reference,
-                           progress=progress)
-
-
-def run_fast(network, forcing, t_start, t_end, y0, output_times, controller=None, **settings) -> HybridRun:
-    """:func:`simulate_hybrid` with the compiled stepper alone (``settings`` as
-    :class:`atticsim.hybrid.compiled.CompiledStepper` takes them), for tests and the validation cases."""
-    from atticsim.hybrid.compiled import CompiledStepper
-
-    out = np.ascontiguousarray(output_times, dtype=float)
-    stepper = CompiledStepper(network, forcing, out, np.empty((len(y0), out.size)), **settings)
-    return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, stepper)
-
-
-def run_reference(network, forcing, t_start, t_end, y0, output_times, controller=None, rtol=1e-6,
-                  max_step=300.0) -> HybridRun:
-    """:func:`simulate_hybrid` with the reference (LSODA) stepper, for tests and the validation cases."""
-    from atticsim.hybrid.reference import ReferenceStepper
-
-    out = np.ascontiguousarray(output_times, dtype=float)
-    stepper = ReferenceStepper(network, forcing, out, np.empty((len(y0), out.size)), rtol=rtol, max_step=max_step)
-    return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, stepper)

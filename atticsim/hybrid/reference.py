@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 from scipy.integrate import solve_ivp
 
-from atticsim.hybrid.driver import StepperFailed
+from atticsim.hybrid.stepper import StepperFailed
 from atticsim.hybrid.threads import one_blas_thread
 from atticsim.network.kernel import BOOKS
 

@@ -179,7 +179,7 @@ def weather_digest(scenario, timeseries=None, design=None) -> tuple[str, str]:
 def fingerprint(scenario, timeseries=None, period=None, design=None) -> dict:
     """The fingerprint of a run: atticsim's version, the scenario's and the weather's sha256, the period,
     and one short identifier over all of them."""
-    from atticsim import __version__
+    from atticsim.version import __version__
 
     sc = scenario_digest(scenario)
     what, wx = weather_digest(scenario, timeseries, design)

@@ -162,7 +162,7 @@ class Page:
 
     def html(self) -> str:
         """The whole page as one HTML document."""
-        from atticsim import __version__
+        from atticsim.version import __version__
 
         created = _dt.datetime.now().astimezone().strftime("%Y-%m-%d %H:%M %Z").strip()
         toc = "".join(f'<li><a href="#{a}">{esc(h)}</a></li>' for a, h, _ in self.sections)

@@ -374,9 +374,9 @@ def versions() -> dict:
     """Versions of Python, atticsim and the libraries that shape the numbers."""
     from importlib import metadata
 
-    import atticsim
+    from atticsim.version import __version__
 
-    out = {"python": sys.version.split()[0], "platform": platform.platform(), "atticsim": atticsim.__version__}
+    out = {"python": sys.version.split()[0], "platform": platform.platform(), "atticsim": __version__}
     for name in ("numpy", "scipy", "pandas", "pvlib", "pydantic", "pint", "matplotlib", "pyarrow", "dask",
                  "distributed"):
         try:

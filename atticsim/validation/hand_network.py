@@ -55,7 +55,7 @@ def steady_run(net, poa):
     [W/m2] on every plane; returns the last state and the flows there."""
     import numpy as np
 
-    from atticsim.hybrid.driver import run_fast
+    from atticsim.hybrid.solve import run_fast
     from atticsim.network.model import BOOKS
 
     step = 3600.0

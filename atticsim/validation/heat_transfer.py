@@ -179,7 +179,7 @@ _quiet_case("steady_roof_layers", "Constant sun: the roof's layers' resistance b
 def sun_step_rate():
     import numpy as np
 
-    from atticsim.hybrid.driver import run_fast
+    from atticsim.hybrid.solve import run_fast
     from atticsim.network.model import BOOKS
     from atticsim.assembly import build_network
     from atticsim.validation.hand_network import T_OUT, WIND, constant_forcing, first_warming_rate, quiet_house

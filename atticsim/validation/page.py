@@ -148,7 +148,7 @@ def render_markdown(results) -> str:
 
 def results_json(results) -> dict:
     """Everything the page says, and each case's wall time, as plain data."""
-    from atticsim import __version__
+    from atticsim.version import __version__
 
     cases = []
     for r in results:

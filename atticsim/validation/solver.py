@@ -124,7 +124,7 @@ def sensor_step():
     import numpy as np
 
     from atticsim.forcing.build import build_forcing
-    from atticsim.hybrid.driver import run_fast
+    from atticsim.hybrid.solve import run_fast
     from atticsim.network.model import BOOKS
     from atticsim.assembly import build_network
     from atticsim.validation.houses import constant_weather, demo_house
@@ -179,7 +179,7 @@ def driven_rc():
     import numpy as np
 
     from atticsim.forcing.build import Forcing
-    from atticsim.hybrid.driver import run_reference
+    from atticsim.hybrid.solve import run_reference
     from atticsim.network.model import BOOKS
 
     tau, period, amp = 600.0, 3600.0, 5.0
