@@ -368,7 +368,7 @@ class _Work(NamedTuple):
     sub: np.ndarray
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, inline="always")
 def _work(n, nb_, n_u):
     """The scratch vectors of :func:`advance` for n nodes, nb_ books and n_u forcing channels."""
     n_tot = n + nb_
@@ -395,13 +395,13 @@ class _System(NamedTuple):
     f_step: float
 
 
-@nb.njit(cache=True, _nrt=False)
+@nb.njit(cache=True, inline="always")
 def _rates(x, u, s, out):
     """The network's rates (nodes, then books) at x under forcing u: :func:`atticsim.network.kernel.rhs`."""
     kernel.rhs(x, u, s.fan, s.air, s.prm, s.planes, s.ints, s.heat, out)
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, inline="always")
 def _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta):
     """One try of the segment [t, t + h]: the fixed point for the remainder's slope b and curvature c (its
     true values at the segment's middle and end), from the previous segment's.
@@ -469,7 +469,7 @@ def _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta):
     return converged, iters, eta, n_rhs
 
 
-@nb.njit(cache=True, _nrt=False)
+@nb.njit(cache=True, inline="always")
 def _largest(c):
     """max |c_i|: with it, the error a remainder linear between the ends would leave (it misses the middle by
     c h^2 / 4, about (2/3) h |c| h^2 / 4 = |c| h^3 / 6 in the nodes; the quadratic taken errs far less)."""
@@ -479,7 +479,7 @@ def _largest(c):
     return err
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, inline="always")
 def _segment(w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta, first_after_switch):
     """The segment from t: tried at length h and halved until its fixed point converges within the error
     check (:func:`_fixed_point`, :func:`_largest`).
@@ -522,7 +522,7 @@ def _segment(w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta
             j_pref += 1
 
 
-@nb.njit(cache=True, _nrt=False)
+@nb.njit(cache=True, inline="always")
 def _book_remainder(w, jac_b, h, n):
     """The books' rates f_b(x0) + J_b z + r_b(s): the same quadratic remainder r_b = f0 + bb s + cb s^2
     through their true values at the segment's start, middle and end."""
@@ -535,7 +535,7 @@ def _book_remainder(w, jac_b, h, n):
         w.cb[i] = 2.0 * (rb1 - 2.0 * rbm + w.f0[n + i]) / (h * h)
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, inline="always")
 def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, out_y, i_sensor, level,
             direction):
     """The outputs and the sensor checks on the check grid inside (t, t + h], from the segment's exact
@@ -597,7 +597,7 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
     return DONE, False, sigma, step, k
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, inline="always")
 def _check_step(w, blk, blk_q, store, lens, cnt, jac, jac_b, k_q, s0, chain_, sigma, step, last, on_grid, n,
                 nb_):
     """The state w.zt and the books' increment w.ybt after a check step of length ``step`` from sigma (from
@@ -637,7 +637,7 @@ def _check_step(w, blk, blk_q, store, lens, cnt, jac, jac_b, k_q, s0, chain_, si
         matvec(jac_b, w.it_, w.ybt)
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, inline="always")
 def _locate(w, x, jac, chain_, s0, levels, sigma, step, i_sensor, level, direction):
     """The crossing in (sigma, sigma + step], w.zs the state at sigma. Binary descent on the doubling chain:
     from the longest link that fits down to the base step, step on by a link when the sensor stays short of its
@@ -695,7 +695,7 @@ def _locate(w, x, jac, chain_, s0, levels, sigma, step, i_sensor, level, directi
         sigma += hs
 
 
-@nb.njit(cache=True, _nrt=False)
+@nb.njit(cache=True, inline="always")
 def _remainder_at(w, sigma, n):
     """v0 = r(sigma) and v1 = r'(sigma) of the remainder a + b s + c s^2."""
     for i in range(n):
@@ -804,14 +804,14 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     return DONE, t, k, n_rhs, n_jac, n_rej, n_seg
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, inline="always")
 def _blocks_over(lin, h, s0, chain_):
     """The blocks over h from the linearisation's cache (computed when missing)."""
     jac, _, _, store, lens, _, cnt, _, _, _ = lin
     return store[_lookup(h, lens, store, cnt, jac, s0, chain_)]
 
 
-@nb.njit(cache=True, _nrt=False)
+@nb.njit(cache=True, inline="always")
 def _segment_length(t, t_end, origin, segment, j_pref, f_step):
     """The next segment's length: to the next instant of the grid of the preferred length (segment / 2^j,
     nested in the segment grid, so that lengths repeat and their blocks come from the cache), a weather
