@@ -68,7 +68,7 @@ def test_run_writes_results_for_one_day(tmp_path):
     (('[vents]', '[vents]\ncolour = "red"'), "vents.colour", "unknown key"),
     (('insulation = "R-30"\n', ''), "ceiling.insulation", "required key is missing"),
     (('kind = "setpoints"', 'kind = "magic"'), "thermostat", "kind"),
-    (('latitude = 29.3', 'latitude = 129.3'), "site.latitude", "less than or equal to 90"),
+    (('latitude = 29.3', 'latitude = 129.3'), "site.latitude", "must be at most 90 deg"),
     # renamed keys name their successors
     (('action = "close-on-rise"', 'mode = "heat"'), "thermostat.mode", "use thermostat.action"),
     (('underside_emittance = 0.90', 'underside_emittance = 0.90\nroughness = "rough"'), "roof.roughness",

@@ -11,13 +11,10 @@ from __future__ import annotations
 
 from typing import Annotated, Literal
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, model_validator
+from pydantic import BaseModel, Field, model_validator
 
-from atticsim.units import to_si
-
-
-def _q(kind: str):
-    return BeforeValidator(lambda v: to_si(v, kind))
+from atticsim.scenario.fields import StrictModel
+from atticsim.scenario.fields import quantity as _q
 
 
 Temperature = Annotated[float, _q("temperature")]
@@ -29,8 +26,15 @@ Frequency = Annotated[float, _q("frequency")]
 Plain = Annotated[float, _q("dimensionless")]
 
 
-class _Model(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True)
+class _Model(StrictModel):
+    """A thermostat table: unknown keys refused, frozen, no inf or nan, no true/false for a number."""
+
+
+#: Resistances a circuit may hold [ohm]: from a milliohm to a gigaohm (physical sense for parts on a board).
+_R = dict(gt=1e-3, le=1e9)
+#: The narrowest hysteresis a thermostat may have [K]: below it the switch would chatter on the sensor's noise,
+#: and the figures print as 0.00 K (a design rule of this project, no source).
+MIN_HYSTERESIS_K = 0.01
 
 
 #: The switch's action in the trade's words: it closes (fan on) on a rising temperature (the fan runs
@@ -49,11 +53,14 @@ class SetpointThermostat(_Thermostat):
     """An ideal comparator with hysteresis, given as switch-on and switch-off sensor temperatures."""
 
     kind: Literal["setpoints"]
-    on: Temperature = Field(ge=-40.0, le=120.0)
-    off: Temperature = Field(ge=-40.0, le=120.0)
+    on: Temperature = Field(ge=-40.0, le=120.0, description="degC")
+    off: Temperature = Field(ge=-40.0, le=120.0, description="degC")
 
     @model_validator(mode="after")
     def _order(self):
+        if abs(self.on - self.off) < MIN_HYSTERESIS_K:
+            raise ValueError(f"on {self.on:g} degC and off {self.off:g} degC leave a hysteresis under "
+                             f"{MIN_HYSTERESIS_K:g} K; the switch would chatter: set them apart")
         if self.action == "close-on-rise" and not self.off < self.on:
             raise ValueError(f"a switch that closes on rise needs off < on (got on {self.on:g} degC, "
                              f"off {self.off:g} degC)")
@@ -67,26 +74,28 @@ class CircuitValues(_Model):
     """Component values of the thermostat circuit (``[thermostat.circuit]``)."""
 
     rail: Voltage = Field(gt=0.0, le=40.0, description="V, regulated supply")
-    reference_upper: Resistance = Field(gt=0.0, description="ohm, reference divider to the rail")
-    reference_lower: Resistance = Field(gt=0.0, description="ohm, reference divider to ground")
-    sense_fixed: Resistance = Field(gt=0.0, description="ohm, fixed resistor in the sense divider")
-    sense_trim: Resistance = Field(0.0, ge=0.0, description="ohm, trimmer setting in series with it")
-    feedback: Resistance = Field(gt=0.0, description="ohm, output to the non-inverting input")
-    led_resistor: Resistance = Field(gt=0.0, description="ohm, in series with the opto-triac driver's LED")
+    reference_upper: Resistance = Field(**_R, description="ohm, reference divider to the rail")
+    reference_lower: Resistance = Field(**_R, description="ohm, reference divider to ground")
+    sense_fixed: Resistance = Field(**_R, description="ohm, fixed resistor in the sense divider")
+    sense_trim: Resistance = Field(0.0, ge=0.0, le=1e9, description="ohm, trimmer setting in series with it")
+    feedback: Resistance = Field(**_R, description="ohm, output to the non-inverting input")
+    led_resistor: Resistance = Field(**_R, description="ohm, in series with the opto-triac driver's LED")
     led_forward: Voltage = Field(1.2, gt=0.5, le=4.0, description="V, LED forward voltage at led_current")
     led_current: Current = Field(0.010, gt=0.0, le=0.1)
     led_ideality: Plain = Field(2.0, ge=1.0, le=4.0)
     output_low: Voltage = Field(0.2, ge=0.0, le=2.0, description="V, comparator output when sinking")
     input_offset: Voltage = Field(0.0, ge=-0.05, le=0.05)
-    thermistor_r25: Resistance | None = Field(None, gt=0.0)
+    thermistor_r25: Resistance | None = Field(None, **_R, description="ohm at 25 degC")
     thermistor_beta: Plain | None = Field(None, gt=500.0, lt=10000.0, description="K")
     thermistor_steinhart_hart: list[float] | None = Field(None, min_length=3, max_length=3)
-    thermistor_table: list[tuple[Temperature, Resistance]] | None = Field(None, min_length=3,
-                                                                          description="[[temp, R], ...]")
+    thermistor_table: list[tuple[Annotated[float, _q("temperature"), Field(ge=-60.0, le=200.0)],
+                                 Annotated[float, _q("resistance"), Field(**_R)]]] | None = Field(
+        None, min_length=3, max_length=500, description="[[temp degC, R ohm], ...]")
     feedback_on: Literal["sense", "reference"] = "sense"
     thermistor_position: Literal["lower", "upper"] | None = None
-    sink_guaranteed: Current = Field(0.006, gt=0.0, description="A, comparator's guaranteed sink current")
-    trigger_current: Current = Field(0.010, gt=0.0, description="A, opto-triac driver's trigger current (max)")
+    sink_guaranteed: Current = Field(0.006, gt=0.0, le=1.0, description="A, comparator's guaranteed sink current")
+    trigger_current: Current = Field(0.010, gt=0.0, le=1.0,
+                                     description="A, opto-triac driver's trigger current (max)")
 
     @model_validator(mode="after")
     def _one_thermistor(self):
@@ -121,7 +130,7 @@ class CircuitTolerances(_Model):
     rail: Plain = Field(0.05, ge=0.0, lt=0.5)
     offset: Voltage = Field(0.005, ge=0.0, lt=1.0, description="V, comparator offset (max)")
     samples: int = Field(2000, ge=100, le=200000)
-    seed: int = 0
+    seed: int = Field(0, ge=0, le=2**32 - 1)
 
 
 class MainsSide(_Model):
@@ -129,16 +138,16 @@ class MainsSide(_Model):
 
     line_voltage: Voltage = Field(ge=90.0, le=264.0, description="V rms")
     frequency: Frequency = Field(description="Hz, 50 or 60")
-    dropper_capacitance: Capacitance = Field(gt=0.0)
-    zener_voltage: Voltage = Field(gt=0.0)
-    bleed_resistor: Resistance = Field(gt=0.0)
-    fan_current: Current = Field(gt=0.0, description="A rms, fan motor running current")
-    series_resistor: Resistance = Field(100.0, gt=0.0)
+    dropper_capacitance: Capacitance = Field(gt=0.0, le=1e-4, description="F")
+    zener_voltage: Voltage = Field(gt=0.0, le=100.0, description="V")
+    bleed_resistor: Resistance = Field(**_R, description="ohm")
+    fan_current: Current = Field(gt=0.0, le=100.0, description="A rms, fan motor running current")
+    series_resistor: Resistance = Field(100.0, **_R, description="ohm")
     fan_start_multiple: Plain = Field(6.0, ge=1.0, le=12.0)
-    triac_current_rating: Current = Field(8.0, gt=0.0)
-    fuse_rating: Current | None = Field(None, gt=0.0)
-    capacitor_voltage_rating: Voltage | None = Field(None, gt=0.0)
-    bridge_voltage_rating: Voltage | None = Field(None, gt=0.0)
+    triac_current_rating: Current = Field(8.0, gt=0.0, le=1000.0, description="A rms")
+    fuse_rating: Current | None = Field(None, gt=0.0, le=1000.0, description="A")
+    capacitor_voltage_rating: Voltage | None = Field(None, gt=0.0, le=10000.0, description="V")
+    bridge_voltage_rating: Voltage | None = Field(None, gt=0.0, le=10000.0, description="V")
 
     @model_validator(mode="after")
     def _freq(self):
@@ -165,9 +174,16 @@ class CircuitThermostat(_Thermostat):
     def _switches(self):
         from atticsim.circuit import switching_temperatures
 
-        th = switching_temperatures(self.circuit_params())  # raises ValueError with the reason
+        try:
+            th = switching_temperatures(self.circuit_params())  # raises ValueError with the reason
+        except ArithmeticError as exc:  # values so far apart that the circuit's equations overflow
+            raise ValueError(f"circuit: the values cannot be solved for switching temperatures ({exc})") from None
         if not (-40.0 <= th.on_c <= 120.0 and -40.0 <= th.off_c <= 120.0):
             raise ValueError(f"the circuit switches at {th.on_c:.1f} / {th.off_c:.1f} degC, outside -40..120 degC")
+        if abs(th.on_c - th.off_c) < MIN_HYSTERESIS_K:
+            raise ValueError(f"circuit: the circuit switches ON at {th.on_c:.3f} degC and OFF at {th.off_c:.3f} degC, "
+                             f"a hysteresis of {abs(th.on_c - th.off_c):.2g} K (under {MIN_HYSTERESIS_K:g} K): the fan "
+                             f"would chatter; a smaller thermostat.circuit.feedback widens it")
         return self
 
     def circuit_params(self):
