@@ -23,9 +23,10 @@ from pathlib import Path
 
 import pandas as pd
 
+from atticsim.errors import one_line, raised_by_atticsim
 from atticsim.io.csv_format import read_weather_csv
 from atticsim.io.typical_year import read_epw, read_tmy2, read_tmy3
-from atticsim.io.weather_frame import DEFAULT_MAX_GAP_H, ValidationReport, WeatherMeta
+from atticsim.io.weather_frame import DEFAULT_MAX_GAP_H, ValidationReport, WeatherError, WeatherMeta
 
 #: Reader per format name.
 READERS = {
@@ -54,11 +55,11 @@ def _first_lines(path: str, count: int = 60) -> list[str]:
         with open(path, encoding="latin-1") as handle:
             return [line.rstrip("\r\n") for _, line in zip(range(count), handle)]
     except FileNotFoundError:
-        raise ValueError(f"{path}: file: not found") from None
+        raise WeatherError(f"{path}: file: not found") from None
     except IsADirectoryError:
-        raise ValueError(f"{path}: file: is a folder, not a weather file") from None
+        raise WeatherError(f"{path}: file: is a folder, not a weather file") from None
     except OSError as exc:
-        raise ValueError(f"{path}: file: cannot be read ({exc})") from None
+        raise WeatherError(f"{path}: file: cannot be read ({exc})") from None
 
 
 def detect_format(path: str | os.PathLike) -> str:
@@ -78,7 +79,7 @@ def detect_format(path: str | os.PathLike) -> str:
     lines = _first_lines(where)
     content = [line for line in lines if line.strip()]
     if not content:
-        raise ValueError(f"{where}: format: the file is empty")
+        raise WeatherError(f"{where}: format: the file is empty")
     first = content[0].lstrip("\ufeff")
     if first.startswith("#"):
         for line in content:
@@ -93,7 +94,7 @@ def detect_format(path: str | os.PathLike) -> str:
     if _TMY2_HEADER.match(lines[0]) and len(lines) > 1 and _TMY2_RECORD.match(lines[1]):
         return "tmy2"
     shown = first[:60] + ("..." if len(first) > 60 else "")
-    raise ValueError(
+    raise WeatherError(
         f"{where}: format: not recognised as an atticsim weather CSV, EPW, TMY3 or TMY2 file "
         f"(first line: {shown!r})"
     )
@@ -125,7 +126,21 @@ def read_weather(
     """
     where = os.fspath(path)
     fmt = detect_format(where)
-    frame, meta, report = READERS[fmt](where, year=year, max_gap_h=max_gap_h)
+    try:
+        frame, meta, report = READERS[fmt](where, year=year, max_gap_h=max_gap_h)
+    except WeatherError:
+        raise
+    except RecursionError:
+        raise WeatherError(f"{where}: format: the {fmt} file is nested or repeated too deeply to read") from None
+    except Exception as exc:  # noqa: BLE001
+        # A library's parser (pvlib, pandas, csv) choking on a damaged file: the file is bad, say so in one line.
+        # An exception from atticsim's own code is a bug and goes on as it is.
+        if raised_by_atticsim(exc) or not isinstance(exc, (ValueError, TypeError, IndexError, KeyError,
+                                                           UnicodeError, OverflowError, AttributeError)):
+            raise
+        raise WeatherError(f"{where}: format: cannot be read as {fmt.upper() if fmt != 'atticsim-csv' else fmt} "
+                           f"({type(exc).__name__}: {one_line(str(exc), 160)}); the file is damaged or not "
+                           f"{fmt}") from None
     suffix = Path(where).suffix.lower()
     if suffix and suffix not in USUAL_EXTENSIONS[fmt]:
         report.notes.append(f"content is {fmt} although the file name ends in {suffix}: read as {fmt}")
