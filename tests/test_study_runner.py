@@ -9,6 +9,7 @@ import json
 import pandas as pd
 import pytest
 
+from atticsim.errors import InputError
 from atticsim.study.runner import JOURNAL, run_study
 from atticsim.study.spec import Study, StudyError, parse_vary
 
@@ -83,7 +84,7 @@ def test_resume_after_interruption_gives_the_uninterrupted_table(reference, tmp_
     assert len(lines) == 2 and not (out / "points.csv").exists()
     with open(out / JOURNAL, "a") as fh:  # a write torn by the crash must not spoil the resume
         fh.write('{"index": 2, "key": "abc", "sta')
-    with pytest.raises(StudyError, match="--resume"):  # the folder is not silently reused
+    with pytest.raises(InputError, match="--resume"):  # the folder is not silently reused
         run_study(hysteresis_study(), out, workers=1)
     outcome = run_study(hysteresis_study(), out, workers=1, resume=True)
     assert (outcome.reused, outcome.computed) == (2, 2)  # finished points are not recomputed

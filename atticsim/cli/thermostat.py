@@ -6,7 +6,7 @@ import json
 
 import click
 
-from atticsim.cli.options import scenario_argument, set_option, units_option
+from atticsim.cli.options import Quantity, scenario_argument, set_option, units_option
 
 
 @click.command()
@@ -14,9 +14,11 @@ from atticsim.cli.options import scenario_argument, set_option, units_option
 @set_option
 @click.option("--json", "as_json", is_flag=True, help="Print the figures as JSON.")
 @click.option("--design", is_flag=True, help="Choose the trimmer and feedback resistor for --on/--off.")
-@click.option("--on", "on_", help='Wanted switch-on temperature, e.g. "40degC" or "104degF" (with --design).')
-@click.option("--off", help='Wanted switch-off temperature (with --design).')
-@click.option("--hysteresis", help='Wanted hysteresis instead of --off, e.g. "5K" (with --design).')
+@click.option("--on", "on_", type=Quantity("temperature", -40.0, 120.0),
+              help='Wanted switch-on temperature, e.g. "40degC" or "104degF" (with --design).')
+@click.option("--off", type=Quantity("temperature", -40.0, 120.0), help='Wanted switch-off temperature (with --design).')
+@click.option("--hysteresis", type=Quantity("temperature_difference", 0.01, 60.0),
+              help='Wanted hysteresis instead of --off, e.g. "5K" (with --design).')
 @click.option("--basis", type=click.Choice(["air", "thermistor"]), default="air", show_default=True,
               help="With --design: the wanted temperatures are the AIR's around the sensor (its self-heating "
                    "included) or the thermistor's own.")
@@ -40,8 +42,10 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis
     if write_to and not force:
         from pathlib import Path
 
+        from atticsim.errors import OutputError
+
         if Path(write_to).exists():
-            raise FileExistsError(f"{write_to}: file exists; pass --force to overwrite it")
+            raise OutputError(f"{write_to}: file exists; pass --force to overwrite it")
     sc = load_scenario(scenario, list(overrides))
     for w in sc.input_warnings:
         click.echo(f"atticsim: warning: {w}", err=True)
@@ -55,8 +59,9 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis
         if on_ is None or (off is None) == (hysteresis is None):
             raise click.UsageError("--design needs --on and one of --off or --hysteresis")
         report = design_report(sc, to_si(on_, "temperature"),
-                               off_c=to_si(off, "temperature") if off else None,
-                               hysteresis_k=to_si(hysteresis, "temperature_difference") if hysteresis else None,
+                               off_c=to_si(off, "temperature") if off is not None else None,
+                               hysteresis_k=(to_si(hysteresis, "temperature_difference") if hysteresis is not None
+                                             else None),
                                series=series, basis=basis)
         click.echo(json.dumps(report, indent=2) if as_json else design_text(report, units))
         if write_to:
