@@ -11,7 +11,13 @@ from __future__ import annotations
 
 
 class InputError(ValueError):
-    """Bad input; ``str(err)`` is one line naming the file or option, the key and the reason."""
+    """Bad input; ``str(err)`` is one line naming the file or option, the key and the reason (a message given
+    on several lines is joined into one)."""
+
+    def __init__(self, *args):
+        if len(args) == 1 and isinstance(args[0], str):
+            args = (one_line(args[0], 1000),)
+        super().__init__(*args)
 
 
 class OutputError(InputError):

@@ -66,13 +66,19 @@ def _usage_line(exc: click.UsageError, group: click.Group) -> str:
         return line
     param = getattr(exc, "param", None)
     hint = getattr(exc, "param_hint", None) or (param.get_error_hint(exc.ctx) if param is not None else None)
+    if isinstance(exc, click.BadOptionUsage) and not hint:
+        hint = exc.option_name
+        exc.message = exc.message.replace(f"Option '{exc.option_name}' ", "")
     if isinstance(hint, (list, tuple)):
         hint = " / ".join(hint)
-    hint = hint.replace("'", "") if isinstance(hint, str) else None
+    hint = hint.replace("'", "").replace("[", "").replace("]", "") if isinstance(hint, str) else None
     if isinstance(exc, click.MissingParameter):
         what = "argument" if getattr(param, "param_type_name", "") == "argument" else "option"
         return f"{hint or 'parameter'}: required {what} is missing"
     message = exc.message.rstrip(".")
+    if message.startswith("Got unexpected extra argument"):
+        extra = message.split("(", 1)[-1].rstrip(")")
+        return f"{extra}: unexpected extra argument (a command takes one SCENARIO file at most)"
     if message.startswith("No such command"):
         import difflib
 
@@ -87,11 +93,14 @@ def report_failure(exc: BaseException, group: click.Group) -> tuple[int, str | N
     """(exit status, the line to print or None) for what escaped a command."""
     if isinstance(exc, click.exceptions.Exit):
         return exc.exit_code, None
+    if isinstance(exc, _Stopped):
+        exc = exc.interrupt
     if isinstance(exc, (click.exceptions.Abort, KeyboardInterrupt)):
         cause = exc if isinstance(exc, InterruptedRun) else (exc.__cause__ or exc.__context__)
         if isinstance(cause, InterruptedRun):
             return 128 + cause.signum, f"atticsim: stopped by {cause.name}; nothing half-written was left behind"
-        return 130, "atticsim: stopped (Ctrl-C); nothing half-written was left behind"
+        tty = getattr(sys.stderr, "isatty", lambda: False)()
+        return 130, f"{chr(10) if tty else ''}atticsim: stopped (Ctrl-C); nothing half-written was left behind"
     if isinstance(exc, click.exceptions.NoArgsIsHelpError):
         return 0, exc.format_message()
     if isinstance(exc, click.UsageError):
@@ -114,8 +123,22 @@ def report_failure(exc: BaseException, group: click.Group) -> tuple[int, str | N
                f"in your input; please report it with the command you ran; ATTICSIM_DEBUG=1 shows the traceback)")
 
 
+class _Stopped(Exception):
+    """Carries a KeyboardInterrupt (or InterruptedRun) past click, which would print a line of its own."""
+
+    def __init__(self, interrupt: KeyboardInterrupt):
+        super().__init__(str(interrupt))
+        self.interrupt = interrupt
+
+
 class AtticsimGroup(click.Group):
     """Runs a command with SIGTERM and SIGHUP handled like Ctrl-C and reports what escapes it in one line."""
+
+    def invoke(self, ctx):
+        try:
+            return super().invoke(ctx)
+        except KeyboardInterrupt as exc:  # the command's clean-up has run (its context is closed)
+            raise _Stopped(exc) from None
 
     def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True, **extra):
         if not standalone_mode:

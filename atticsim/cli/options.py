@@ -106,7 +106,7 @@ def load_checked_weather(sc, source: str, start=None, end=None, months=None, yea
     from atticsim.scenario.limits import check_output_rows
 
     if months and (start or end):
-        raise click.UsageError("give either --months or --start/--end, not both")
+        raise click.UsageError("--months: give either --months or --start/--end, not both")
     weather = load_weather(sc.weather.file, year=year)
     frame, meta = weather[0], weather[1]
     first, last = resolve_period(frame, sc, start, end, months, year)

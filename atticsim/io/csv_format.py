@@ -149,7 +149,8 @@ def _parse_times(texts: list[str], utc_offset: float, where: str) -> pd.Datetime
     try:
         stamps = pd.to_datetime(series, format="ISO8601", utc=True)
     except (TypeError, ValueError) as exc:
-        raise WeatherError(f"{where}: time: cannot read the time stamps as ISO 8601 ({exc})") from None
+        first = str(exc).splitlines()[0].split(". You might")[0] if str(exc) else type(exc).__name__
+        raise WeatherError(f"{where}: time: cannot read the time stamps as ISO 8601 ({first})") from None
     return pd.DatetimeIndex(stamps).tz_convert(site_timezone(utc_offset))
 
 

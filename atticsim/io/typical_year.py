@@ -152,6 +152,9 @@ def _check_span(where: str, fmt: str, months, days, hours, first: tuple[int, int
     """
     head = _HEADER_LINES[fmt]
     n = len(months)
+    if n == 0:
+        raise WeatherError(f"{where}: line {head + 1}: no data records could be read (a damaged header line, such "
+                           f"as an unclosed quote, may hide them)")
 
     def stamp(i):
         return f"{int(months[i]):02d}/{int(days[i]):02d} {int(hours[i]):02d}:00"

@@ -93,6 +93,8 @@ def _owner(lock_path: Path) -> str:
     """'pid 1234 on host, since 12:03' from a lock file, or ''."""
     try:
         info = json.loads(lock_path.read_text() or "{}")
+        if not isinstance(info, dict) or "pid" not in info:
+            return ""
         since = time.strftime("%H:%M", time.localtime(info["started"])) if "started" in info else "?"
         return f"pid {info.get('pid')} on {info.get('host')}, since {since}"
     except (OSError, ValueError, KeyError, TypeError, OverflowError):

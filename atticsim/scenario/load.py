@@ -72,9 +72,14 @@ def _bound_reason(e: dict, unit: str, kind: str | None) -> str:
     key, words = _BOUNDS[e["type"]]
     bound = e["ctx"][key]
     label = f" {unit}" if unit else ""
-    ip = ip_text(bound, kind) if kind else ""
+    ip = ip_text(bound, kind) if kind and bound != 0 else ""
     got = e.get("input")
-    got_text = f"{got:g}{label}" if isinstance(got, (int, float)) and not isinstance(got, bool) else short_repr(got)
+    got_text = short_repr(got)
+    if isinstance(got, (int, float)) and not isinstance(got, bool):
+        try:
+            got_text = f"{float(got):g}{label}"
+        except OverflowError:  # an integer too large for a float
+            pass
     return f"must be {words} {bound:g}{label}{f' ({ip})' if ip else ''} (got {got_text})"
 
 
@@ -201,7 +206,7 @@ def parse_override(text: str) -> tuple[list[str], object]:
         raise ScenarioError("--set", short_repr(text), "empty key")
     try:
         value = tomllib.loads(f"v = {raw.strip()}")["v"]
-    except (tomllib.TOMLDecodeError, RecursionError):
+    except (ValueError, RecursionError):  # not TOML (TOMLDecodeError, or an integer of over 4300 digits): text
         value = raw.strip()
     return [part.strip() for part in key.split(".")], value
 
@@ -302,12 +307,12 @@ def read_toml(path: Path, error=ScenarioError) -> dict:
         text = raw.decode("utf-8-sig")  # an editor's byte-order mark is not content
     except UnicodeDecodeError as exc:
         raise error(path, "", f"not a UTF-8 text file (byte {exc.start} is 0x{raw[exc.start]:02x}); "
-                              f"a scenario is a TOML text file") from None
+                              f"expected a TOML text file") from None
     if "\x00" in text:
-        raise error(path, "", "not a text file (it holds NUL bytes); a scenario is a TOML text file")
+        raise error(path, "", "not a text file (it holds NUL bytes); expected a TOML text file")
     try:
         return tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
+    except ValueError as exc:  # TOMLDecodeError, or an integer too long to read
         raise error(path, "", f"TOML syntax error: {exc}") from None
     except RecursionError:
         raise error(path, "", "TOML syntax error: arrays or tables nested too deeply") from None

@@ -106,8 +106,8 @@ class House(_Model):
     @model_validator(mode="after")
     def _seasons(self):
         if self.heating_balance_point > self.cooling_balance_point:
-            raise ValueError(f"heating_balance_point ({self.heating_balance_point:g} degC) must not be above "
-                             f"cooling_balance_point ({self.cooling_balance_point:g} degC)")
+            raise ValueError(f"heating_balance_point: {self.heating_balance_point:g} degC is above "
+                             f"cooling_balance_point ({self.cooling_balance_point:g} degC); it must not be")
         cooling = month_set(self.cooling_months, "cooling_months")
         heating = month_set(self.heating_months, "heating_months")
         if cooling & heating:

@@ -152,7 +152,7 @@ class MainsSide(_Model):
     @model_validator(mode="after")
     def _freq(self):
         if self.frequency not in (50.0, 60.0):
-            raise ValueError(f"frequency must be 50 or 60 Hz (got {self.frequency:g})")
+            raise ValueError(f"frequency: must be 50 or 60 Hz (got {self.frequency:g} Hz)")
         return self
 
     def mains_params(self):

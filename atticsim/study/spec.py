@@ -179,7 +179,7 @@ def _text_values(raw: str, where: str, strict: bool = False) -> list[Value]:
     words (``strict``: raise _NotToml instead)."""
     try:
         items = tomllib.loads(f"v = [{raw}]")["v"]
-    except (tomllib.TOMLDecodeError, RecursionError):
+    except (ValueError, RecursionError):  # TOMLDecodeError, or an integer too long to read
         if strict:
             raise _NotToml from None
         items = [part.strip() for part in raw.split(",")]
@@ -227,6 +227,8 @@ def parse_vary(text: str, option: str = "--vary") -> Axis:
         raise StudyError(f"{where}: {key!r} is not a dotted scenario key such as thermostat.on")
     if not raw:
         raise StudyError(f"{where}: no values after '='")
+    if ":" in raw and any(part.strip().lower().lstrip("+-").startswith(("inf", "nan")) for part in raw.split(":")):
+        raise StudyError(f"{where}: START, STOP and STEP must be finite numbers")
     m = _NUMERIC.match(raw)
     if m and (not m.group(3) or not re.search(r"[:,]", m.group(3))):
         first, rest, unit = m.group(1), m.group(2), m.group(3)
