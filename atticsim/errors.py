@@ -24,6 +24,11 @@ class OutputError(InputError):
     """An output folder or file that cannot be claimed or written (exists, in use, not writable)."""
 
 
+class WriteFailure(OSError):
+    """Writing output failed for a reason of the machine (a full disk, a file-size limit, an I/O error): the
+    ``errno`` is kept and ``strerror`` is one line naming the folder, the file and the reason."""
+
+
 class InterruptedRun(KeyboardInterrupt):
     """The run was stopped by a signal (Ctrl-C, SIGTERM, SIGHUP); ``signum`` says which.
 

@@ -100,6 +100,7 @@ def inputs(tmp_path_factory):
     (d / "miami_cut.tm2").write_bytes(tmy2[: len(tmy2) // 2 + 50])
     tmy3 = _pvlib("723170TYA.CSV")
     (d / "tmy3_short.csv").write_bytes(b"\n".join(tmy3.split(b"\n")[:4000]) + b"\n")
+    (d / "tmy3_bom.csv").write_bytes(b"\xef\xbb\xbf" + tmy3)
     return d
 
 
@@ -217,6 +218,7 @@ CASES = [
     ("weather-tmy2-cut", ["run", *DAY, "--weather", "{in}/miami_cut.tm2", "--set", "site.utc_offset=-5"],
      ["miami_cut.tm2", "line"]),
     ("weather-tmy3-short", ["run", *DAY, "--weather", "{in}/tmy3_short.csv"], ["tmy3_short.csv", "line"]),
+    ("weather-tmy3-bom", ["run", *DAY, "--weather", "{in}/tmy3_bom.csv"], ["tmy3_bom.csv", "byte-order mark"]),
     ("weather-demo-unknown", ["run", *DAY, "--weather", "demo:nowhere"], ["demo:nowhere", "saltmarsh-point"]),
     ("weather-demo-year", ["run", *DAY, "--weather", "demo:saltmarsh-point:abc"], ["demo:saltmarsh-point:abc",
                                                                                    "YEAR"]),

@@ -139,3 +139,31 @@ def test_run_point_restores_the_garbage_collector():
                 assert gc.isenabled() == enabled
     finally:
         (gc.enable if was else gc.disable)()
+
+
+@pytest.mark.parametrize("error,code,line", [
+    ("input", 2, "atticsim: error: sweep: every one of the 4 points failed, e.g. point 0 "
+                 "(thermostat.hysteresis=0.5 K): WeatherError: made.csv: temp_air: a refusal made by this test"),
+    ("bug", 1, "atticsim: internal error: RuntimeError: every one of the 4 points failed, e.g. point 0 "
+               "(thermostat.hysteresis=0.5 K): ZeroDivisionError: a bug made by this test"),
+])
+def test_a_study_whose_every_point_fails_stops_in_one_line_leaving_nothing(tmp_path, monkeypatch, error, code, line):
+    import atticsim.pipeline
+    from click.testing import CliRunner
+
+    from atticsim.cli.main import cli
+    from atticsim.io import WeatherError
+
+    def failing(*args, **kw):
+        if error == "input":
+            raise WeatherError("made.csv: temp_air: a refusal made by this test")
+        raise ZeroDivisionError("a bug made by this test")
+
+    monkeypatch.setattr(atticsim.pipeline, "simulate", failing)
+    out = tmp_path / "study"
+    r = CliRunner().invoke(cli, ["sweep", "--vary", f"thermostat.hysteresis={WIDTHS}", "--start", "2025-07-01",
+                                 "--end", "2025-07-01", "--workers", "1", "--out", str(out),
+                                 *[a for o in FAST for a in ("--set", o)]])
+    assert r.exit_code == code, r.output
+    assert r.stderr.strip().splitlines()[-1].startswith(line), r.stderr
+    assert not out.exists()  # no journal, no study.json, no folder: nothing of value was made

@@ -197,7 +197,7 @@ def read_weather_csv(
     """
     where = os.fspath(path)
     try:
-        text = Path(path).read_text(encoding="utf-8")
+        text = Path(path).read_text(encoding="utf-8-sig")  # a spreadsheet's byte-order mark is not content
     except FileNotFoundError:
         raise WeatherError(f"{where}: file: not found") from None
     except (OSError, UnicodeDecodeError) as exc:

@@ -53,7 +53,10 @@ _TMY2_RECORD = re.compile(r"^ \d{8}")
 def _first_lines(path: str, count: int = 60) -> list[str]:
     try:
         with open(path, encoding="latin-1") as handle:
-            return [line.rstrip("\r\n") for _, line in zip(range(count), handle)]
+            lines = [line.rstrip("\r\n") for _, line in zip(range(count), handle)]
+        if lines and lines[0].startswith("\xef\xbb\xbf"):  # a UTF-8 byte-order mark, read as latin-1
+            lines[0] = lines[0][3:]
+        return lines
     except FileNotFoundError:
         raise WeatherError(f"{path}: file: not found") from None
     except IsADirectoryError:
@@ -126,6 +129,11 @@ def read_weather(
     """
     where = os.fspath(path)
     fmt = detect_format(where)
+    if fmt != "atticsim-csv":
+        with open(where, "rb") as handle:
+            if handle.read(3) == b"\xef\xbb\xbf":
+                raise WeatherError(f"{where}: format: the {fmt.upper()} file starts with a byte-order mark (an "
+                                   f"editor added it); save it again as plain text without one")
     try:
         frame, meta, report = READERS[fmt](where, year=year, max_gap_h=max_gap_h)
     except WeatherError:

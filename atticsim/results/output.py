@@ -13,8 +13,9 @@ temporary folder is removed, and so is ``DIR`` if the claim created it. A run ki
 power cut) cannot clean up: the next claim of the folder removes what it left (its lock being free) and
 says so.
 
-Writing fails in one line (:class:`~atticsim.errors.OutputError`): a full disk, a read-only folder, a path
-under ``/proc``.
+A folder that cannot be claimed fails in one line (:class:`~atticsim.errors.OutputError`: not a folder, a
+path under ``/proc``, read-only, in use); writing that fails once claimed (a full disk) in one line too
+(:class:`~atticsim.errors.WriteFailure`, an OSError keeping its errno).
 """
 
 from __future__ import annotations
@@ -29,7 +30,7 @@ import sys
 import time
 from pathlib import Path
 
-from atticsim.errors import OutputError
+from atticsim.errors import OutputError, WriteFailure
 
 LOCK = ".atticsim-lock"
 #: Prefix of the temporary files and folders a run writes inside its claimed folder.
@@ -173,13 +174,17 @@ class OutputClaim:
                 try:
                     write(tmp / name)
                 except OSError as exc:
-                    raise OutputError(f"{self.out}: cannot write {name}: {_os_reason(exc)}; nothing was "
-                                      f"written") from None
+                    if isinstance(exc, WriteFailure):
+                        raise
+                    raise WriteFailure(exc.errno, f"{self.out}: cannot write {name}: {_os_reason(exc)}; nothing "
+                                                  f"was written") from None
             for name in writers:
                 os.replace(tmp / name, self.out / name)
             tmp.rmdir()
+        except WriteFailure:
+            raise
         except OSError as exc:
-            raise OutputError(f"{self.out}: cannot write the files: {_os_reason(exc)}") from None
+            raise WriteFailure(exc.errno, f"{self.out}: cannot write the files: {_os_reason(exc)}") from None
         finally:
             shutil.rmtree(tmp, ignore_errors=True)
         self.committed = True

@@ -10,7 +10,7 @@ import tomllib
 from importlib import resources
 from pathlib import Path
 
-from atticsim.errors import OutputError
+from atticsim.errors import OutputError, WriteFailure
 from atticsim.scenario.load import ScenarioError, parse_override, scenario_from_dict
 
 
@@ -129,7 +129,7 @@ def write_scenario(source: str | Path | None, overrides, changes: dict, out: str
     except FileExistsError:
         raise OutputError(f"{out}: file exists; pass --force to overwrite it") from None
     except OSError as exc:
-        raise OutputError(f"{out}: cannot write: {exc.strerror or exc}") from None
+        raise WriteFailure(exc.errno, f"{out}: cannot write: {exc.strerror or exc}") from None
     finally:
         tmp.unlink(missing_ok=True)
     return out

@@ -316,10 +316,10 @@ class Journal:
             self._fh.flush()
             os.fsync(self._fh.fileno())
         except OSError as exc:
-            from atticsim.errors import OutputError
+            from atticsim.errors import WriteFailure
 
-            raise OutputError(f"{self.path}: cannot write: {_os_reason(exc)}; the points journaled before are "
-                              f"kept: rerun with --resume when there is room") from None
+            raise WriteFailure(exc.errno, f"{self.path}: cannot write: {_os_reason(exc)}; the points journaled "
+                                          f"before are kept: rerun with --resume when there is room") from None
 
     def close(self) -> None:
         try:
@@ -480,7 +480,7 @@ def _prepare_dir(out: Path, resume: bool) -> None:
 def _write_atomic(path: Path, write) -> None:
     """Write a file through a temporary one beside it (the claim's naming, so that a later claim removes it if
     this process is killed), then move it into place; a failure (a full disk) in one line, nothing left."""
-    from atticsim.errors import OutputError
+    from atticsim.errors import WriteFailure
     from atticsim.results.output import TMP_PREFIX
 
     tmp = path.with_name(f"{TMP_PREFIX}{os.getpid()}-{path.name}")
@@ -488,7 +488,7 @@ def _write_atomic(path: Path, write) -> None:
         write(tmp)
         os.replace(tmp, path)
     except OSError as exc:
-        raise OutputError(f"{path.parent}: cannot write {path.name}: {_os_reason(exc)}") from None
+        raise WriteFailure(exc.errno, f"{path.parent}: cannot write {path.name}: {_os_reason(exc)}") from None
     finally:
         tmp.unlink(missing_ok=True)
 
