@@ -260,7 +260,7 @@ def ip_text(value: float, kind: str) -> str:
     if kind == "temperature":
         return f"{c_to_f(value):.4g} degF"
     if kind == "r_value":
-        return f"R-{value * IP_FACTORS['r_value'][0]:.4g}"
+        return f"R-{value * IP_FACTORS['r_value'][0]:.3g}"
     if kind in IP_FACTORS:
         factor, label = IP_FACTORS[kind]
         x = value * factor

@@ -176,7 +176,7 @@ CASES = [
      ["house.indoor_relative_humidity", "at most 100"]),
     ("set-time-constant-2h", ["run", *DAY, "--set", 'sensor.time_constant="2 h"'], ["sensor.time_constant",
                                                                                    "at most 3600 s"]),
-    ("set-floor-zero", ["run", *DAY, "--set", "attic.floor_area=0"], ["attic.floor_area", "greater than 0 m2"]),
+    ("set-floor-zero", ["run", *DAY, "--set", "attic.floor_area=0"], ["attic.floor_area", "at least 1 m2 (10.76 ft2)"]),
     ("set-tilt-90", ["run", *DAY, "--set", "roof.planes.0.tilt=90"], ["roof.planes.0.tilt", "less than 90 deg"]),
     ("set-balance-points", ["run", *DAY, "--set", "house.heating_balance_point=25"],
      ["house", "heating_balance_point"]),

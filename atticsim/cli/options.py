@@ -76,6 +76,8 @@ def claim_out(out: str, force: bool, **kwargs):
     command ends: on failure or interruption what it created is removed."""
     from atticsim.results.output import claim_output
 
+    if not str(out).strip():
+        raise click.BadParameter("empty; give the folder for the results", param_hint="--out")
     claim = claim_output(out, force, **kwargs)
     click.get_current_context().call_on_close(claim.release)
     for note in claim.notes:

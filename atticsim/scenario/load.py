@@ -118,6 +118,8 @@ def _problem(e: dict, data) -> tuple[list, str, str | None]:
         n = e["ctx"].get("min_length" if kind == "too_short" else "max_length")
         reason = (f"must hold {'at least' if kind == 'too_short' else 'at most'} {n} item{'s' if n != 1 else ''} "
                   f"(got {e['ctx'].get('actual_length')})")
+    elif kind == "string_too_long":
+        reason = f"must be at most {e['ctx']['max_length']} characters (got {len(str(e.get('input', '')))})"
     elif kind == "finite_number":
         reason = f"must be a finite number (got {short_repr(e.get('input'))})"
     elif kind == "value_error":

@@ -77,8 +77,8 @@ class _Model(StrictModel):
 class House(_Model):
     """The house below the attic: description, envelope leakage and cooling system."""
 
-    name: str = "unnamed house"
-    note: str = ""
+    name: str = Field("unnamed house", max_length=200)
+    note: str = Field("", max_length=5000)
     envelope_leakage_area: Area | None = Field(
         None, gt=0.0, le=10.0, description="m2, effective leakage area of the house envelope at 4 Pa (blower door)")
     envelope_leakage_exponent: float = Field(0.65, ge=0.5, le=1.0)
@@ -126,7 +126,7 @@ class House(_Model):
 class Site(_Model):
     """Where the house is; used for the sun when the weather file does not say."""
 
-    name: str = "unnamed site"
+    name: str = Field("unnamed site", max_length=200)
     latitude: Angle = Field(ge=-90.0, le=90.0, description="degrees north")
     longitude: Angle = Field(ge=-180.0, le=180.0, description="degrees east")
     altitude: Length = Field(0.0, ge=-500.0, le=9000.0, description="m above sea level")
@@ -182,7 +182,7 @@ class Layer(_Model):
 class Plane(_Model):
     """One roof plane."""
 
-    name: str
+    name: str = Field(max_length=100)
     area: Area = Field(gt=0.0, le=10000.0, description="m2, sloped area")
     tilt: Angle = Field(ge=0.0, lt=90.0, description="degrees from horizontal, or pitch 'rise/12'")
     azimuth: Angle = Field(ge=0.0, le=360.0, description="degrees clockwise from north the plane faces")
@@ -240,8 +240,8 @@ MAX_ATTIC_HEIGHT = 30.0
 class Attic(_Model):
     """The attic volume and its framing."""
 
-    floor_area: Area = Field(gt=0.0, le=20000.0, description="m2, attic floor = ceiling area")
-    volume: Volume = Field(gt=0.0, le=200000.0, description="m3 of attic air")
+    floor_area: Area = Field(ge=1.0, le=20000.0, description="m2, attic floor = ceiling area")
+    volume: Volume = Field(ge=1.0, le=200000.0, description="m3 of attic air")
     framing_mass: Mass = Field(gt=0.0, le=1e6, description="kg of wood framing (rafters, trusses, gables)")
     framing_area: Area = Field(gt=0.0, le=1e5, description="m2 of framing surface exposed to attic air")
     floor_emittance: Fraction = Field(0.90, gt=0.0, le=1.0,
@@ -277,8 +277,8 @@ class Attic(_Model):
 class Ceiling(_Model):
     """Insulation over gypsum, with the rooms below held at a setpoint."""
 
-    insulation: RValue = Field(gt=0.0, le=35.0, description="m2K/W, or 'R-38' (IP) / 'RSI 6.7'; at most "
-                                                             "R-199, some 1.5 m of loose fill")
+    insulation: RValue = Field(ge=0.01, le=35.0, description="m2K/W, or 'R-38' (IP) / 'RSI 6.7'; 0.01 for none, "
+                                                              "at most R-199 (some 1.5 m of loose fill)")
     insulation_density: Density = Field(12.0, gt=0.0, le=1000.0, description="kg/m3")
     gypsum: Layer = Layer(material="gypsum")
     room_temperature: Temperature = Field(24.0, ge=5.0, le=40.0,
@@ -294,7 +294,7 @@ class Ceiling(_Model):
 class Opening(_Model):
     """A passive vent between outdoors and the attic."""
 
-    name: str
+    name: str = Field(max_length=100)
     kind: Literal["soffit", "gable", "ridge", "roof-vent"]
     net_free_area: Area = Field(gt=0.0, le=1000.0, description="m2 of net free area")
     height: Length = Field(ge=0.0, le=MAX_ATTIC_HEIGHT, description="m, centre of the opening above the attic "

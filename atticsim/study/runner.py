@@ -248,7 +248,10 @@ def plan_study(study: Study) -> Plan:
             overrides = point_overrides(p, base)
             sc = load_scenario(study.scenario, base_overrides + overrides)
         except ScenarioError as exc:
-            raise StudyError(f"--vary: point {i} ({label}): {exc.key + ': ' if exc.key else ''}{exc.reason}") from None
+            why = exc.reason
+            if exc.key == "fan.power" and "fan.flow" in p and not {"fan.power", "fan.speed_ratio"} & set(p):
+                why += "; fan.power scales with the varied fan.flow at the base fan's W per m3/s (vary fan.power too)"
+            raise StudyError(f"--vary: point {i} ({label}): {exc.key + ': ' if exc.key else ''}{why}") from None
         except StudyError as exc:
             raise StudyError(f"--vary: point {i} ({label}): {exc}") from None
         dump = sc.model_dump(mode="json")
