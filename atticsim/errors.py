@@ -40,21 +40,40 @@ class InterruptedRun(KeyboardInterrupt):
         self.signum, self.name = signum, name
 
 
+#: Packages whose ValueErrors are the solver's and the network's own consistency checks (a failure there on
+#: validated input is a bug to report, not bad input).
+_INTERNAL = ("hybrid", "network")
+
+
+def _innermost_file(exc: BaseException) -> str | None:
+    tb, last = exc.__traceback__, None
+    while tb is not None:
+        last, tb = tb, tb.tb_next
+    return None if last is None else last.tb_frame.f_code.co_filename
+
+
 def raised_by_atticsim(exc: BaseException) -> bool:
     """True when the innermost frame of the exception's traceback is atticsim's own code."""
     import os
 
+    where = _innermost_file(exc)
     package = os.path.dirname(os.path.abspath(__file__))
-    tb, last = exc.__traceback__, None
-    while tb is not None:
-        last, tb = tb, tb.tb_next
-    return last is not None and os.path.abspath(last.tb_frame.f_code.co_filename).startswith(package + os.sep)
+    return where is not None and os.path.abspath(where).startswith(package + os.sep)
 
 
 def is_input_error(exc: BaseException) -> bool:
-    """Bad input rather than a bug: the project's InputError, or a ValueError atticsim raised itself (its
-    one-line refusals in modules written before InputError); a ValueError from a library is a bug."""
-    return isinstance(exc, InputError) or (isinstance(exc, ValueError) and raised_by_atticsim(exc))
+    """Bad input rather than a bug: the project's InputError, or a ValueError atticsim raised itself with its
+    one-line refusal (modules written before InputError: circuit, airflow, forcing, sensor...). A ValueError
+    from a library (numpy, pandas), or from the solvers' and the network's own checks, is a bug."""
+    import os
+
+    if isinstance(exc, InputError):
+        return True
+    if not (isinstance(exc, ValueError) and raised_by_atticsim(exc)):
+        return False
+    package = os.path.dirname(os.path.abspath(__file__))
+    inner = os.path.relpath(os.path.abspath(_innermost_file(exc)), package).split(os.sep)[0]
+    return inner not in _INTERNAL
 
 
 def one_line(text: str, limit: int = 400) -> str:

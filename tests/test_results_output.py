@@ -71,3 +71,12 @@ def test_leftovers_of_a_killed_run_are_removed_with_a_note(tmp_path):
 def test_unusable_places_are_refused_before_anything_runs(where, reason):
     with pytest.raises(InputError, match=reason):
         claim_output(where)
+
+
+def test_hidden_folders_of_earlier_versions_beside_the_output_are_reported(tmp_path):
+    # earlier versions wrote into .<name>.<8 random characters>/ beside DIR and left it when stopped by SIGTERM
+    (tmp_path / ".out.k3j2h9x_").mkdir()
+    (tmp_path / ".other.k3j2h9x_").mkdir()  # another folder's: not this one's to report
+    with claim_output(tmp_path / "out") as claim:
+        assert len(claim.notes) == 1 and ".out.k3j2h9x_: looks like the unfinished files" in claim.notes[0]
+    assert (tmp_path / ".out.k3j2h9x_").exists()  # said, not removed

@@ -33,7 +33,9 @@ def run(scenario, out, weather, start, end, months, year, solver, overrides, uni
     claim = claim_out(out, force)  # fail before a long run, not after
     overrides = list(overrides)
     if solver:
-        overrides.append(f'simulation.solver="{solver}"')
+        from atticsim.scenario.load import override_text
+
+        overrides.append(override_text("simulation.solver", solver))
     if weather:
         overrides.append(weather_override(weather))
     sc = load_scenario(scenario, overrides)

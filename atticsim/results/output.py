@@ -106,7 +106,13 @@ def _lock(path: Path):
     """An exclusive flock on ``path`` (created if needed) -> file descriptor, or None when another process
     holds it. The lock belongs to the file the path names when it is taken (a lock on a file that another
     run removed meanwhile is dropped and taken again)."""
-    import fcntl
+    try:
+        import fcntl
+    except ImportError:  # no flock on this system: an exclusive create (a killed run's lock is then removed by hand)
+        try:
+            return os.open(path, os.O_RDWR | os.O_CREAT | os.O_EXCL, 0o644)
+        except FileExistsError:
+            return None
 
     for _ in range(10):
         fd = os.open(path, os.O_RDWR | os.O_CREAT | os.O_CLOEXEC, 0o644)
@@ -278,7 +284,7 @@ def claim_output(out: str | Path, force: bool = False, *, existing_ok: bool = Fa
                                 f"finish or choose another --out")
     claim = OutputClaim(out, fd, created, [])
     try:
-        claim.notes.extend(_clean_leftovers(out, lock))
+        claim.notes.extend(_clean_leftovers(out, lock) + _older_leftovers(out))
         info = {"pid": os.getpid(), "host": socket.gethostname(), "started": time.time(),
                 "command": " ".join(sys.argv[:1] + sys.argv[1:8])[:300]}
         os.ftruncate(fd, 0)
@@ -316,6 +322,20 @@ def _clean_leftovers(out: Path, lock: Path) -> list[str]:
     names = ", ".join(sorted(e.name for e in left)[:3]) + (", ..." if len(left) > 3 else "")
     return [f"{out}: removed the unfinished files of an earlier run that was stopped without cleaning up"
             f"{f' ({owner})' if owner else ''}: {names}"]
+
+
+def _older_leftovers(out: Path) -> list[str]:
+    """Hidden folders beside ``out`` that runs of earlier atticsim versions left when stopped while writing
+    (``.<name>.<8 random characters>``, ``.<name>.old``): said, not removed (nothing records their owner)."""
+    import re
+
+    pattern = re.compile(rf"^\.{re.escape(out.name)}\.(?:[a-z0-9_]{{8}}|old)$")
+    try:
+        found = sorted(e.name for e in os.scandir(out.parent) if e.is_dir() and pattern.match(e.name))
+    except OSError:
+        return []
+    return [f"{out.parent / name}: looks like the unfinished files of a run of an earlier atticsim version that was "
+            f"stopped while writing into {out.name}; delete it if no such run is going on" for name in found]
 
 
 def write_outputs(out, writers: dict, force: bool = False) -> list[Path]:

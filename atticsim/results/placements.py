@@ -37,8 +37,13 @@ def run_placements(scenario, placements=None, start=None, end=None, months=None,
     if workers > 1 and len(jobs) > 1:
         from atticsim.processes import process_pool
 
-        with process_pool(min(workers, len(jobs))) as pool:  # workers end with this process
+        pool = process_pool(min(workers, len(jobs)))  # workers end with this process
+        try:
             done = dict(pool.map(_one, jobs))
+        except BaseException:  # Ctrl-C, SIGTERM, a failed run: do not wait for the other placements
+            pool.shutdown(wait=False, cancel_futures=True)
+            raise
+        pool.shutdown()
     else:
         done = dict(map(_one, jobs))
     return {p: done[p] for p in placements}

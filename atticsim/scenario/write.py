@@ -125,7 +125,13 @@ def write_scenario(source: str | Path | None, overrides, changes: dict, out: str
         if force:
             os.replace(tmp, out)
         else:
-            os.link(tmp, out)  # fails if a file appeared there meanwhile: never overwritten without --force
+            try:
+                os.link(tmp, out)  # fails if a file appeared there meanwhile: never overwritten without --force
+            except FileExistsError:
+                raise
+            except OSError:  # a file system without hard links: create the file exclusively instead
+                with open(out, "x", encoding="utf-8") as fh:
+                    fh.write(result)
     except FileExistsError:
         raise OutputError(f"{out}: file exists; pass --force to overwrite it") from None
     except OSError as exc:
