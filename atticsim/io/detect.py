@@ -51,9 +51,15 @@ _TMY2_RECORD = re.compile(r"^ \d{8}")
 
 
 def _first_lines(path: str, count: int = 60) -> list[str]:
+    import stat
+
     try:
+        if not stat.S_ISREG(os.stat(path).st_mode):  # a device (/dev/zero), a pipe: never read to its end
+            if stat.S_ISDIR(os.stat(path).st_mode):
+                raise IsADirectoryError(path)
+            raise WeatherError(f"{path}: file: not a regular file (a device or a pipe); give a weather file")
         with open(path, encoding="latin-1") as handle:
-            lines = [line.rstrip("\r\n") for _, line in zip(range(count), handle)]
+            lines = handle.read(256 * 1024).splitlines()[:count]
         if lines and lines[0].startswith("\xef\xbb\xbf"):  # a UTF-8 byte-order mark, read as latin-1
             lines[0] = lines[0][3:]
         return lines
@@ -94,7 +100,7 @@ def detect_format(path: str | os.PathLike) -> str:
         return "epw"
     if len(lines) > 1 and lines[1].lstrip("\ufeff").startswith("Date (MM/DD/YYYY),Time (HH:MM)"):
         return "tmy3"
-    if _TMY2_HEADER.match(lines[0]) and len(lines) > 1 and _TMY2_RECORD.match(lines[1]):
+    if len(lines[0]) < 300 and _TMY2_HEADER.match(lines[0]) and len(lines) > 1 and _TMY2_RECORD.match(lines[1]):
         return "tmy2"
     shown = first[:60] + ("..." if len(first) > 60 else "")
     raise WeatherError(

@@ -6,6 +6,7 @@ Every error raised here is a :class:`ScenarioError` whose text is ``"<file>: <ke
 from __future__ import annotations
 
 import copy
+import os
 import tomllib
 from importlib import resources
 from pathlib import Path
@@ -294,7 +295,12 @@ MAX_TOML_BYTES = 2_000_000
 def read_toml(path: Path, error=ScenarioError) -> dict:
     """Read a TOML file (UTF-8, a byte-order mark allowed); a missing, unreadable, binary or malformed file
     becomes a one-line ``error(path, "", reason)``."""
+    import stat
+
     try:
+        mode = os.stat(path).st_mode
+        if not (stat.S_ISREG(mode) or stat.S_ISDIR(mode)):  # a device or a pipe would block or never end
+            raise error(path, "", "not a regular file (a device or a pipe); give a TOML file")
         with open(path, "rb") as fh:
             raw = fh.read(MAX_TOML_BYTES + 1)
     except FileNotFoundError:

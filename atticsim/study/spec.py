@@ -220,6 +220,8 @@ def parse_vary(text: str, option: str = "--vary") -> Axis:
         One line naming the option, the text and the reason.
     """
     where = f"{option} {short_repr(text) if len(text) > 60 else text}"
+    if len(text) > 5000:
+        raise StudyError(f"{where}: longer than 5000 characters; give a range START:STOP:STEP or fewer values")
     if "=" not in text:
         raise StudyError(f"{where}: expected KEY=START:STOP:STEP[unit] or KEY=a,b,c[unit]")
     key, raw = (s.strip() for s in text.split("=", 1))
