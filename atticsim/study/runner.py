@@ -659,6 +659,10 @@ def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, for
             study.seed = json.loads((out / STUDY_JSON).read_text())["study"]["seed"]
         except (json.JSONDecodeError, KeyError, TypeError):
             pass
+    size = study.points if study.sample == "lhs" else math.prod(len(ax.values) for ax in study.axes)
+    if progress is not None and size and size > 500:  # about a millisecond a point: say what the wait is
+        progress.write(f"sweep: checking the scenarios of {size:,} points ...\n")
+        progress.flush()
     plan = plan_study(study)
     previous = _check_dir(out, plan, resume, force)
     _check_runs(plan)
