@@ -14,6 +14,8 @@ import math
 import re
 from functools import lru_cache
 
+from atticsim.errors import InputError, short_repr
+
 #: Quantity kinds understood by :func:`to_si`: kind -> (SI unit as pint spells it, human description).
 KINDS: dict[str, tuple[str, str]] = {
     "length": ("m", "a length"),
@@ -54,8 +56,18 @@ _PITCH = re.compile(rf"^\s*({_NUMBER})\s*[/:]\s*12\s*(?:pitch)?\s*$", re.IGNOREC
 _SPLIT = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
 
 
-class UnitError(ValueError):
-    """A quantity whose unit is missing, unknown or of the wrong kind."""
+#: Longest text read as a quantity, and longest unit in it (characters): a guard against pasted junk
+#: (and against the regular expressions' and pint's parser's work on it).
+MAX_TEXT = 100
+MAX_UNIT = 60
+# an exponent in a unit: a small plain number (m**2, m^-1, s**0.5), never a chain (10**10**10 would take
+# pint's parser hours to evaluate) nor an expression
+_POWER = re.compile(r"\*\*|\^")
+_SMALL_EXPONENT = re.compile(r"\s*[-+]?\d(?:\.\d{1,3})?(?!\s*(?:\d|\.|\*\*|\^|\())")
+
+
+class UnitError(InputError):
+    """A quantity whose unit is missing, unknown or of the wrong kind, or whose number is not finite."""
 
 
 @lru_cache(maxsize=1)
@@ -70,8 +82,7 @@ def registry():
     folder = _pint_cache_folder(pint)
     try:
         ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=folder)
-    except (OSError, ValueError, EOFError, AttributeError, ImportError):
-        # a damaged or stale cache entry: build the registry from pint's own files instead
+    except Exception:  # noqa: BLE001 - any failure of the cache (damaged, stale, unreadable) means: no cache
         ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
     ureg.define("cubic_foot_per_minute = foot**3/minute = cfm = CFM")
     ureg.define("inch_water_column = 249.0889 * pascal = in_wc = inWC = in_w_c")
@@ -125,38 +136,58 @@ def to_si(value, kind: str) -> float:
     if isinstance(value, bool):
         raise UnitError(f"expected {KINDS[kind][1]}, got a true/false value")
     if isinstance(value, (int, float)):
-        return float(value)
+        return _finite(value, value)
     if not isinstance(value, str):
-        raise UnitError(f"expected {KINDS[kind][1]}, got {value!r}")
+        raise UnitError(f"expected {KINDS[kind][1]}, got {short_repr(value)}")
     text = value.strip()
+    if len(text) > MAX_TEXT:
+        raise UnitError(f"expected {KINDS[kind][1]} such as '{_example(kind)}', got a text of {len(text)} "
+                        f"characters (at most {MAX_TEXT})")
     if kind == "r_value":
         m = _R_VALUE.match(text)
         if m:
-            number = float(m.group(2))
+            number = _finite(float(m.group(2)), value)
             # "R-38" is the North American trade R-value in ft2.degF.h/Btu; "RSI 6.7" is already SI.
             return number if m.group(1).upper() == "RSI" else number * R_IP_TO_SI
     if kind == "angle":
         m = _PITCH.match(text)
         if m:
             # Roof pitch "rise/12": angle = atan(rise/12) (common practice, carpentry).
-            return math.degrees(math.atan(float(m.group(1)) / 12.0))
+            return math.degrees(math.atan(_finite(float(m.group(1)), value) / 12.0))
     m = _SPLIT.match(text)
     if not m:
-        raise UnitError(f"expected {KINDS[kind][1]} such as '{_example(kind)}', got {value!r}")
-    number, unit = float(m.group(1)), m.group(2)
+        raise UnitError(f"expected {KINDS[kind][1]} such as '{_example(kind)}', got {short_repr(value)}")
+    number, unit = _finite(float(m.group(1)), value), m.group(2)
     if not unit:
         return number
-    return _convert(number, unit, kind, value)
+    return _finite(_convert(number, unit, kind, value), value)
+
+
+def _finite(number, original) -> float:
+    """``number`` as a finite float, else UnitError (inf, nan, 1e400, an integer too large for a float)."""
+    try:
+        x = float(number)
+    except OverflowError:
+        raise UnitError(f"{short_repr(original)} is too large a number") from None
+    if not math.isfinite(x):
+        raise UnitError(f"{short_repr(original)} is not a finite number")
+    return x
 
 
 def _convert(number: float, unit: str, kind: str, original) -> float:
     # Trade shorthand "ft2", "m3/s" -> "ft**2", "m**3/s".
     unit = re.sub(r"(?<=[A-Za-z])([23])(?![\d.])", r"**\1", unit)
+    if len(unit) > MAX_UNIT:
+        raise UnitError(f"the unit of {short_repr(original)} is longer than {MAX_UNIT} characters")
+    if any(not _SMALL_EXPONENT.match(unit, p.end()) for p in _POWER.finditer(unit)):
+        raise UnitError(f"unknown unit {short_repr(unit)} in {short_repr(original)} (an exponent in a unit is a "
+                        f"small plain number: m**2, m^-1)")
     outcome, value = _pint_convert(number, unit, kind)
     if outcome == "unknown":
-        raise UnitError(f"unknown unit {unit!r} in {original!r}")
+        raise UnitError(f"unknown unit {short_repr(unit)} in {short_repr(original)}")
     if outcome == "dimension":
-        raise UnitError(f"expected {KINDS[kind][1]} such as '{_example(kind)}', got {original!r} (unit {unit!r})")
+        raise UnitError(f"expected {KINDS[kind][1]} such as '{_example(kind)}', got {short_repr(original)} "
+                        f"(unit {short_repr(unit)})")
     return value
 
 
@@ -171,9 +202,8 @@ def _pint_convert(number: float, unit: str, kind: str) -> tuple:
     target = KINDS[kind][0]
     try:
         q = ureg.Quantity(number, unit)
-    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
-            TypeError, ValueError, AssertionError):
-        return "unknown", None
+    except Exception:  # noqa: BLE001 - pint's parser raises many kinds (TokenError for an unbalanced
+        return "unknown", None  # bracket, ZeroDivisionError for "m/0", RecursionError...): not a unit
     try:
         if kind == "temperature_difference":
             unit_str = str(q.units)
@@ -184,6 +214,8 @@ def _pint_convert(number: float, unit: str, kind: str) -> tuple:
         return "ok", float(q.to(target).magnitude)
     except pint.errors.DimensionalityError:
         return "dimension", None
+    except Exception:  # noqa: BLE001 - an offset unit in a product, an overflow: not a quantity of this kind
+        return "unknown", None
 
 
 def _example(kind: str) -> str:
@@ -267,3 +299,17 @@ def ip_companion(name: str):
         if name.endswith(si) and len(name) > len(si):
             return name[: -len(si)] + ip, convert
     return None
+
+
+def ip_text(value: float, kind: str) -> str:
+    """An SI value of ``kind`` in the trade's IP unit, for messages (``"98.43 ft"``, ``"R-199"``, ``"212 degF"``);
+    empty for kinds without one."""
+    if kind == "temperature":
+        return f"{c_to_f(value):.4g} degF"
+    if kind == "r_value":
+        return f"R-{value * IP_FACTORS['r_value'][0]:.3g}"
+    if kind in IP_FACTORS:
+        factor, label = IP_FACTORS[kind]
+        x = value * factor
+        return f"{x:,.0f} {label}" if 1000 <= abs(x) < 1e12 else f"{x:.4g} {label}"
+    return ""

@@ -265,8 +265,8 @@ def invoke(*args):
 @pytest.mark.parametrize("override,key,reason", [
     ("thermostat.start_delay=-5", "thermostat.start_delay", "from 0 to one day"),
     ('thermostat.run_on="2 days"', "thermostat.run_on", "from 0 to one day"),
-    ("thermostat.min_run=nan", "thermostat.min_run", "from 0 to one day"),
-    ("thermostat.min_rest=inf", "thermostat.min_rest", "from 0 to one day"),
+    ("thermostat.min_run=nan", "thermostat.min_run", "not a finite number"),
+    ("thermostat.min_rest=inf", "thermostat.min_rest", "not a finite number"),
     ('thermostat.min_rest="5 degC"', "thermostat.min_rest", "expected a time"),
     ("thermostat.timer.threshold=1.2", "thermostat.timer.threshold", "less than 1"),
     ('thermostat.timer.threshold="2/0"', "thermostat.timer.threshold", "fraction"),

@@ -68,7 +68,7 @@ def test_run_writes_results_for_one_day(tmp_path):
     (('[vents]', '[vents]\ncolour = "red"'), "vents.colour", "unknown key"),
     (('insulation = "R-30"\n', ''), "ceiling.insulation", "required key is missing"),
     (('kind = "setpoints"', 'kind = "magic"'), "thermostat", "kind"),
-    (('latitude = 29.3', 'latitude = 129.3'), "site.latitude", "less than or equal to 90"),
+    (('latitude = 29.3', 'latitude = 129.3'), "site.latitude", "must be at most 90 deg"),
     # renamed keys name their successors
     (('action = "close-on-rise"', 'mode = "heat"'), "thermostat.mode", "use thermostat.action"),
     (('underside_emittance = 0.90', 'underside_emittance = 0.90\nroughness = "rough"'), "roof.roughness",
@@ -124,3 +124,70 @@ def test_help_is_fast_to_import():
     code = "import sys, atticsim.cli.main; print(sorted(m for m in ('matplotlib', 'pvlib', 'pandas', 'scipy.integrate', 'numba') if m in sys.modules))"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
     assert out.strip() == "[]"
+
+
+# --- valid input the commands must take (each was once refused or mangled) ----------------------------------
+
+ONE_DAY = ["--start", "2025-07-01", "--end", "2025-07-01", "--set", "simulation.spinup_days=0"]
+
+
+def _demo_weather_csv(path):
+    from atticsim.forcing.weather import load_weather
+    from atticsim.io import write_weather_csv
+
+    frame, meta = load_weather("demo:saltmarsh-point")  # invented weather
+    path.parent.mkdir(parents=True, exist_ok=True)
+    write_weather_csv(frame.loc["2025-07-01":"2025-07-02"], meta, path)
+    return path
+
+
+def test_a_byte_order_mark_is_not_content(tmp_path):
+    # editors on some systems start a UTF-8 file with a byte-order mark; it is read, not refused
+    scenario = tmp_path / "bom.toml"
+    scenario.write_bytes(b"\xef\xbb\xbf" + DEMO.read_bytes())
+    weather = _demo_weather_csv(tmp_path / "plain.csv")
+    (tmp_path / "bom.csv").write_bytes(b"\xef\xbb\xbf" + weather.read_bytes())
+    r = invoke("run", scenario, "--weather", tmp_path / "bom.csv", "--out", tmp_path / "o", *ONE_DAY)
+    assert r.exit_code == 0, r.output
+
+
+def test_a_weather_path_with_backslashes_reaches_the_run_as_typed(tmp_path):
+    # a folder named with backslashes (as a Windows path pasted on Linux): "\t" must stay backslash-t, never a tab
+    weather = _demo_weather_csv(tmp_path / "C:\\tmp\\new" / "w.csv")
+    r = invoke("run", "--weather", weather, "--out", tmp_path / "o", *ONE_DAY)
+    assert r.exit_code == 0, r.output
+    r = invoke("sweep", "--weather", weather, "--vary", "thermostat.on=38,40degC", "--workers", "1",
+               "--out", tmp_path / "s", *ONE_DAY)
+    assert r.exit_code == 0, r.output
+    rec = json.loads((tmp_path / "s" / "study.json").read_text())
+    assert rec["scenario"]["weather"]["file"] == str(weather)
+
+
+def test_pvlib_and_demo_weather_are_taken_by_every_command(tmp_path):
+    # pvlib's hot-humid typical year (a real climate, TMY2); the file names its site
+    for i, args in enumerate((["run"], ["placements", "--only", "ridge,mid", "--workers", "1"],
+                              ["sweep", "--vary", "thermostat.on=38,40degC", "--workers", "1"])):
+        for weather in ("pvlib:12839.tm2", "demo:dry-wash-flats"):
+            r = invoke(*args, "--weather", weather, "--out", tmp_path / f"{i}{weather[:4]}", *ONE_DAY)
+            assert r.exit_code == 0, (args, weather, r.output)
+
+
+def test_a_fan_curve_without_vent_openings_runs(tmp_path):
+    r = invoke("run", "--out", tmp_path / "o", *ONE_DAY, "--set", "fan.curve_pressure=[0, 50]",
+               "--set", 'fan.curve_flow=["1200 cfm", "0 cfm"]')
+    assert r.exit_code == 0, r.output
+
+
+def test_a_bug_is_one_line_saying_so_and_exit_1(tmp_path, monkeypatch):
+    import atticsim.pipeline
+
+    def broken(*a, **kw):
+        raise KeyError("a key this test removed")
+
+    monkeypatch.setattr(atticsim.pipeline, "simulate", broken)
+    r = invoke("run", "--out", tmp_path / "o", *ONE_DAY)
+    assert r.exit_code == 1
+    assert r.stderr.strip().splitlines()[-1] == (
+        "atticsim: internal error: KeyError: 'a key this test removed' (a bug in atticsim, not in your input; "
+        "please report it with the command you ran; ATTICSIM_DEBUG=1 shows the traceback)")
+    assert "Traceback" not in r.output and not (tmp_path / "o").exists()

@@ -182,7 +182,8 @@ def test_short_nan_gap_is_repaired_and_counted(tmp_path):
 
 
 def test_year_other_than_the_data_is_refused(tmp_path):
-    with pytest.raises(ValueError, match="year: the file holds dated weather starting in 2025"):
+    with pytest.raises(ValueError, match="year: --year 2030 lays a typical year on a calendar year, but this file "
+                                         "holds dated weather starting in 2025"):
         read_weather_csv(write(tmp_path), year=2030)
 
 

@@ -49,8 +49,11 @@ def test_bead_step_response_in_the_network_matches_its_correlation_time_constant
     # the fan's exhaust stream). A 1 K step keeps the response linear.
     body = preset("epoxy-bead-2mm")
     for placement, fan_on, fan_flow in (("mid", False, 0.0), ("exhaust", True, 0.566)):
-        sc = demo_scenario(["attic.volume=1e9", "attic.ridge_height=2.5", "attic.air_layers=1",
+        sc = demo_scenario(["attic.ridge_height=2.5", "attic.air_layers=1",
                             "vents.passive_ach=0", f'sensor.placement="{placement}"'] + BEAD)
+        # an attic of 1e9 m3 holds its air at 40 degC: a device of this test, beyond the schema's physical
+        # bounds, so set after validation (model_copy does not validate)
+        sc = sc.model_copy(update={"attic": sc.attic.model_copy(update={"volume": 1e9})})
         net = build_network(sc)
         frame, meta = make_weather(np.full(4, 40.0))
         forcing = build_forcing(frame, meta, sc)

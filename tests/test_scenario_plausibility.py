@@ -8,20 +8,31 @@ import pytest
 from click.testing import CliRunner
 
 from atticsim.cli.main import cli
-from atticsim.scenario import demo_scenario, load_scenario
+from atticsim.scenario import ScenarioError, demo_scenario, load_scenario
 
 ROOT = Path(__file__).resolve().parent.parent
 CFM = 0.3048**3 / 60.0  # m3/s per cfm (NIST SP 811 appendix B: 1 ft = 0.3048 m)
 
 
-def test_a_bare_1200_for_a_flow_names_the_likely_unit():
-    sc = demo_scenario(["fan.flow=1200"])
-    assert sc.fan.flow == 1200.0  # read as given: 1200 m3/s (the scenario runs; it is a warning)
-    w = [x for x in sc.input_warnings if x.startswith("fan.flow = 1200 ")]
+def test_a_bare_1200_for_a_flow_is_refused_naming_the_likely_unit():
+    # 1200 m3/s (2.5 million cfm) is beyond any attic fan (the schema's bound, 100 m3/s): refused at once, with
+    # the advice the warnings give
+    with pytest.raises(ScenarioError) as err:
+        demo_scenario(["fan.flow=1200"])
+    line = str(err.value)
+    assert "\n" not in line and "fan.flow: must be at most 100 m3/s" in line and "(got 1200 m3/s)" in line
+    # 1200 cfm = 1200 x 0.000471947 = 0.5663 m3/s
+    assert "1,200 cfm (0.5663 m3/s)" in line and 'write fan.flow = "1200 cfm"' in line
+
+
+def test_a_bare_50_for_a_flow_names_the_likely_unit():
+    sc = demo_scenario(["fan.flow=50"])
+    assert sc.fan.flow == 50.0  # read as given: 50 m3/s, within the bounds (the scenario runs; it is a warning)
+    w = [x for x in sc.input_warnings if x.startswith("fan.flow = 50 ")]
     assert len(w) == 1
-    # 1200 cfm = 1200 x 0.000471947 = 0.5663 m3/s; 1200 m3/s = 1200 / 0.000471947 = 2,542,656 cfm
-    assert "1,200 m3/s (2,542,656 cfm)" in w[0] and "1,200 cfm (0.5663 m3/s)" in w[0]
-    assert 'write fan.flow = "1200 cfm"' in w[0]
+    # 50 cfm = 50 x 0.000471947 = 0.0236 m3/s; 50 m3/s = 50 / 0.000471947 = 105,944 cfm
+    assert "50 m3/s (105,944 cfm)" in w[0] and "50 cfm (0.0236 m3/s)" in w[0]
+    assert 'write fan.flow = "50 cfm"' in w[0]
     # the fan is also far outside the trade's sizing (about 0.7 cfm per ft2 of attic floor)
     assert any("cfm per ft2" in x for x in sc.input_warnings)
     # with its unit it is an ordinary fan: no warning at all
@@ -69,10 +80,10 @@ def test_shipped_scenarios_raise_no_warning(name):
 def test_run_prints_and_records_input_warnings(tmp_path):
     out = tmp_path / "r"
     r = CliRunner().invoke(cli, ["run", "--out", str(out), "--start", "2025-07-01", "--end", "2025-07-01",
-                                 "--set", "simulation.spinup_days=0", "--set", "fan.flow=1200"])
+                                 "--set", "simulation.spinup_days=0", "--set", "fan.flow=50"])
     assert r.exit_code == 0, r.output
-    assert "WARNING: fan.flow = 1200 is read as 1,200 m3/s" in r.output
+    assert "WARNING: fan.flow = 50 is read as 50 m3/s" in r.output
     s = json.loads((out / "summary.json").read_text())
-    assert any(w.startswith("fan.flow = 1200 is read as") for w in s["warnings"])
-    # such a fan (2.5 million cfm) chatters: the run says so too
+    assert any(w.startswith("fan.flow = 50 is read as") for w in s["warnings"])
+    # such a fan (106,000 cfm) chatters: the run says so too
     assert s["short_cycles"] > 20 and any("short cycles" in w for w in s["warnings"])

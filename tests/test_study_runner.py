@@ -9,6 +9,7 @@ import json
 import pandas as pd
 import pytest
 
+from atticsim.errors import InputError
 from atticsim.study.runner import JOURNAL, run_study
 from atticsim.study.spec import Study, StudyError, parse_vary
 
@@ -83,7 +84,7 @@ def test_resume_after_interruption_gives_the_uninterrupted_table(reference, tmp_
     assert len(lines) == 2 and not (out / "points.csv").exists()
     with open(out / JOURNAL, "a") as fh:  # a write torn by the crash must not spoil the resume
         fh.write('{"index": 2, "key": "abc", "sta')
-    with pytest.raises(StudyError, match="--resume"):  # the folder is not silently reused
+    with pytest.raises(InputError, match="--resume"):  # the folder is not silently reused
         run_study(hysteresis_study(), out, workers=1)
     outcome = run_study(hysteresis_study(), out, workers=1, resume=True)
     assert (outcome.reused, outcome.computed) == (2, 2)  # finished points are not recomputed
@@ -138,3 +139,31 @@ def test_run_point_restores_the_garbage_collector():
                 assert gc.isenabled() == enabled
     finally:
         (gc.enable if was else gc.disable)()
+
+
+@pytest.mark.parametrize("error,code,line", [
+    ("input", 2, "atticsim: error: sweep: every one of the 4 points failed, e.g. point 0 "
+                 "(thermostat.hysteresis=0.5 K): WeatherError: made.csv: temp_air: a refusal made by this test"),
+    ("bug", 1, "atticsim: internal error: RuntimeError: every one of the 4 points failed, e.g. point 0 "
+               "(thermostat.hysteresis=0.5 K): ZeroDivisionError: a bug made by this test"),
+])
+def test_a_study_whose_every_point_fails_stops_in_one_line_leaving_nothing(tmp_path, monkeypatch, error, code, line):
+    import atticsim.pipeline
+    from click.testing import CliRunner
+
+    from atticsim.cli.main import cli
+    from atticsim.io import WeatherError
+
+    def failing(*args, **kw):
+        if error == "input":
+            raise WeatherError("made.csv: temp_air: a refusal made by this test")
+        raise ZeroDivisionError("a bug made by this test")
+
+    monkeypatch.setattr(atticsim.pipeline, "simulate", failing)
+    out = tmp_path / "study"
+    r = CliRunner().invoke(cli, ["sweep", "--vary", f"thermostat.hysteresis={WIDTHS}", "--start", "2025-07-01",
+                                 "--end", "2025-07-01", "--workers", "1", "--out", str(out),
+                                 *[a for o in FAST for a in ("--set", o)]])
+    assert r.exit_code == code, r.output
+    assert r.stderr.strip().splitlines()[-1].startswith(line), r.stderr
+    assert not out.exists()  # no journal, no study.json, no folder: nothing of value was made

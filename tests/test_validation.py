@@ -162,8 +162,10 @@ def test_validate_writes_the_page_and_exits_by_outcome(outcome, status, tmp_path
     data = json.loads((out / "validation.json").read_text())
     assert [c["status"] for c in data["cases"]][0] == "within" and len(data["cases"]) == 2
     assert "2 cases: 1 within tolerance" in page and "2 cases: 1 within tolerance" in res.output
+    report = (out / "report.html").read_text()  # the same page for a browser: headline, every case, why
+    assert "2 cases: 1 within tolerance" in report and "good case" in report and "other case" in report
     if outcome == "known":
-        assert "a reason we know" in page and "known miss" in res.output
+        assert "a reason we know" in page and "known miss" in res.output and "a reason we know" in report
     else:
         assert "UNEXPECTED" in res.output
     # an existing folder is not overwritten without --force: one line, exit status 2

@@ -2,21 +2,24 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import click
 
-from atticsim.cli.options import force_option, out_option, scenario_argument, set_option, units_option
+from atticsim.cli.options import (ISO_DATE, Quantity, claim_out, force_option, out_option, scenario_argument,
+                                  set_option, units_option)
 
 
 @click.command()
 @scenario_argument
 @out_option
-@click.option("--date", required=True, help="Design day, ISO date (e.g. 2025-07-21).")
-@click.option("--tmax", required=True, help='Design maximum dry-bulb, e.g. "35degC" or "95degF".')
-@click.option("--range", "daily_range", required=True, help='Mean daily range, e.g. "10K" or "18degF".')
-@click.option("--dew", help="Dew point (default: the day's minimum dry-bulb).")
-@click.option("--wind", default="3.4", show_default=True, help="Wind speed, m/s or with a unit.")
+@click.option("--date", required=True, type=ISO_DATE, help="Design day, ISO date (e.g. 2025-07-21).")
+@click.option("--tmax", required=True, type=Quantity("temperature", -60.0, 60.0),
+              help='Design maximum dry-bulb, e.g. "35degC" or "95degF".')
+@click.option("--range", "daily_range", required=True, type=Quantity("temperature_difference", 0.0, 40.0),
+              help='Mean daily range, e.g. "10K" or "18degF".')
+@click.option("--dew", type=Quantity("temperature", -80.0, 60.0),
+              help="Dew point (default: the day's minimum dry-bulb).")
+@click.option("--wind", default="3.4", show_default=True, type=Quantity("velocity", 0.0, 40.0),
+              help="Wind speed, m/s or with a unit.")
 @set_option
 @units_option
 @force_option
@@ -27,14 +30,14 @@ def designday(scenario, out, date, tmax, daily_range, dew, wind, overrides, unit
     from atticsim.pipeline import design_day
     from atticsim.report.text import summary_text
     from atticsim.results.export import result_writers
-    from atticsim.results.output import check_output_dir, write_outputs
     from atticsim.scenario import load_scenario
     from atticsim.units import to_si
 
-    check_output_dir(Path(out), force)
+    claim = claim_out(out, force)  # fail before the run, not after
     sc = load_scenario(scenario, list(overrides))
     result = design_day(sc, date, to_si(tmax, "temperature"), to_si(daily_range, "temperature_difference"),
-                        dew_point=to_si(dew, "temperature") if dew else None, wind_speed=to_si(wind, "velocity"))
+                        dew_point=to_si(dew, "temperature") if dew is not None else None,
+                        wind_speed=to_si(wind, "velocity"))
     from atticsim.cli.options import command_line, given_options
     from atticsim.report.html import report_writer, run_page
     from atticsim.report.inputs import scenario_inputs
@@ -46,7 +49,7 @@ def designday(scenario, out, date, tmax, daily_range, dew, wind, overrides, unit
     writers = result_writers(result, units)
     writers["report.html"] = report_writer(lambda folder: run_page(
         result, units, inputs, given_options(ctx), command_line(ctx), folder, kind="design day", design=design))
-    files = write_outputs(out, writers, force=force)
+    files = claim.write(writers)
     click.echo(summary_text(result, units))
     click.echo(f"periodic to {result.summary['periodic_residual_k']:.2e} K after "
                f"{result.summary['spinup_days_used']} repeated days; wrote {len(files)} files to {out}", err=True)

@@ -2,14 +2,12 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import click
 
+from atticsim.cli.options import (claim_out, force_option, load_checked_weather, out_option, period_options,
+                                  scenario_argument, set_option, units_option, weather_option, weather_override,
+                                  workers_type)
 from atticsim.network.placement import PLACEMENTS
-
-from atticsim.cli.options import (force_option, out_option, period_options, scenario_argument, set_option,
-                                  units_option)
 
 
 @click.command()
@@ -19,42 +17,44 @@ from atticsim.cli.options import (force_option, out_option, period_options, scen
 @period_options[0]
 @period_options[1]
 @click.option("--months", help="Month range or season instead of dates.")
-@click.option("--workers", type=int, default=2, show_default=True, help="Parallel runs.")
+@weather_option
+@click.option("--workers", type=workers_type(), default=2, show_default=True, help="Parallel runs.")
 @set_option
 @units_option
 @force_option
-def placements(scenario, out, only, start, end, months, workers, overrides, units, force):
+def placements(scenario, out, only, start, end, months, weather, workers, overrides, units, force):
     """Compare sensor placements for SCENARIO: writes placements.csv, placements.json, placements.png and
     report.html, and says which placements short-cycle and why."""
     from atticsim.report.cautions import caution_text
     from atticsim.report.plots import plot_placements
-    from atticsim.results.output import check_output_dir, write_json, write_outputs
+    from atticsim.results.output import write_json
     from atticsim.study.placements import placement_findings, placement_table, run_placements
     from atticsim.scenario import load_scenario
 
-    check_output_dir(Path(out), force)
-    sc = load_scenario(scenario, list(overrides))
+    claim = claim_out(out, force)  # fail before the runs, not after
+    sc = load_scenario(scenario, list(overrides) + ([weather_override(weather)] if weather else []))
     names = [p.strip() for p in only.split(",")] if only else None
+    load_checked_weather(sc, scenario or "<built-in demo house>", start, end, months)
     click.echo("running one simulation per placement ...", err=True)
     results = run_placements(sc, names, start=start, end=end, months=months, workers=workers)
     table = placement_table(results)
     findings = placement_findings(table, sc.simulation.short_cycle / 60.0)
     from atticsim.cli.options import command_line, given_options
     from atticsim.report.html import report_writer
-    from atticsim.study.pages import placements_page
     from atticsim.report.inputs import scenario_inputs
     from atticsim.results.export import ip_table
+    from atticsim.study.pages import placements_page
 
     ctx = click.get_current_context()
     inputs = scenario_inputs(scenario, overrides, sc)
-    files = write_outputs(out, {
+    files = claim.write({
         "placements.csv": lambda p: ip_table(table, units).to_csv(p, index=False, float_format="%.4f"),
         "placements.json": lambda p: write_json(p, {"placements": ip_table(table, units).to_dict(orient="records"),
                                                     "findings": findings}),
         "placements.png": lambda p: plot_placements(results, p, units),
         "report.html": report_writer(lambda folder: placements_page(
             sc, results, table, findings, units, inputs, given_options(ctx), command_line(ctx), folder)),
-    }, force=force)
+    })
     with_cols = ["placement", "starts_per_day", "short_cycles", "median_on_minutes", "fan_run_hours",
                  "attic_air_max_c", "ceiling_heat_gain_kwh", "sensor_lag_min", "overshoot_at_switch_on_k"]
     click.echo(table[with_cols].to_string(index=False, float_format=lambda v: f"{v:.2f}"))

@@ -2,12 +2,11 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import click
 
-from atticsim.cli.options import (force_option, out_option, period_options, scenario_argument, set_option,
-                                  units_option, weather_option)
+from atticsim.cli.options import (YEARS, claim_out, force_option, out_option, period_options, scenario_argument,
+                                  load_checked_weather, set_option, units_option, weather_option,
+                                  weather_override)
 
 
 @click.command()
@@ -17,7 +16,7 @@ from atticsim.cli.options import (force_option, out_option, period_options, scen
 @period_options[0]
 @period_options[1]
 @click.option("--months", help="Month range or season instead of dates: jun-aug, 7, summer, cooling, year.")
-@click.option("--year", type=int, help="Calendar year to run a typical-year weather file as (and of --months).")
+@click.option("--year", type=YEARS, help="Calendar year to run a typical-year weather file as (and of --months).")
 @click.option("--solver", type=click.Choice(["fast", "reference"]),
               help="fast: exact discretisation (default); reference: scipy LSODA with event functions.")
 @set_option
@@ -29,35 +28,35 @@ def run(scenario, out, weather, start, end, months, year, solver, overrides, uni
     Writes summary.json, daily.csv, monthly.csv, timeseries.csv, events.csv, temperatures.png,
     monthly.png and report.html (one page to hand a client). --weather takes a file, pvlib:FILE (a typical-year file shipped with pvlib) or demo:NAME.
     """
-    from atticsim.results.output import check_output_dir
     from atticsim.scenario import load_scenario
 
-    check_output_dir(Path(out), force)  # fail before a long run, not after
+    claim = claim_out(out, force)  # fail before a long run, not after
     overrides = list(overrides)
     if solver:
-        overrides.append(f'simulation.solver="{solver}"')
+        from atticsim.scenario.load import override_text
+
+        overrides.append(override_text("simulation.solver", solver))
     if weather:
-        w = weather if weather.startswith(("demo:", "pvlib:")) else str(Path(weather).resolve())
-        overrides.append(f'weather.file="{w}"')
+        overrides.append(weather_override(weather))
     sc = load_scenario(scenario, overrides)
+    weather_data = load_checked_weather(sc, scenario or "<built-in demo house>", start, end, months, year)
 
     from atticsim.cli.options import command_line, given_options
     from atticsim.report.html import report_writer, run_page
     from atticsim.report.inputs import scenario_inputs
     from atticsim.report.text import summary_text
     from atticsim.results.export import result_writers
-    from atticsim.results.output import write_outputs
     from atticsim.pipeline import simulate
 
     for w in sc.input_warnings:  # said before a long run too; the summary repeats them
         click.echo(f"atticsim: warning: {w}", err=True)
     click.echo(f"simulating {sc.house.name} ...", err=True)
-    result = simulate(sc, start=start, end=end, months=months, year=year)
+    result = simulate(sc, weather=weather_data, start=start, end=end, months=months, year=year)
     ctx = click.get_current_context()
     inputs = scenario_inputs(scenario, overrides, sc)
     writers = result_writers(result, units)
     writers["report.html"] = report_writer(lambda folder: run_page(
         result, units, inputs, given_options(ctx), command_line(ctx), folder))
-    files = write_outputs(out, writers, force=force)
+    files = claim.write(writers)
     click.echo(summary_text(result, units))
     click.echo(f"wrote {len(files)} files to {out}", err=True)

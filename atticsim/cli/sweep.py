@@ -8,7 +8,7 @@ from pathlib import Path
 import click
 
 from atticsim.cli.options import (force_option, out_option, period_options, scenario_argument, set_option,
-                                  weather_option)
+                                  weather_option, weather_override, workers_type)
 
 
 @click.command()
@@ -26,7 +26,7 @@ from atticsim.cli.options import (force_option, out_option, period_options, scen
 @period_options[1]
 @weather_option
 @set_option
-@click.option("--workers", type=click.IntRange(min=1), help="Local worker processes [default: all cores].")
+@click.option("--workers", type=workers_type(), help="Local worker processes [default: all cores].")
 @click.option("--scheduler", metavar="tcp://HOST:PORT", help="Run the points on a Dask scheduler.")
 @click.option("--resume", is_flag=True, help="Continue a study in --out, keeping its finished points.")
 @force_option
@@ -59,8 +59,7 @@ def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, wea
         study.scenario = str(Path(scenario).resolve())
     study.base_overrides = list(study.base_overrides) + list(overrides)
     if weather:
-        w = weather if weather.startswith(("demo:", "pvlib:")) else str(Path(weather).resolve())
-        study.base_overrides.append(f'weather.file="{w}"')
+        study.base_overrides.append(weather_override(weather))
     for text in vary:
         axis = parse_vary(text)
         study.axes = [a for a in study.axes if a.key != axis.key] + [axis]

@@ -8,7 +8,7 @@ import click
 
 from pathlib import Path
 
-from atticsim.cli.options import force_option, scenario_argument, set_option, units_option
+from atticsim.cli.options import Quantity, claim_out, force_option, scenario_argument, set_option, units_option
 
 
 @click.command()
@@ -16,9 +16,11 @@ from atticsim.cli.options import force_option, scenario_argument, set_option, un
 @set_option
 @click.option("--json", "as_json", is_flag=True, help="Print the figures as JSON.")
 @click.option("--design", is_flag=True, help="Choose the trimmer and feedback resistor for --on/--off.")
-@click.option("--on", "on_", help='Wanted switch-on temperature, e.g. "40degC" or "104degF" (with --design).')
-@click.option("--off", help='Wanted switch-off temperature (with --design).')
-@click.option("--hysteresis", help='Wanted hysteresis instead of --off, e.g. "5K" (with --design).')
+@click.option("--on", "on_", type=Quantity("temperature", -40.0, 120.0),
+              help='Wanted switch-on temperature, e.g. "40degC" or "104degF" (with --design).')
+@click.option("--off", type=Quantity("temperature", -40.0, 120.0), help='Wanted switch-off temperature (with --design).')
+@click.option("--hysteresis", type=Quantity("temperature_difference", 0.01, 60.0),
+              help='Wanted hysteresis instead of --off, e.g. "5K" (with --design).')
 @click.option("--basis", type=click.Choice(["air", "thermistor"]), default="air", show_default=True,
               help="With --design: the wanted temperatures are the AIR's around the sensor (its self-heating "
                    "included) or the thermistor's own.")
@@ -45,12 +47,11 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis
     if write_to and not design:
         raise click.UsageError("--write needs --design (it writes the parts the design chooses)")
     if write_to and not force:
-        if Path(write_to).exists():
-            raise FileExistsError(f"{write_to}: file exists; pass --force to overwrite it")
-    if out:
-        from atticsim.results.output import check_output_dir
+        from atticsim.errors import OutputError
 
-        check_output_dir(Path(out), force)
+        if Path(write_to).exists():
+            raise OutputError(f"{write_to}: file exists; pass --force to overwrite it")
+    claim = claim_out(out, force) if out else None  # fail before anything runs, not after
     sc = load_scenario(scenario, list(overrides))
     for w in sc.input_warnings:
         click.echo(f"atticsim: warning: {w}", err=True)
@@ -64,8 +65,9 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis
         if on_ is None or (off is None) == (hysteresis is None):
             raise click.UsageError("--design needs --on and one of --off or --hysteresis")
         report = design_report(sc, to_si(on_, "temperature"),
-                               off_c=to_si(off, "temperature") if off else None,
-                               hysteresis_k=to_si(hysteresis, "temperature_difference") if hysteresis else None,
+                               off_c=to_si(off, "temperature") if off is not None else None,
+                               hysteresis_k=(to_si(hysteresis, "temperature_difference") if hysteresis is not None
+                                             else None),
                                series=series, basis=basis)
         click.echo(json.dumps(report, indent=2) if as_json else design_text(report, units))
         if write_to:
@@ -91,7 +93,7 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis
         from atticsim.report.inputs import scenario_inputs
         from atticsim.report.plots import hysteresis_loop_figure, save_figure
         from atticsim.results.export import ip_summary
-        from atticsim.results.output import write_json, write_outputs
+        from atticsim.results.output import write_json
 
         ctx = click.get_current_context()
         # the circuit as built (with --design, as designed: its thresholds are in the design's report)
@@ -104,5 +106,5 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis
             "report.html": report_writer(lambda folder: circuit_page(
                 sc, circuit, units, inputs, given_options(ctx), command_line(ctx), folder, design_result)),
         }
-        files = write_outputs(out, writers, force=force)
+        files = claim.write(writers)
         click.echo(f"wrote {len(files)} files to {out}", err=True)

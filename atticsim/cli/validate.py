@@ -12,33 +12,31 @@ DEFAULT_OUT = "validation"
 
 @click.command()
 @click.option("--out", type=click.Path(file_okay=False),
-              help=f"Folder for validation.md and validation.json (default: ./{DEFAULT_OUT}/ unless only "
-                   "--page is given; must be new or empty unless --force).")
+              help=f"Folder for validation.md, validation.json and report.html (default: ./{DEFAULT_OUT}/ unless "
+                   "only --page is given; must be new or empty unless --force).")
 @click.option("--page", type=click.Path(dir_okay=False),
               help="Also write the Markdown page to this file (in a source checkout: docs/validation.md).")
 @click.option("--force", is_flag=True, help="Replace the files of an existing --out folder or --page file.")
 def validate(out, page, force):
     """Compare atticsim with the outside world: published test cases, handbook formulas worked by hand,
     ngspice, the reference solver and field studies. Writes a page with atticsim's figure, the reference,
-    the difference, the tolerance and the source of every case. Exits with status 1 when a case comes out
-    other than the page states (a new miss or an error), after writing the page."""
+    the difference, the tolerance and the source of every case, as Markdown and as report.html. Exits with
+    status 1 when a case comes out other than the page states (a new miss or an error), after writing."""
     import time
 
-    from atticsim.results.output import OutputExistsError, check_output_dir, write_json, write_outputs
-    from atticsim.validation import run_cases
-    from atticsim.validation.page import render_markdown, results_json
-    from atticsim.validation.report import summary_text, write_page
+    from atticsim.cli.options import claim_out, command_line
 
     if out is None and page is None:
         out = DEFAULT_OUT
-    if out is not None:
-        check_output_dir(Path(out), force)
+    claim = claim_out(out, force) if out is not None else None
     if page is not None:
-        target = Path(page)
-        if not target.parent.is_dir():
-            raise FileNotFoundError(f"--page: {page}: folder {target.parent} does not exist")
-        if target.exists() and not force:
-            raise OutputExistsError(f"--page: {page}: file exists; pass --force to replace it")
+        _check_page(Path(page), force)
+
+    from atticsim.report.page import write_page
+    from atticsim.results.output import write_json
+    from atticsim.validation import run_cases
+    from atticsim.validation.page import render_html, render_markdown, results_json
+    from atticsim.validation.report import summary_text
 
     tty = sys.stderr.isatty()
 
@@ -53,10 +51,11 @@ def validate(out, page, force):
         click.echo("\r\033[K", err=True, nl=False)
     text = render_markdown(results)
     written = []
-    if out is not None:
-        data = results_json(results)
-        files = write_outputs(out, {"validation.md": lambda p: p.write_text(text),
-                                    "validation.json": lambda p: write_json(p, data)}, force=force)
+    if claim is not None:
+        data, html = results_json(results), render_html(results, command_line(click.get_current_context()))
+        files = claim.write({"validation.md": lambda p: p.write_text(text, encoding="utf-8"),
+                             "validation.json": lambda p: write_json(p, data),
+                             "report.html": lambda p: p.write_text(html, encoding="utf-8")})
         written += [str(f) for f in files]
     if page is not None:
         write_page(Path(page), text)
@@ -65,3 +64,15 @@ def validate(out, page, force):
     click.echo(f"wrote {', '.join(written)}", err=True)
     if any(r.unexpected for r in results):
         sys.exit(1)
+
+
+def _check_page(target: Path, force: bool) -> None:
+    """Refuse a --page whose folder is missing, or a file there without --force (before the cases run)."""
+    from atticsim.errors import OutputError
+
+    if not target.parent.is_dir():
+        raise OutputError(f"--page: {target}: folder {target.parent} does not exist")
+    if target.is_dir():
+        raise OutputError(f"--page: {target}: is a folder; give a file name")
+    if target.exists() and not force:
+        raise OutputError(f"--page: {target}: file exists; pass --force to replace it")

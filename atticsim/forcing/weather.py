@@ -57,15 +57,20 @@ def load_weather(spec: str, year: int | None = None):
     """
     if spec.startswith("demo:"):
         parts = spec.split(":")
+        if len(parts) > 3 or (len(parts) == 3 and not (parts[2].isdigit() and 1800 <= int(parts[2]) <= 2200)):
+            raise ValueError(f"{spec}: weather: write demo:NAME or demo:NAME:YEAR with a year from 1800 to 2200")
+        from atticsim.forcing.synthetic import DEMO_CLIMATES
+
+        if parts[1] not in DEMO_CLIMATES:
+            raise ValueError(f"{spec}: weather: no demo weather {parts[1]!r}; known: demo:"
+                             f"{', demo:'.join(sorted(DEMO_CLIMATES))}")
         y = year if year is not None else (int(parts[2]) if len(parts) > 2 else 2025)
         frame, meta = _demo(parts[1], y)
         return frame.copy(), meta
     from atticsim.io import read_weather
-    from atticsim.io.detect import detect_format
 
-    path = resolve_weather_path(spec)
-    typical = detect_format(path) != "atticsim-csv"
-    frame, meta, report = read_weather(path, year=year if typical else None)
+    # a dated file (atticsim's CSV) refuses a year other than its own: --year lays typical years only
+    frame, meta, report = read_weather(resolve_weather_path(spec), year=year)
     return frame, _with_notes(meta, report)
 
 

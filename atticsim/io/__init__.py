@@ -14,6 +14,7 @@ from atticsim.io.weather_frame import (
     WEATHER_COLUMNS,
     WEATHER_UNITS,
     ValidationReport,
+    WeatherError,
     WeatherMeta,
     validate_weather,
 )
@@ -30,6 +31,7 @@ __all__ = [
     "WEATHER_COLUMNS",
     "WEATHER_UNITS",
     "ValidationReport",
+    "WeatherError",
     "WeatherMeta",
     "detect_format",
     "dew_point_from_relative_humidity",

@@ -43,6 +43,7 @@ import numpy as np
 import pandas as pd
 
 from atticsim.io.weather_frame import (
+    WeatherError,
     DEFAULT_MAX_GAP_H,
     ValidationReport,
     WEATHER_COLUMNS,
@@ -96,18 +97,18 @@ def _parse_header(lines: list[str], where: str) -> tuple[dict[str, str], list[st
         key, value = match.group(1).lower(), match.group(2).strip()
         if key not in HEADER_KEYS_REQUIRED + HEADER_KEYS_OPTIONAL:
             known = ", ".join(HEADER_KEYS_REQUIRED + HEADER_KEYS_OPTIONAL)
-            raise ValueError(f"{where}: {key}: unknown header key (known: {known})")
+            raise WeatherError(f"{where}: {key}: unknown header key (known: {known})")
         if key == "note":
             notes.append(value)
             continue
         if key in keys:
-            raise ValueError(f"{where}: {key}: header key given twice")
+            raise WeatherError(f"{where}: {key}: header key given twice")
         if not value:
-            raise ValueError(f"{where}: {key}: header key has no value")
+            raise WeatherError(f"{where}: {key}: header key has no value")
         keys[key] = value
     for key in HEADER_KEYS_REQUIRED:
         if key not in keys:
-            raise ValueError(f"{where}: {key}: required header key missing (write '# {key}: ...')")
+            raise WeatherError(f"{where}: {key}: required header key missing (write '# {key}: ...')")
     return keys, notes
 
 
@@ -115,9 +116,9 @@ def _header_number(keys: dict[str, str], key: str, where: str) -> float:
     try:
         value = float(keys[key])
     except ValueError:
-        raise ValueError(f"{where}: {key}: {keys[key]!r} is not a number") from None
+        raise WeatherError(f"{where}: {key}: {keys[key]!r} is not a number") from None
     if not math.isfinite(value):
-        raise ValueError(f"{where}: {key}: {keys[key]!r} is not a finite number")
+        raise WeatherError(f"{where}: {key}: {keys[key]!r} is not a finite number")
     return value
 
 
@@ -127,7 +128,7 @@ def _parse_times(texts: list[str], utc_offset: float, where: str) -> pd.Datetime
     offsets = series.str.extract(_OFFSET.pattern, expand=False)
     if offsets.isna().any():
         row = int(np.flatnonzero(offsets.isna().to_numpy())[0])
-        raise ValueError(
+        raise WeatherError(
             f"{where}: time: {texts[row]!r} in data row {row + 1} has no UTC offset "
             f"(write e.g. 2025-07-01T00:00:00-06:00)"
         )
@@ -141,14 +142,15 @@ def _parse_times(texts: list[str], utc_offset: float, where: str) -> pd.Datetime
     wrong = ~offsets.isin(expected)
     if wrong.any():
         row = int(np.flatnonzero(wrong.to_numpy())[0])
-        raise ValueError(
+        raise WeatherError(
             f"{where}: time: {texts[row]!r} in data row {row + 1} has UTC offset {offsets.iloc[row]}, but the "
             f"header says utc_offset_h: {utc_offset:g} (one fixed offset of local standard time is required)"
         )
     try:
         stamps = pd.to_datetime(series, format="ISO8601", utc=True)
     except (TypeError, ValueError) as exc:
-        raise ValueError(f"{where}: time: cannot read the time stamps as ISO 8601 ({exc})") from None
+        first = str(exc).splitlines()[0].split(". You might")[0] if str(exc) else type(exc).__name__
+        raise WeatherError(f"{where}: time: cannot read the time stamps as ISO 8601 ({first})") from None
     return pd.DatetimeIndex(stamps).tz_convert(site_timezone(utc_offset))
 
 
@@ -158,7 +160,7 @@ def _check_percent(values: np.ndarray, index: pd.DatetimeIndex, name: str, where
         bad = np.flatnonzero((values < 0.0) | (values > 100.0))
     if bad.size:
         i = int(bad[0])
-        raise ValueError(
+        raise WeatherError(
             f"{where}: {name}: {values[i]:g} at {index[i].isoformat()} is outside 0..100 % "
             f"(a share of the sky dome); {bad.size} value(s) out of range"
         )
@@ -195,11 +197,11 @@ def read_weather_csv(
     """
     where = os.fspath(path)
     try:
-        text = Path(path).read_text(encoding="utf-8")
+        text = Path(path).read_text(encoding="utf-8-sig")  # a spreadsheet's byte-order mark is not content
     except FileNotFoundError:
-        raise ValueError(f"{where}: file: not found") from None
+        raise WeatherError(f"{where}: file: not found") from None
     except (OSError, UnicodeDecodeError) as exc:
-        raise ValueError(f"{where}: file: cannot be read as UTF-8 text ({exc})") from None
+        raise WeatherError(f"{where}: file: cannot be read as UTF-8 text ({exc})") from None
 
     lines = text.splitlines()
     comment_lines: list[str] = []
@@ -214,12 +216,12 @@ def read_weather_csv(
         start = i
         break
     if start is None:
-        raise ValueError(f"{where}: time: no CSV header row and no data rows after the '#' lines")
+        raise WeatherError(f"{where}: time: no CSV header row and no data rows after the '#' lines")
     keys, notes = _parse_header(comment_lines, where)
 
     invented_text = keys.get("invented", "no").strip().lower()
     if invented_text not in ("yes", "no"):
-        raise ValueError(f"{where}: invented: {keys['invented']!r} must be yes or no")
+        raise WeatherError(f"{where}: invented: {keys['invented']!r} must be yes or no")
     meta = WeatherMeta(
         name=keys["site"],
         latitude=_header_number(keys, "latitude", where),
@@ -236,24 +238,24 @@ def read_weather_csv(
     header = [h.strip() for h in rows[0]]
     body = rows[1:]
     if not header or header[0] != "time":
-        raise ValueError(f"{where}: time: the first column of the CSV header row must be 'time', found {header[:1]}")
+        raise WeatherError(f"{where}: time: the first column of the CSV header row must be 'time', found {header[:1]}")
     seen: set[str] = set()
     for name in header[1:]:
         if name not in CSV_COLUMNS:
-            raise ValueError(f"{where}: {name}: unknown column (known: time, {', '.join(CSV_COLUMNS)})")
+            raise WeatherError(f"{where}: {name}: unknown column (known: time, {', '.join(CSV_COLUMNS)})")
         if name in seen:
-            raise ValueError(f"{where}: {name}: column given twice")
+            raise WeatherError(f"{where}: {name}: column given twice")
         seen.add(name)
     for name in _REQUIRED_CSV:
         if name not in seen:
-            raise ValueError(f"{where}: {name}: required column missing")
+            raise WeatherError(f"{where}: {name}: required column missing")
     if "temp_dew_c" not in seen and "relative_humidity_pct" not in seen:
-        raise ValueError(f"{where}: temp_dew_c: required column missing (give temp_dew_c or relative_humidity_pct)")
+        raise WeatherError(f"{where}: temp_dew_c: required column missing (give temp_dew_c or relative_humidity_pct)")
     if not body:
-        raise ValueError(f"{where}: time: no data rows")
+        raise WeatherError(f"{where}: time: no data rows")
     for row_no, row in enumerate(body, start=1):
         if len(row) != len(header):
-            raise ValueError(
+            raise WeatherError(
                 f"{where}: time: data row {row_no} has {len(row)} fields, the header row has {len(header)}"
             )
 
@@ -266,7 +268,7 @@ def read_weather_csv(
         bad = np.flatnonzero(np.isnan(values) & ~empty.to_numpy())
         if bad.size:
             i = int(bad[0])
-            raise ValueError(f"{where}: {name}: {cells.iloc[i]!r} at {index[i].isoformat()} is not a number")
+            raise WeatherError(f"{where}: {name}: {cells.iloc[i]!r} at {index[i].isoformat()} is not a number")
         if name in CSV_FACTORS:
             _check_percent(values, index, name, where)
             values = values * CSV_FACTORS[name]
@@ -274,9 +276,9 @@ def read_weather_csv(
     raw = pd.DataFrame(data, index=index)
 
     if year is not None and int(raw.index[0].year) != int(year):
-        raise ValueError(
-            f"{where}: year: the file holds dated weather starting in {raw.index[0].year}; "
-            f"year={year} applies to typical-year files only"
+        raise WeatherError(
+            f"{where}: year: --year {year} lays a typical year on a calendar year, but this file holds dated "
+            f"weather starting in {raw.index[0].year}; leave --year out (or give {raw.index[0].year})"
         )
     labels = {norm: name for name, norm in CSV_COLUMNS.items()}
     frame, report = validate_weather(raw, meta, max_gap_h=max_gap_h, labels=labels)
@@ -332,17 +334,17 @@ def write_weather_csv(
             file_notes=tuple(str(n) for n in (notes if notes is not None else getattr(meta, "file_notes", ()))),
         )
     except AttributeError as exc:
-        raise ValueError(f"{where}: meta: {exc}") from None
+        raise WeatherError(f"{where}: meta: {exc}") from None
     frame = frame.assign(**{c: np.nan for c in ("total_sky_cover", "opaque_sky_cover") if c not in frame.columns})
     missing = [c for c in WEATHER_COLUMNS if c not in frame.columns]
     if missing:
-        raise ValueError(f"{where}: {missing[0]}: required column missing from the frame to write")
+        raise WeatherError(f"{where}: {missing[0]}: required column missing from the frame to write")
     extra = [c for c in frame.columns if c not in WEATHER_COLUMNS]
     if extra:
-        raise ValueError(f"{where}: {extra[0]}: unknown column in the frame to write")
+        raise WeatherError(f"{where}: {extra[0]}: unknown column in the frame to write")
     for text in (site.name, *site.file_notes):
         if "\n" in text or "\r" in text:
-            raise ValueError(f"{where}: site/note: header text must be one line, got {text!r}")
+            raise WeatherError(f"{where}: site/note: header text must be one line, got {text!r}")
     # Refuse what the reader would refuse (time base, offset, limits); nothing is changed in the output.
     validate_weather(frame, site)
 

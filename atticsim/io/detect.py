@@ -23,9 +23,10 @@ from pathlib import Path
 
 import pandas as pd
 
+from atticsim.errors import one_line, raised_by_atticsim
 from atticsim.io.csv_format import read_weather_csv
 from atticsim.io.typical_year import read_epw, read_tmy2, read_tmy3
-from atticsim.io.weather_frame import DEFAULT_MAX_GAP_H, ValidationReport, WeatherMeta
+from atticsim.io.weather_frame import DEFAULT_MAX_GAP_H, ValidationReport, WeatherError, WeatherMeta
 
 #: Reader per format name.
 READERS = {
@@ -50,15 +51,24 @@ _TMY2_RECORD = re.compile(r"^ \d{8}")
 
 
 def _first_lines(path: str, count: int = 60) -> list[str]:
+    import stat
+
     try:
+        if not stat.S_ISREG(os.stat(path).st_mode):  # a device (/dev/zero), a pipe: never read to its end
+            if stat.S_ISDIR(os.stat(path).st_mode):
+                raise IsADirectoryError(path)
+            raise WeatherError(f"{path}: file: not a regular file (a device or a pipe); give a weather file")
         with open(path, encoding="latin-1") as handle:
-            return [line.rstrip("\r\n") for _, line in zip(range(count), handle)]
+            lines = handle.read(256 * 1024).splitlines()[:count]
+        if lines and lines[0].startswith("\xef\xbb\xbf"):  # a UTF-8 byte-order mark, read as latin-1
+            lines[0] = lines[0][3:]
+        return lines
     except FileNotFoundError:
-        raise ValueError(f"{path}: file: not found") from None
+        raise WeatherError(f"{path}: file: not found") from None
     except IsADirectoryError:
-        raise ValueError(f"{path}: file: is a folder, not a weather file") from None
+        raise WeatherError(f"{path}: file: is a folder, not a weather file") from None
     except OSError as exc:
-        raise ValueError(f"{path}: file: cannot be read ({exc})") from None
+        raise WeatherError(f"{path}: file: cannot be read ({exc})") from None
 
 
 def detect_format(path: str | os.PathLike) -> str:
@@ -78,7 +88,7 @@ def detect_format(path: str | os.PathLike) -> str:
     lines = _first_lines(where)
     content = [line for line in lines if line.strip()]
     if not content:
-        raise ValueError(f"{where}: format: the file is empty")
+        raise WeatherError(f"{where}: format: the file is empty")
     first = content[0].lstrip("\ufeff")
     if first.startswith("#"):
         for line in content:
@@ -90,10 +100,10 @@ def detect_format(path: str | os.PathLike) -> str:
         return "epw"
     if len(lines) > 1 and lines[1].lstrip("\ufeff").startswith("Date (MM/DD/YYYY),Time (HH:MM)"):
         return "tmy3"
-    if _TMY2_HEADER.match(lines[0]) and len(lines) > 1 and _TMY2_RECORD.match(lines[1]):
+    if len(lines[0]) < 300 and _TMY2_HEADER.match(lines[0]) and len(lines) > 1 and _TMY2_RECORD.match(lines[1]):
         return "tmy2"
     shown = first[:60] + ("..." if len(first) > 60 else "")
-    raise ValueError(
+    raise WeatherError(
         f"{where}: format: not recognised as an atticsim weather CSV, EPW, TMY3 or TMY2 file "
         f"(first line: {shown!r})"
     )
@@ -125,7 +135,26 @@ def read_weather(
     """
     where = os.fspath(path)
     fmt = detect_format(where)
-    frame, meta, report = READERS[fmt](where, year=year, max_gap_h=max_gap_h)
+    if fmt != "atticsim-csv":
+        with open(where, "rb") as handle:
+            if handle.read(3) == b"\xef\xbb\xbf":
+                raise WeatherError(f"{where}: format: the {fmt.upper()} file starts with a byte-order mark (an "
+                                   f"editor added it); save it again as plain text without one")
+    try:
+        frame, meta, report = READERS[fmt](where, year=year, max_gap_h=max_gap_h)
+    except WeatherError:
+        raise
+    except RecursionError:
+        raise WeatherError(f"{where}: format: the {fmt} file is nested or repeated too deeply to read") from None
+    except Exception as exc:  # noqa: BLE001
+        # A library's parser (pvlib, pandas, csv) choking on a damaged file: the file is bad, say so in one line.
+        # An exception from atticsim's own code is a bug and goes on as it is.
+        if raised_by_atticsim(exc) or not isinstance(exc, (ValueError, TypeError, IndexError, KeyError,
+                                                           UnicodeError, OverflowError, AttributeError)):
+            raise
+        raise WeatherError(f"{where}: format: cannot be read as {fmt.upper() if fmt != 'atticsim-csv' else fmt} "
+                           f"({type(exc).__name__}: {one_line(str(exc), 160)}); the file is damaged or not "
+                           f"{fmt}") from None
     suffix = Path(where).suffix.lower()
     if suffix and suffix not in USUAL_EXTENSIONS[fmt]:
         report.notes.append(f"content is {fmt} although the file name ends in {suffix}: read as {fmt}")

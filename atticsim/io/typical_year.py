@@ -54,6 +54,7 @@ import numpy as np
 import pandas as pd
 
 from atticsim.io.weather_frame import (
+    WeatherError,
     DEFAULT_MAX_GAP_H,
     ValidationReport,
     WeatherMeta,
@@ -87,7 +88,7 @@ def _check_year(year: int | None, where: str) -> None:
     if year is None:
         return
     if isinstance(year, bool) or not isinstance(year, (int, np.integer)) or not 1000 <= int(year) <= 9999:
-        raise ValueError(f"{where}: year: {year!r} is not a four-digit calendar year")
+        raise WeatherError(f"{where}: year: {year!r} is not a four-digit calendar year")
 
 
 def _read_lines(where: str) -> list[str]:
@@ -95,15 +96,15 @@ def _read_lines(where: str) -> list[str]:
         with open(where, encoding="latin-1", newline="") as handle:
             return handle.read().splitlines()
     except FileNotFoundError:
-        raise ValueError(f"{where}: file: not found") from None
+        raise WeatherError(f"{where}: file: not found") from None
     except OSError as exc:
-        raise ValueError(f"{where}: file: cannot be read ({exc})") from None
+        raise WeatherError(f"{where}: file: cannot be read ({exc})") from None
 
 
-def _cut_record(where: str, fmt: str, line_no: int, reason: str) -> ValueError:
+def _cut_record(where: str, fmt: str, line_no: int, reason: str) -> WeatherError:
     """The one-line error for an incomplete record (line numbers from 1, as an editor shows them)."""
     record = line_no - _HEADER_LINES[fmt]
-    return ValueError(f"{where}: line {line_no}: record {record} {reason}; the file is cut short or damaged "
+    return WeatherError(f"{where}: line {line_no}: record {record} {reason}; the file is cut short or damaged "
                       f"(complete records are needed, nothing is patched)")
 
 
@@ -123,7 +124,7 @@ def _check_csv_records(where: str, fmt: str, lines: list[str], n_fields: int, us
     import csv
 
     if len(lines) <= _HEADER_LINES[fmt]:
-        raise ValueError(f"{where}: line {len(lines) + 1}: no data records after the header")
+        raise WeatherError(f"{where}: line {len(lines) + 1}: no data records after the header")
     for line_no, text in _data_lines(lines, fmt):
         fields = next(csv.reader([text]), [])
         if len(fields) < n_fields:
@@ -136,7 +137,7 @@ def _check_csv_records(where: str, fmt: str, lines: list[str], n_fields: int, us
 def _check_tmy2_records(where: str, lines: list[str]) -> None:
     """Every TMY2 data record is :data:`TMY2_RECORD_LENGTH` characters long."""
     if len(lines) <= _HEADER_LINES["tmy2"]:
-        raise ValueError(f"{where}: line 2: no data records after the header")
+        raise WeatherError(f"{where}: line 2: no data records after the header")
     for line_no, text in _data_lines(lines, "tmy2"):
         if len(text) < TMY2_RECORD_LENGTH:
             raise _cut_record(where, "tmy2", line_no,
@@ -151,16 +152,19 @@ def _check_span(where: str, fmt: str, months, days, hours, first: tuple[int, int
     """
     head = _HEADER_LINES[fmt]
     n = len(months)
+    if n == 0:
+        raise WeatherError(f"{where}: line {head + 1}: no data records could be read (a damaged header line, such "
+                           f"as an unclosed quote, may hide them)")
 
     def stamp(i):
         return f"{int(months[i]):02d}/{int(days[i]):02d} {int(hours[i]):02d}:00"
 
     if (int(months[0]), int(days[0]), int(hours[0])) != (first[0], first[1], 1):
-        raise ValueError(
+        raise WeatherError(
             f"{where}: line {head + 1}: the first record is {stamp(0)}, not {first[0]:02d}/{first[1]:02d} "
             f"01:00 ({what}); the file is incomplete (nothing is patched)")
     if (int(months[-1]), int(days[-1]), int(hours[-1])) != (last[0], last[1], 24):
-        raise ValueError(
+        raise WeatherError(
             f"{where}: line {head + n}: the file stops at record {n} ({stamp(n - 1)}), before "
             f"{last[0]:02d}/{last[1]:02d} 24:00 ({what}); the file is cut short (nothing is patched)")
 
@@ -173,7 +177,7 @@ def _cover_tenths(values: np.ndarray, name: str, where: str, fmt: str, missing) 
         bad = np.flatnonzero((v < 0.0) | (v > 10.0))
     if bad.size:
         i = int(bad[0])
-        raise ValueError(f"{where}: line {_HEADER_LINES[fmt] + i + 1}: {name}: {v[i]:g} tenths in record {i + 1} "
+        raise WeatherError(f"{where}: line {_HEADER_LINES[fmt] + i + 1}: {name}: {v[i]:g} tenths in record {i + 1} "
                          f"is outside 0..10 (a share of the sky dome)")
     return v / 10.0
 
@@ -199,10 +203,10 @@ def _records_frame(
     hours = np.asarray(hours, dtype=int)
     if np.any((hours < 1) | (hours > 24)):
         i = int(np.flatnonzero((hours < 1) | (hours > 24))[0])
-        raise ValueError(f"{where}: hour: {hours[i]} in record {i + 1} is outside 1..24 (hour-ending records)")
+        raise WeatherError(f"{where}: hour: {hours[i]} in record {i + 1} is outside 1..24 (hour-ending records)")
     if np.any((months < 1) | (months > 12)):
         i = int(np.flatnonzero((months < 1) | (months > 12))[0])
-        raise ValueError(f"{where}: month: {months[i]} in record {i + 1} is outside 1..12")
+        raise WeatherError(f"{where}: month: {months[i]} in record {i + 1} is outside 1..12")
 
     if year is None:
         found = np.unique(np.asarray(years, dtype=int))
@@ -239,7 +243,7 @@ def _records_frame(
     try:
         dates = pd.to_datetime(pd.DataFrame({"year": year, "month": months, "day": days}))
     except (TypeError, ValueError) as exc:
-        raise ValueError(f"{where}: day: invalid calendar date in the records ({exc})") from None
+        raise WeatherError(f"{where}: day: invalid calendar date in the records ({exc})") from None
     stamps = pd.DatetimeIndex(dates + pd.to_timedelta(hours, unit="h")).tz_localize(site_timezone(meta.utc_offset))
     records = pd.DataFrame(columns, index=stamps)
     n_year = 8784 if calendar.isleap(year) else 8760
@@ -369,9 +373,9 @@ def read_tmy3(
     try:
         data, head = pvlib.iotools.read_tmy3(where, coerce_year=None, map_variables=True)
     except FileNotFoundError:
-        raise ValueError(f"{where}: file: not found") from None
+        raise WeatherError(f"{where}: file: not found") from None
     except Exception as exc:  # pvlib raises assorted errors for malformed files
-        raise ValueError(f"{where}: format: cannot be read as TMY3 ({type(exc).__name__}: {exc})") from None
+        raise WeatherError(f"{where}: format: cannot be read as TMY3 ({type(exc).__name__}: {exc})") from None
     meta = WeatherMeta(
         name=", ".join(p for p in (str(head["Name"]).strip().strip('"'), str(head["State"]).strip()) if p),
         latitude=float(head["latitude"]),
@@ -384,7 +388,7 @@ def read_tmy3(
     names = dict(_TMY3_NAMES)
     for col in ("temp_air", "wind_speed", "ghi", "dni", "dhi", "Date (MM/DD/YYYY)", "Time (HH:MM)"):
         if col not in data.columns:
-            raise ValueError(f"{where}: {names.get(col, col)}: required column missing")
+            raise WeatherError(f"{where}: {names.get(col, col)}: required column missing")
     values = {}
     for col in names:
         if col in data.columns:
@@ -401,9 +405,9 @@ def read_tmy3(
         date = data["Date (MM/DD/YYYY)"].astype(str).str.split("/", expand=True).astype(int).to_numpy()
         clock = data["Time (HH:MM)"].astype(str).str.split(":", expand=True).astype(int).to_numpy()
         if date.shape[1] != 3 or clock.shape[1] != 2 or (clock[:, 1] != 0).any():
-            raise ValueError("wrong field count or minutes")
+            raise WeatherError("wrong field count or minutes")
     except (TypeError, ValueError):
-        raise ValueError(
+        raise WeatherError(
             f"{where}: Date (MM/DD/YYYY) / Time (HH:MM): expected MM/DD/YYYY dates and whole hours HH:00"
         ) from None
     _check_span(where, "tmy3", date[:, 0], date[:, 1], clock[:, 0], (1, 1), (12, 31),
@@ -458,12 +462,12 @@ def read_tmy2(
     where = os.fspath(path)
     _check_year(year, where)
     if not os.path.isfile(where):
-        raise ValueError(f"{where}: file: not found")
+        raise WeatherError(f"{where}: file: not found")
     _check_tmy2_records(where, _read_lines(where))
     try:
         data, head = pvlib.iotools.read_tmy2(where)
     except Exception as exc:  # pvlib raises assorted errors for malformed files
-        raise ValueError(f"{where}: format: cannot be read as TMY2 ({type(exc).__name__}: {exc})") from None
+        raise WeatherError(f"{where}: format: cannot be read as TMY2 ({type(exc).__name__}: {exc})") from None
     meta = WeatherMeta(
         name=", ".join(p for p in (str(head["City"]).strip(), str(head["State"]).strip()) if p),
         latitude=float(head["latitude"]),
@@ -523,18 +527,18 @@ def _epw_data_periods(where: str, lines: list[str]) -> tuple[int, tuple[int, int
             try:
                 per_hour = int(parts[2])
             except (IndexError, ValueError):
-                raise ValueError(f"{where}: DATA PERIODS: cannot read the records per hour") from None
+                raise WeatherError(f"{where}: DATA PERIODS: cannot read the records per hour") from None
 
             def month_day(text):
                 found = re.findall(r"\d+", text)
                 if len(found) < 2 or not (1 <= int(found[0]) <= 12 and 1 <= int(found[1]) <= 31):
-                    raise ValueError(f"{where}: DATA PERIODS: {text.strip()!r} is not a start or end date M/D")
+                    raise WeatherError(f"{where}: DATA PERIODS: {text.strip()!r} is not a start or end date M/D")
                 return int(found[0]), int(found[1])
 
             if len(parts) < 7:
-                raise ValueError(f"{where}: DATA PERIODS: start and end dates missing")
+                raise WeatherError(f"{where}: DATA PERIODS: start and end dates missing")
             return per_hour, month_day(parts[5]), month_day(parts[-1])
-    raise ValueError(f"{where}: DATA PERIODS: header line missing (an EPW file has 8 header lines)")
+    raise WeatherError(f"{where}: DATA PERIODS: header line missing (an EPW file has 8 header lines)")
 
 
 #: EPW field positions (0-based) read here, for the record check (Crawley, Hand & Lawrie 1999, from memory).
@@ -583,16 +587,16 @@ def read_epw(
     where = os.fspath(path)
     _check_year(year, where)
     if not os.path.isfile(where):
-        raise ValueError(f"{where}: file: not found")
+        raise WeatherError(f"{where}: file: not found")
     lines = _read_lines(where)
     per_hour, first, last = _epw_data_periods(where, lines)
     if per_hour != 1:
-        raise ValueError(f"{where}: DATA PERIODS: {per_hour} records per hour; only hourly EPW files are supported")
+        raise WeatherError(f"{where}: DATA PERIODS: {per_hour} records per hour; only hourly EPW files are supported")
     _check_csv_records(where, "epw", lines, EPW_RECORD_FIELDS, _EPW_FIELDS_READ)
     try:
         data, head = pvlib.iotools.read_epw(where)
     except Exception as exc:  # pvlib raises assorted errors for malformed files
-        raise ValueError(f"{where}: format: cannot be read as EPW ({type(exc).__name__}: {exc})") from None
+        raise WeatherError(f"{where}: format: cannot be read as EPW ({type(exc).__name__}: {exc})") from None
     meta = WeatherMeta(
         name=", ".join(
             p for p in (str(head.get(k, "")).strip() for k in ("city", "state-prov", "country")) if p and p != "-"

@@ -31,6 +31,7 @@ from typing import Mapping
 import numpy as np
 import pandas as pd
 
+from atticsim.errors import InputError
 from atticsim.air import (dew_point_from_relative_humidity, relative_humidity_from_dew_point,
                           saturation_vapour_pressure, standard_atmosphere_pressure)
 
@@ -114,6 +115,11 @@ DEW_POINT_CLIP_K = 0.5
 # --------------------------------------------------------------------------- metadata
 
 
+class WeatherError(InputError):
+    """A weather file (or frame) that cannot be used; ``str(err)`` is one line naming the file, the column or
+    line, and the reason."""
+
+
 @dataclass(frozen=True)
 class WeatherMeta:
     """Site and provenance of a weather source.
@@ -162,9 +168,9 @@ class WeatherMeta:
         )
         for key, value, low, high in checks:
             if not (isinstance(value, (int, float)) and math.isfinite(value) and low <= value <= high):
-                raise ValueError(f"{where}: {key}: {value!r} is not a number in {low:g}..{high:g}")
+                raise WeatherError(f"{where}: {key}: {value!r} is not a number in {low:g}..{high:g}")
         if self.source_format not in SOURCE_FORMATS:
-            raise ValueError(
+            raise WeatherError(
                 f"{where}: source_format: {self.source_format!r} is not one of {', '.join(SOURCE_FORMATS)}"
             )
 
@@ -302,28 +308,28 @@ def check_time_index(index: pd.Index, where: str) -> pd.Timedelta:
         The step between rows.
     """
     if not isinstance(index, pd.DatetimeIndex):
-        raise ValueError(f"{where}: time: the index is not made of date-times")
+        raise WeatherError(f"{where}: time: the index is not made of date-times")
     if index.tz is None:
-        raise ValueError(f"{where}: time: stamps carry no UTC offset (local standard time with offset required)")
+        raise WeatherError(f"{where}: time: stamps carry no UTC offset (local standard time with offset required)")
     if len(index) < 2:
-        raise ValueError(f"{where}: time: at least 2 rows are needed, found {len(index)}")
+        raise WeatherError(f"{where}: time: at least 2 rows are needed, found {len(index)}")
     if index.hasnans:
-        raise ValueError(f"{where}: time: missing time stamp in row {int(np.flatnonzero(index.isna())[0]) + 1}")
+        raise WeatherError(f"{where}: time: missing time stamp in row {int(np.flatnonzero(index.isna())[0]) + 1}")
     steps = np.diff(index.asi8)
     dup = np.flatnonzero(steps == 0)
     if dup.size:
-        raise ValueError(f"{where}: time: duplicated time {format_time(index[dup[0] + 1])}")
+        raise WeatherError(f"{where}: time: duplicated time {format_time(index[dup[0] + 1])}")
     back = np.flatnonzero(steps < 0)
     if back.size:
         i = back[0] + 1
-        raise ValueError(
+        raise WeatherError(
             f"{where}: time: times not sorted: {format_time(index[i])} follows {format_time(index[i - 1])}"
         )
     bad = np.flatnonzero(steps != steps[0])
     step = index[1] - index[0]
     if bad.size:
         i = bad[0] + 1
-        raise ValueError(
+        raise WeatherError(
             f"{where}: time: irregular step at {format_time(index[i])}: "
             f"{_format_duration(index[i] - index[i - 1])} after steps of {_format_duration(step)}"
         )
@@ -352,7 +358,7 @@ def check_utc_offset(index: pd.DatetimeIndex, utc_offset: float, where: str) -> 
     wrong = np.flatnonzero(offsets != expected)
     if wrong.size:
         i = int(wrong[0])
-        raise ValueError(
+        raise WeatherError(
             f"{where}: time: {format_time(index[i])} is not in the site's standard time UTC{utc_offset:+g} h "
             f"(one fixed offset, no daylight saving, is required)"
         )
@@ -378,7 +384,7 @@ def _check_limits(
             if col == "relative_humidity" and v > high:
                 extra = f" (values up to {RH_CLIP_PCT:g} % are set to 100 %)"
             shown = "" if unit == "1" else f" {unit}"  # a fraction needs no unit
-            raise ValueError(
+            raise WeatherError(
                 f"{where}: {labels.get(col, col)}: {v:g}{shown} at {format_time(index[i])} is {side}{shown}"
                 f"{extra}; {bad.size} value(s) out of range"
             )
@@ -415,7 +421,7 @@ def _clip_dew_point(
         slight = np.flatnonzero((excess > 0.0) & (excess < DEW_POINT_CLIP_K))
     if worse.size:
         i = worse[0]
-        raise ValueError(
+        raise WeatherError(
             f"{where}: {labels.get('temp_dew', 'temp_dew')}: dew point {frame['temp_dew'].iloc[i]:g} degC at "
             f"{format_time(index[i])} is {excess[i]:.2g} K above the dry-bulb {frame['temp_air'].iloc[i]:g} degC"
             f"{after} (up to {DEW_POINT_CLIP_K:g} K is set to the dry-bulb); {worse.size} value(s)"
@@ -447,7 +453,7 @@ def _fill_gaps(
     runs = _nan_runs(missing)
     for start, stop in runs:
         if (stop - start) * step > max_gap:
-            raise ValueError(
+            raise WeatherError(
                 f"{where}: {label}: gap of {_format_duration((stop - start) * step)} from "
                 f"{format_time(index[start])} is longer than {_format_duration(max_gap)} "
                 f"(longest gap that is interpolated)"
@@ -519,18 +525,18 @@ def validate_weather(
     labels = dict(labels or {})
     report = report if report is not None else ValidationReport()
     if not (isinstance(max_gap_h, (int, float)) and math.isfinite(max_gap_h) and max_gap_h >= 0.0):
-        raise ValueError(f"{where}: max_gap_h: {max_gap_h!r} is not a number >= 0")
+        raise WeatherError(f"{where}: max_gap_h: {max_gap_h!r} is not a number >= 0")
     if not isinstance(frame, pd.DataFrame):
-        raise ValueError(f"{where}: frame: expected a pandas DataFrame, got {type(frame).__name__}")
+        raise WeatherError(f"{where}: frame: expected a pandas DataFrame, got {type(frame).__name__}")
 
     unknown = [c for c in frame.columns if c not in WEATHER_COLUMNS]
     if unknown:
-        raise ValueError(f"{where}: {unknown[0]}: unknown column (known: {', '.join(WEATHER_COLUMNS)})")
+        raise WeatherError(f"{where}: {unknown[0]}: unknown column (known: {', '.join(WEATHER_COLUMNS)})")
     for col in REQUIRED_COLUMNS:
         if col not in frame.columns:
-            raise ValueError(f"{where}: {labels.get(col, col)}: required column missing")
+            raise WeatherError(f"{where}: {labels.get(col, col)}: required column missing")
     if "temp_dew" not in frame.columns and "relative_humidity" not in frame.columns:
-        raise ValueError(
+        raise WeatherError(
             f"{where}: {labels.get('temp_dew', 'temp_dew')}: required column missing "
             f"(give dew point or {labels.get('relative_humidity', 'relative_humidity')})"
         )
@@ -543,20 +549,20 @@ def validate_weather(
             try:
                 out[col] = pd.to_numeric(frame[col], errors="raise").astype("float64")
             except (TypeError, ValueError) as exc:
-                raise ValueError(f"{where}: {labels.get(col, col)}: values are not numbers ({exc})") from None
+                raise WeatherError(f"{where}: {labels.get(col, col)}: values are not numbers ({exc})") from None
         else:
             out[col] = np.nan
     given = {c for c in WEATHER_COLUMNS if c in frame.columns and out[c].notna().any()}
     for col in REQUIRED_COLUMNS:
         if col not in given:
-            raise ValueError(f"{where}: {labels.get(col, col)}: column has no values")
+            raise WeatherError(f"{where}: {labels.get(col, col)}: column has no values")
     if not {"temp_dew", "relative_humidity"} & given:
-        raise ValueError(f"{where}: {labels.get('temp_dew', 'temp_dew')}: neither dew point nor humidity has values")
+        raise WeatherError(f"{where}: {labels.get('temp_dew', 'temp_dew')}: neither dew point nor humidity has values")
     infinite = [c for c in WEATHER_COLUMNS if np.isinf(out[c].to_numpy()).any()]
     if infinite:
         col = infinite[0]
         i = int(np.flatnonzero(np.isinf(out[col].to_numpy()))[0])
-        raise ValueError(f"{where}: {labels.get(col, col)}: infinite value at {format_time(out.index[i])}")
+        raise WeatherError(f"{where}: {labels.get(col, col)}: infinite value at {format_time(out.index[i])}")
 
     _check_limits(out, where, labels, report)
 
@@ -592,7 +598,7 @@ def validate_weather(
         rh = out["relative_humidity"].to_numpy()
         if np.any(rh <= 0.0):
             i = int(np.flatnonzero(rh <= 0.0)[0])
-            raise ValueError(
+            raise WeatherError(
                 f"{where}: {labels.get('relative_humidity', 'relative_humidity')}: 0 % at "
                 f"{format_time(out.index[i])} leaves the dew point undefined"
             )
@@ -637,7 +643,7 @@ def finish_frame(frame: pd.DataFrame, where: str = "weather") -> pd.DataFrame:
     """
     missing = [c for c in WEATHER_COLUMNS if c not in frame.columns]
     if missing:
-        raise ValueError(f"{where}: {missing[0]}: required column missing")
+        raise WeatherError(f"{where}: {missing[0]}: required column missing")
     step = check_time_index(frame.index, where)
     index = pd.DatetimeIndex(frame.index.as_unit(TIME_UNIT), name="time")
     index = pd.DatetimeIndex(index, freq=pd.tseries.frequencies.to_offset(step))

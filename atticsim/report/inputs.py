@@ -113,7 +113,7 @@ def scenario_inputs(path, overrides=(), scenario=None) -> ScenarioInputs:
         text = resources.files("atticsim.data").joinpath("demo_house.toml").read_text()
         source = f"{DEMO_NAME} (fictional)"
     else:
-        text = Path(path).read_text()
+        text = Path(path).read_text(encoding="utf-8-sig")  # as the loader reads it: a byte-order mark is not content
         source = str(path)
     data = apply_overrides(tomllib.loads(text), list(overrides))
     dump = scenario.model_dump(mode="json") if scenario is not None else {}

@@ -181,9 +181,15 @@ class Page:
 def write_page(path, text: str) -> None:
     """Write a page atomically (a temporary file beside it, then a rename): never half a page."""
     import os
+    import tempfile
     from pathlib import Path
 
     path = Path(path)
-    tmp = path.with_name(f".tmp-{path.name}")
-    tmp.write_text(text, encoding="utf-8")
-    os.replace(tmp, path)
+    fd, tmp = tempfile.mkstemp(prefix=f".tmp-{path.name}.", dir=path.parent)
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8") as handle:
+            handle.write(text)
+        os.replace(tmp, path)
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise

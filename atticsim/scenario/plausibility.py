@@ -91,10 +91,13 @@ def _bare(value) -> float | None:
     """The number of a bare value (a number, or text that is only a number), else None."""
     if isinstance(value, bool):
         return None
-    if isinstance(value, (int, float)):
-        return float(value)
-    if isinstance(value, str) and _NUMBER.match(value):
-        return float(value)
+    try:
+        if isinstance(value, (int, float)):
+            return float(value)
+        if isinstance(value, str) and len(value) < 100 and _NUMBER.match(value):
+            return float(value)
+    except OverflowError:  # an integer too large for a float: no unit makes it ordinary
+        return None
     return None
 
 
@@ -156,6 +159,30 @@ def bare_number_warnings(raw: dict) -> list[str]:
             out.append(f"{key} = {v:g} is read as {v:g} % relative humidity; if you meant "
                        f"{v * 100:g} %, write {key} = {v * 100:g} (or \"{v * 100:g} %\").")
     return out
+
+
+def _matches(pattern: str, key: str) -> bool:
+    a, b = pattern.split("."), key.split(".")
+    return len(a) == len(b) and all(x == y or (x == "*" and y.isdigit()) for x, y in zip(a, b))
+
+
+def unit_hint(key: str, value) -> str | None:
+    """What to write instead, when a bare number refused at ``key`` is ordinary in another unit: ``'if you
+    meant 1,200 cfm (0.5663 m3/s), write fan.flow = "1200 cfm"'``; else None. For refusals (a value out of
+    bounds), the same advice the warnings give for values inside them."""
+    v = _bare(value)
+    if v is None or not math.isfinite(v):
+        return None
+    for check in CHECKS:
+        if _matches(check.pattern, key):
+            fits = [(unit, v * f) for unit, f in check.alternatives if check.low <= v * f <= check.high]
+            if fits:
+                meant = " or ".join(f"{_num(v)} {u} ({_num(si)} {check.si_unit})" for u, si in fits)
+                return f'if you meant {meant}, write {key} = "{check.written.format(v=f"{v:g}", unit=fits[0][0])}"'
+    for pattern, (low, high) in TEMPERATURE_CHECKS:
+        if _matches(pattern, key) and low <= (v - 32.0) * 5.0 / 9.0 <= high:
+            return f'if you meant {_num(v)} degF ({(v - 32.0) * 5.0 / 9.0:.1f} degC), write {key} = "{_num(v)} degF"'
+    return None
 
 
 def sizing_notes(scenario) -> list[str]:

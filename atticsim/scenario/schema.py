@@ -11,19 +11,13 @@ from typing import Annotated, Literal, Union
 
 import numpy as np
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, PrivateAttr, model_validator
+from pydantic import BeforeValidator, Field, PrivateAttr, model_validator
 
 from atticsim.materials import COVERING_FINISHES, MATERIALS
 from atticsim.network.placement import PLACEMENTS
+from atticsim.scenario.fields import StrictModel
+from atticsim.scenario.fields import quantity as _q
 from atticsim.scenario.thermostat import CircuitThermostat, SetpointThermostat
-from atticsim.units import to_si
-
-
-def _q(kind: str):
-    def convert(value):
-        return to_si(value, kind)
-
-    return BeforeValidator(convert)
 
 
 Length = Annotated[float, _q("length")]
@@ -74,21 +68,24 @@ def month_set(text: str, where: str = "months") -> frozenset:
     return frozenset(out)
 
 
-class _Model(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True)
+class _Model(StrictModel):
+    """A scenario table: unknown keys refused, frozen, no inf or nan in any float, no true/false for a number
+    (fields.StrictModel). The bounds below hold every quantity to physical sense for a house's attic, generous
+    on both sides; values ordinary for a house but odd for this one are questioned by scenario/plausibility.py,
+    not refused."""
 
 
 class House(_Model):
     """The house below the attic: description, envelope leakage and cooling system."""
 
-    name: str = "unnamed house"
-    note: str = ""
+    name: str = Field("unnamed house", max_length=200)
+    note: str = Field("", max_length=5000)
     envelope_leakage_area: Area | None = Field(
-        None, gt=0.0, description="m2, effective leakage area of the house envelope at 4 Pa (blower door)")
+        None, gt=0.0, le=10.0, description="m2, effective leakage area of the house envelope at 4 Pa (blower door)")
     envelope_leakage_exponent: float = Field(0.65, ge=0.5, le=1.0)
     atmospheric_appliances: bool = Field(
         True, description="atmospherically vented combustion appliances in the house (water heater, furnace)")
-    depressurisation_limit: Pressure = Field(5.0, gt=0.0, description="Pa; warn above this")
+    depressurisation_limit: Pressure = Field(5.0, gt=0.0, le=1000.0, description="Pa; warn above this")
     cooling_cop: float = Field(3.0, gt=0.5, le=10.0,
                                description="cooling system COP, W of heat removed per W electric")
     indoor_relative_humidity: Percent = Field(50.0, ge=0.0, le=100.0, description="% in the rooms")
@@ -110,8 +107,8 @@ class House(_Model):
     @model_validator(mode="after")
     def _seasons(self):
         if self.heating_balance_point > self.cooling_balance_point:
-            raise ValueError(f"heating_balance_point ({self.heating_balance_point:g} degC) must not be above "
-                             f"cooling_balance_point ({self.cooling_balance_point:g} degC)")
+            raise ValueError(f"heating_balance_point: {self.heating_balance_point:g} degC is above "
+                             f"cooling_balance_point ({self.cooling_balance_point:g} degC); it must not be")
         cooling = month_set(self.cooling_months, "cooling_months")
         heating = month_set(self.heating_months, "heating_months")
         if cooling & heating:
@@ -130,7 +127,7 @@ class House(_Model):
 class Site(_Model):
     """Where the house is; used for the sun when the weather file does not say."""
 
-    name: str = "unnamed site"
+    name: str = Field("unnamed site", max_length=200)
     latitude: Angle = Field(ge=-90.0, le=90.0, description="degrees north")
     longitude: Angle = Field(ge=-180.0, le=180.0, description="degrees east")
     altitude: Length = Field(0.0, ge=-500.0, le=9000.0, description="m above sea level")
@@ -146,6 +143,15 @@ class Weather(_Model):
     end: DateText | None = Field(None, description="last day (inclusive) or end instant (ISO 8601)")
     sky_model: Literal["berdahl-martin", "swinbank"] = "berdahl-martin"
 
+    @model_validator(mode="after")
+    def _file(self):
+        if not self.file.strip():
+            raise ValueError("file: empty; give a weather file, pvlib:FILE or demo:NAME")
+        if len(self.file) > 4096 or any(ord(c) < 32 for c in self.file):
+            raise ValueError("file: not a file name (too long, or holds control characters such as a tab or a "
+                             "line break)")
+        return self
+
 
 class Layer(_Model):
     """One roof layer: a named material with optional overrides (a covering also takes a finish)."""
@@ -153,19 +159,19 @@ class Layer(_Model):
     material: str
     finish: str | None = Field(None, description="roof covering's finish or colour: its optics preset "
                                                  "(see materials.COVERING_FINISHES); default the material's first")
-    thickness: Length | None = Field(None, gt=0.0)
-    density: Density | None = Field(None, gt=0.0)
-    conductivity: Conductivity | None = Field(None, gt=0.0)
-    specific_heat: SpecificHeat | None = Field(None, gt=0.0)
+    thickness: Length | None = Field(None, gt=0.0, le=1.0, description="m")
+    density: Density | None = Field(None, gt=0.0, le=20000.0, description="kg/m3")
+    conductivity: Conductivity | None = Field(None, gt=0.0, le=1000.0, description="W/(m K)")
+    specific_heat: SpecificHeat | None = Field(None, gt=0.0, le=20000.0, description="J/(kg K)")
 
     @model_validator(mode="after")
     def _known_material(self):
         if self.material not in MATERIALS:
-            raise ValueError(f"unknown material {self.material!r}; known: {', '.join(sorted(MATERIALS))}")
+            raise ValueError(f"material: unknown material {self.material!r}; known: {', '.join(sorted(MATERIALS))}")
         finishes = COVERING_FINISHES.get(self.material, {})
         if self.finish is not None and self.finish not in finishes:
             known = ", ".join(finishes) if finishes else "none (it is not a roof covering)"
-            raise ValueError(f"unknown finish {self.finish!r} for {self.material}; known: {known}")
+            raise ValueError(f"finish: unknown finish {self.finish!r} for {self.material}; known: {known}")
         return self
 
     def prop(self, name: str) -> float:
@@ -177,17 +183,17 @@ class Layer(_Model):
 class Plane(_Model):
     """One roof plane."""
 
-    name: str
-    area: Area = Field(gt=0.0, description="m2, sloped area")
+    name: str = Field(max_length=100)
+    area: Area = Field(gt=0.0, le=10000.0, description="m2, sloped area")
     tilt: Angle = Field(ge=0.0, lt=90.0, description="degrees from horizontal, or pitch 'rise/12'")
     azimuth: Angle = Field(ge=0.0, le=360.0, description="degrees clockwise from north the plane faces")
-    perimeter: Length | None = Field(None, gt=0.0, description="m; default 4*sqrt(area)")
+    perimeter: Length | None = Field(None, gt=0.0, le=2000.0, description="m; default 4*sqrt(area)")
 
 
 class Roof(_Model):
     """Roof planes, their layers and surface properties."""
 
-    planes: list[Plane] = Field(min_length=1)
+    planes: list[Plane] = Field(min_length=1, max_length=32)
     covering: Layer = Layer(material="asphalt-shingle")
     sheathing: Layer = Layer(material="osb")
     absorptance: Fraction | None = Field(
@@ -228,17 +234,21 @@ class Roof(_Model):
         return values, notes
 
 
+#: The tallest attic a scenario may describe, floor to ridge [m] (physical sense for a house, generous).
+MAX_ATTIC_HEIGHT = 30.0
+
+
 class Attic(_Model):
     """The attic volume and its framing."""
 
-    floor_area: Area = Field(gt=0.0, description="m2, attic floor = ceiling area")
-    volume: Volume = Field(gt=0.0, description="m3 of attic air")
-    framing_mass: Mass = Field(gt=0.0, description="kg of wood framing (rafters, trusses, gables)")
-    framing_area: Area = Field(gt=0.0, description="m2 of framing surface exposed to attic air")
+    floor_area: Area = Field(ge=1.0, le=20000.0, description="m2, attic floor = ceiling area")
+    volume: Volume = Field(ge=1.0, le=200000.0, description="m3 of attic air")
+    framing_mass: Mass = Field(gt=0.0, le=1e6, description="kg of wood framing (rafters, trusses, gables)")
+    framing_area: Area = Field(gt=0.0, le=1e5, description="m2 of framing surface exposed to attic air")
     floor_emittance: Fraction = Field(0.90, gt=0.0, le=1.0,
                                       description="thermal emittance of the insulation top")
     ridge_height: Length | None = Field(
-        None, gt=0.0, description="m above the attic floor; default the height that gives the volume for the "
+        None, gt=0.0, le=MAX_ATTIC_HEIGHT, description="m above the attic floor; default the height that gives the volume for the "
                                   "roof's shape (gable: 2 V / A)")
     air_layers: Literal[1, 2] = Field(2, description="1 = well-mixed attic air, 2 = upper and lower layers")
     upper_volume_fraction: Fraction | None = Field(
@@ -249,29 +259,47 @@ class Attic(_Model):
     fan_mixing_ratio: float = Field(
         1.0, ge=0.0, le=100.0, description="extra exchange between layers while the fan runs, x fan flow")
 
+    @model_validator(mode="after")
+    def _height(self):
+        # an attic's air fits under its roof: no more than a box of the ridge height over the floor, and a
+        # mean height (volume / floor) within the tallest attic's (common practice, no source)
+        mean = self.volume / self.floor_area
+        if self.ridge_height is not None and self.volume > self.floor_area * self.ridge_height * (1 + 1e-9):
+            raise ValueError(f"volume: {self.volume:g} m3 does not fit under a ridge {self.ridge_height:g} m high "
+                             f"over {self.floor_area:g} m2 of floor (at most {self.floor_area * self.ridge_height:g}"
+                             f" m3, a box that high)")
+        if mean > MAX_ATTIC_HEIGHT / 2:
+            raise ValueError(f"volume: {self.volume:g} m3 over {self.floor_area:g} m2 of floor is a mean height of "
+                             f"{mean:.3g} m; an attic's mean height is at most {MAX_ATTIC_HEIGHT / 2:g} m "
+                             f"(a gable {MAX_ATTIC_HEIGHT:g} m high at the ridge)")
+        return self
+
 
 class Ceiling(_Model):
     """Insulation over gypsum, with the rooms below held at a setpoint."""
 
-    insulation: RValue = Field(gt=0.0, description="m2K/W, or 'R-38' (IP) / 'RSI 6.7'")
-    insulation_density: Density = Field(12.0, gt=0.0)
+    insulation: RValue = Field(ge=0.01, le=35.0, description="m2K/W, or 'R-38' (IP) / 'RSI 6.7'; 0.01 for none, "
+                                                              "at most R-199 (some 1.5 m of loose fill)")
+    insulation_density: Density = Field(12.0, gt=0.0, le=1000.0, description="kg/m3")
     gypsum: Layer = Layer(material="gypsum")
     room_temperature: Temperature = Field(24.0, ge=5.0, le=40.0,
                                           description="degC, cooling setpoint of the rooms below")
-    room_film: RValue = Field(0.16, gt=0.0,
+    room_film: RValue = Field(0.16, gt=0.0, le=2.0,
                               description="m2K/W, room-side surface film (heat flow down, still air)")
-    leakage_area: Area | None = Field(None, gt=0.0,
-                                      description="m2, effective leakage area of the ceiling at 4 Pa")
+    leakage_area: Area | None = Field(None, gt=0.0, le=10000.0,
+                                      description="m2, effective leakage area of the ceiling at 4 Pa "
+                                                  "(at most the attic floor)")
     leakage_exponent: float = Field(0.65, ge=0.5, le=1.0)
 
 
 class Opening(_Model):
     """A passive vent between outdoors and the attic."""
 
-    name: str
+    name: str = Field(max_length=100)
     kind: Literal["soffit", "gable", "ridge", "roof-vent"]
-    net_free_area: Area = Field(gt=0.0, description="m2 of net free area")
-    height: Length = Field(ge=0.0, description="m, centre of the opening above the attic floor")
+    net_free_area: Area = Field(gt=0.0, le=1000.0, description="m2 of net free area")
+    height: Length = Field(ge=0.0, le=MAX_ATTIC_HEIGHT, description="m, centre of the opening above the attic "
+                                                                     "floor")
     discharge_coefficient: Fraction = Field(0.61, gt=0.0, le=1.0)
     wind_pressure_coefficient: float | None = Field(None, ge=-2.0, le=2.0,
                                                     description="Cp; default by kind")
@@ -283,23 +311,35 @@ class Vents(_Model):
 
     passive_ach: float = Field(1.5, ge=0.0, le=60.0,
                                description="attic air changes per hour (used when no openings are given)")
-    openings: list[Opening] = Field(default_factory=list)
+    openings: list[Opening] = Field(default_factory=list, max_length=100)
+
+
+#: The largest fan a scenario may describe: 100 m3/s (212,000 cfm, several hundred times an attic fan's) and
+#: 20 kW (physical sense, generous; an ordinary attic fan is checked by scenario/plausibility.py).
+MAX_FAN_FLOW = 100.0
+MAX_FAN_POWER = 20000.0
+CurvePressure = Annotated[float, _q("pressure"), Field(ge=0.0, le=5000.0)]
+CurveFlow = Annotated[float, _q("flow"), Field(ge=0.0, le=MAX_FAN_FLOW)]
+CurvePower = Annotated[float, _q("power"), Field(gt=0.0, le=MAX_FAN_POWER)]
 
 
 class Fan(_Model):
     """The powered attic ventilator: a rated flow, or its published curve (needed with openings)."""
 
     enabled: bool = True
-    flow: Flow | None = Field(None, gt=0.0, description="m3/s delivered when running (simple airflow)")
-    power: Power = Field(gt=0.0, description="W electric when running")
-    curve_pressure: list[Pressure] | None = Field(None, description="static pressures of the curve points")
-    curve_flow: list[Flow] | None = Field(None, description="flows at those pressures")
-    curve_power: list[Power] | None = Field(None, description="W at those points (default: power)")
+    flow: Flow | None = Field(None, gt=0.0, le=MAX_FAN_FLOW,
+                              description="m3/s delivered when running (simple airflow)")
+    power: Power = Field(gt=0.0, le=MAX_FAN_POWER, description="W electric when running")
+    curve_pressure: list[CurvePressure] | None = Field(None, max_length=100,
+                                                       description="Pa, static pressures of the curve points")
+    curve_flow: list[CurveFlow] | None = Field(None, max_length=100, description="m3/s, flows at those pressures")
+    curve_power: list[CurvePower] | None = Field(None, max_length=100,
+                                                 description="W at those points (default: power)")
     speed_ratio: float = Field(1.0, gt=0.0, le=2.0, description="speed relative to the curve (fan laws)")
-    height: Length = Field(2.0, ge=0.0, description="m above the attic floor")
+    height: Length = Field(2.0, ge=0.0, le=MAX_ATTIC_HEIGHT, description="m above the attic floor")
     kind: Literal["gable", "roof-vent", "ridge"] = "gable"
-    idle_area: Area = Field(0.0, ge=0.0, description="m2 free area through the stopped fan")
-    diameter: Length = Field(0.36, gt=0.0, description="m, fan opening (sets the exhaust stream speed)")
+    idle_area: Area = Field(0.0, ge=0.0, le=100.0, description="m2 free area through the stopped fan")
+    diameter: Length = Field(0.36, gt=0.0, le=5.0, description="m, fan opening (sets the exhaust stream speed)")
     max_starts_per_hour: float = Field(
         6.0, gt=0.0, le=120.0, description="starts the motor may make in any 60 minutes (warn above)")
 
@@ -333,13 +373,15 @@ class Sensor(_Model):
         "mid", description="where the sensor sits: " + "; ".join(f"{p.name}: {p.sees}" for p in PLACEMENTS.values()))
     body: Literal["epoxy-bead-2mm", "glass-bead-1mm", "disc-5mm", "probe-6mm"] | None = None
     time_constant: Duration = Field(20.0, gt=0.0, le=3600.0, description="s, in attic air (without body)")
-    dissipation_constant: Conductance = Field(0.0015, gt=0.0, description="W/K, to attic air (without body)")
+    dissipation_constant: Conductance = Field(0.0015, gt=0.0, le=10.0,
+                                              description="W/K, to attic air (without body)")
     self_heating: Power = Field(0.0, ge=0.0, le=1.0, description="W dissipated in the sensor (setpoints)")
-    contact_conductance: Conductance = Field(0.005, gt=0.0, description="W/K to the deck (placement deck)")
-    enclosure_conductance: Conductance = Field(0.25, gt=0.0, description="W/K, control box to attic air")
+    contact_conductance: Conductance = Field(0.005, gt=0.0, le=100.0,
+                                             description="W/K to the deck (placement deck)")
+    enclosure_conductance: Conductance = Field(0.25, gt=0.0, le=1000.0, description="W/K, control box to attic air")
     enclosure_capacity: Annotated[float, _q("heat_capacity")] = Field(
-        400.0, gt=0.0, description="J/K of the control box")
-    triac_loss: Power | None = Field(None, ge=0.0, description="W heating the box while the fan runs")
+        400.0, gt=0.0, le=1e7, description="J/K of the control box")
+    triac_loss: Power | None = Field(None, ge=0.0, le=1000.0, description="W heating the box while the fan runs")
 
 
 Thermostat = Annotated[Union[SetpointThermostat, CircuitThermostat], Field(discriminator="kind")]
@@ -348,17 +390,18 @@ Thermostat = Annotated[Union[SetpointThermostat, CircuitThermostat], Field(discr
 class Simulation(_Model):
     """Numerical and reporting settings."""
 
-    output_step: Duration = Field(60.0, gt=0.0, le=3600.0, description="s between output rows")
-    short_cycle: Duration = Field(300.0, gt=0.0, description="s; runs shorter than this are short cycles")
+    output_step: Duration = Field(60.0, ge=1.0, le=3600.0, description="s between output rows")
+    short_cycle: Duration = Field(300.0, gt=0.0, le=3600.0,
+                                  description="s; complete runs shorter than this are short cycles")
     spinup_days: int = Field(2, ge=0, le=30, description="days of the first day repeated before the period")
-    rtol: float = Field(1e-6, gt=0.0, le=1e-2)
-    max_step: Duration = Field(300.0, gt=0.0, le=3600.0, description="s, largest integrator step")
+    rtol: float = Field(1e-6, ge=1e-10, le=1e-2, description="relative tolerance of the reference solver")
+    max_step: Duration = Field(300.0, ge=1.0, le=3600.0, description="s, largest integrator step")
     airflow_step: Duration = Field(300.0, ge=10.0, le=3600.0,
                                    description="s between re-solves of the vent/fan pressure balance")
     solver: Literal["fast", "reference"] = Field(
         "fast", description="fast: exact discretisation of the linearised network; reference: LSODA")
     fast_tolerance: TempDiff = Field(
-        5e-3, gt=0.0, le=0.1,
+        5e-3, ge=1e-5, le=0.1,
         description="K, error allowed per segment of the fast solver (tighten for a chattering thermostat)")
 
 
@@ -381,6 +424,10 @@ class Scenario(_Model):
     def _airflow_needs(self):
         if self.vents.openings and self.fan.curve_flow is None:
             raise ValueError("fan: with vents.openings the fan needs its curve (curve_pressure, curve_flow)")
+        leak = self.ceiling.leakage_area
+        if leak is not None and leak > self.attic.floor_area:
+            raise ValueError(f"ceiling.leakage_area: {leak:g} m2 is more than the whole ceiling "
+                             f"(attic.floor_area {self.attic.floor_area:g} m2)")
         return self
 
     house: House = House()

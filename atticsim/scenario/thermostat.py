@@ -17,13 +17,11 @@ import math
 from dataclasses import dataclass
 from typing import Annotated, Literal
 
-from pydantic import AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field, field_validator, model_validator
+from pydantic import AfterValidator, BeforeValidator, Field, field_validator, model_validator
 
+from atticsim.scenario.fields import StrictModel
+from atticsim.scenario.fields import quantity as _q
 from atticsim.units import to_si
-
-
-def _q(kind: str):
-    return BeforeValidator(lambda v: to_si(v, kind))
 
 
 Temperature = Annotated[float, _q("temperature")]
@@ -61,8 +59,15 @@ def _rule_span(value: float) -> float:
 RuleDuration = Annotated[float, _q("time"), AfterValidator(_rule_span)]
 
 
-class _Model(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True)
+class _Model(StrictModel):
+    """A thermostat table: unknown keys refused, frozen, no inf or nan, no true/false for a number."""
+
+
+#: Resistances a circuit may hold [ohm]: from a milliohm to a gigaohm (physical sense for parts on a board).
+_R = dict(gt=1e-3, le=1e9)
+#: The narrowest hysteresis a thermostat may have [K]: below it the switch would chatter on the sensor's noise,
+#: and the figures print as 0.00 K (a design rule of this project, no source).
+MIN_HYSTERESIS_K = 0.01
 
 
 #: The switch's action in the trade's words: it closes (fan on) on a rising temperature (the fan runs
@@ -131,8 +136,8 @@ class SetpointThermostat(_Thermostat):
     """An ideal comparator with hysteresis, given as switch-on and switch-off sensor temperatures."""
 
     kind: Literal["setpoints"]
-    on: Temperature = Field(ge=-40.0, le=120.0)
-    off: Temperature = Field(ge=-40.0, le=120.0)
+    on: Temperature = Field(ge=-40.0, le=120.0, description="degC")
+    off: Temperature = Field(ge=-40.0, le=120.0, description="degC")
 
     @model_validator(mode="before")
     @classmethod
@@ -144,14 +149,19 @@ class SetpointThermostat(_Thermostat):
 
     @model_validator(mode="after")
     def _order(self):
-        # without hysteresis (off = on) only a start delay, a minimum run or a minimum rest stops the chatter
+        # a hysteresis under MIN_HYSTERESIS_K chatters unless a start delay, minimum run or minimum rest
+        # paces the switch; with one of those, off = on is a valid (timer-only) design
         timed = self.start_delay > 0.0 or self.min_run > 0.0 or self.min_rest > 0.0
-        if self.action == "close-on-rise" and not (self.off < self.on or (self.off == self.on and timed)):
-            raise ValueError(f"a switch that closes on rise needs off < on, or off = on with a start delay, "
-                             f"minimum run or minimum rest (got on {self.on:g} degC, off {self.off:g} degC)")
-        if self.action == "close-on-fall" and not (self.on < self.off or (self.off == self.on and timed)):
-            raise ValueError(f"a switch that closes on fall needs on < off, or off = on with a start delay, "
-                             f"minimum run or minimum rest (got on {self.on:g} degC, off {self.off:g} degC)")
+        if abs(self.on - self.off) < MIN_HYSTERESIS_K and not timed:
+            raise ValueError(f"on {self.on:g} degC and off {self.off:g} degC leave a hysteresis under "
+                             f"{MIN_HYSTERESIS_K:g} K and no start_delay, min_run or min_rest paces the switch; "
+                             "it would chatter: set them apart or add a time rule")
+        if self.action == "close-on-rise" and not self.off <= self.on:
+            raise ValueError(f"a switch that closes on rise needs off < on (got on {self.on:g} degC, "
+                             f"off {self.off:g} degC)")
+        if self.action == "close-on-fall" and not self.on <= self.off:
+            raise ValueError(f"a switch that closes on fall needs on < off (got on {self.on:g} degC, "
+                             f"off {self.off:g} degC)")
         return self
 
     def switch_points(self) -> tuple[float, float]:
@@ -171,26 +181,28 @@ class CircuitValues(_Model):
     """Component values of the thermostat circuit (``[thermostat.circuit]``)."""
 
     rail: Voltage = Field(gt=0.0, le=40.0, description="V, regulated supply")
-    reference_upper: Resistance = Field(gt=0.0, description="ohm, reference divider to the rail")
-    reference_lower: Resistance = Field(gt=0.0, description="ohm, reference divider to ground")
-    sense_fixed: Resistance = Field(gt=0.0, description="ohm, fixed resistor in the sense divider")
-    sense_trim: Resistance = Field(0.0, ge=0.0, description="ohm, trimmer setting in series with it")
-    feedback: Resistance = Field(gt=0.0, description="ohm, output to the non-inverting input")
-    led_resistor: Resistance = Field(gt=0.0, description="ohm, in series with the opto-triac driver's LED")
+    reference_upper: Resistance = Field(**_R, description="ohm, reference divider to the rail")
+    reference_lower: Resistance = Field(**_R, description="ohm, reference divider to ground")
+    sense_fixed: Resistance = Field(**_R, description="ohm, fixed resistor in the sense divider")
+    sense_trim: Resistance = Field(0.0, ge=0.0, le=1e9, description="ohm, trimmer setting in series with it")
+    feedback: Resistance = Field(**_R, description="ohm, output to the non-inverting input")
+    led_resistor: Resistance = Field(**_R, description="ohm, in series with the opto-triac driver's LED")
     led_forward: Voltage = Field(1.2, gt=0.5, le=4.0, description="V, LED forward voltage at led_current")
     led_current: Current = Field(0.010, gt=0.0, le=0.1)
     led_ideality: Plain = Field(2.0, ge=1.0, le=4.0)
     output_low: Voltage = Field(0.2, ge=0.0, le=2.0, description="V, comparator output when sinking")
     input_offset: Voltage = Field(0.0, ge=-0.05, le=0.05)
-    thermistor_r25: Resistance | None = Field(None, gt=0.0)
+    thermistor_r25: Resistance | None = Field(None, **_R, description="ohm at 25 degC")
     thermistor_beta: Plain | None = Field(None, gt=500.0, lt=10000.0, description="K")
     thermistor_steinhart_hart: list[float] | None = Field(None, min_length=3, max_length=3)
-    thermistor_table: list[tuple[Temperature, Resistance]] | None = Field(None, min_length=3,
-                                                                          description="[[temp, R], ...]")
+    thermistor_table: list[tuple[Annotated[float, _q("temperature"), Field(ge=-60.0, le=200.0)],
+                                 Annotated[float, _q("resistance"), Field(**_R)]]] | None = Field(
+        None, min_length=3, max_length=500, description="[[temp degC, R ohm], ...]")
     feedback_on: Literal["sense", "reference"] = "sense"
     thermistor_position: Literal["lower", "upper"] | None = None
-    sink_guaranteed: Current = Field(0.006, gt=0.0, description="A, comparator's guaranteed sink current")
-    trigger_current: Current = Field(0.010, gt=0.0, description="A, opto-triac driver's trigger current (max)")
+    sink_guaranteed: Current = Field(0.006, gt=0.0, le=1.0, description="A, comparator's guaranteed sink current")
+    trigger_current: Current = Field(0.010, gt=0.0, le=1.0,
+                                     description="A, opto-triac driver's trigger current (max)")
 
     @model_validator(mode="after")
     def _one_thermistor(self):
@@ -225,7 +237,7 @@ class CircuitTolerances(_Model):
     rail: Plain = Field(0.05, ge=0.0, lt=0.5)
     offset: Voltage = Field(0.005, ge=0.0, lt=1.0, description="V, comparator offset (max)")
     samples: int = Field(2000, ge=100, le=200000)
-    seed: int = 0
+    seed: int = Field(0, ge=0, le=2**32 - 1)
 
 
 class MainsSide(_Model):
@@ -233,21 +245,21 @@ class MainsSide(_Model):
 
     line_voltage: Voltage = Field(ge=90.0, le=264.0, description="V rms")
     frequency: Frequency = Field(description="Hz, 50 or 60")
-    dropper_capacitance: Capacitance = Field(gt=0.0)
-    zener_voltage: Voltage = Field(gt=0.0)
-    bleed_resistor: Resistance = Field(gt=0.0)
-    fan_current: Current = Field(gt=0.0, description="A rms, fan motor running current")
-    series_resistor: Resistance = Field(100.0, gt=0.0)
+    dropper_capacitance: Capacitance = Field(gt=0.0, le=1e-4, description="F")
+    zener_voltage: Voltage = Field(gt=0.0, le=100.0, description="V")
+    bleed_resistor: Resistance = Field(**_R, description="ohm")
+    fan_current: Current = Field(gt=0.0, le=100.0, description="A rms, fan motor running current")
+    series_resistor: Resistance = Field(100.0, **_R, description="ohm")
     fan_start_multiple: Plain = Field(6.0, ge=1.0, le=12.0)
-    triac_current_rating: Current = Field(8.0, gt=0.0)
-    fuse_rating: Current | None = Field(None, gt=0.0)
-    capacitor_voltage_rating: Voltage | None = Field(None, gt=0.0)
-    bridge_voltage_rating: Voltage | None = Field(None, gt=0.0)
+    triac_current_rating: Current = Field(8.0, gt=0.0, le=1000.0, description="A rms")
+    fuse_rating: Current | None = Field(None, gt=0.0, le=1000.0, description="A")
+    capacitor_voltage_rating: Voltage | None = Field(None, gt=0.0, le=10000.0, description="V")
+    bridge_voltage_rating: Voltage | None = Field(None, gt=0.0, le=10000.0, description="V")
 
     @model_validator(mode="after")
     def _freq(self):
         if self.frequency not in (50.0, 60.0):
-            raise ValueError(f"frequency must be 50 or 60 Hz (got {self.frequency:g})")
+            raise ValueError(f"frequency: must be 50 or 60 Hz (got {self.frequency:g} Hz)")
         return self
 
     def mains_params(self):
@@ -375,9 +387,16 @@ class CircuitThermostat(_Thermostat):
     def _switches(self):
         from atticsim.circuit import switching_temperatures
 
-        th = switching_temperatures(self.circuit_params())  # raises ValueError with the reason
+        try:
+            th = switching_temperatures(self.circuit_params())  # raises ValueError with the reason
+        except ArithmeticError as exc:  # values so far apart that the circuit's equations overflow
+            raise ValueError(f"circuit: the values cannot be solved for switching temperatures ({exc})") from None
         if not (-40.0 <= th.on_c <= 120.0 and -40.0 <= th.off_c <= 120.0):
             raise ValueError(f"the circuit switches at {th.on_c:.1f} / {th.off_c:.1f} degC, outside -40..120 degC")
+        if abs(th.on_c - th.off_c) < MIN_HYSTERESIS_K:
+            raise ValueError(f"circuit: the circuit switches ON at {th.on_c:.3f} degC and OFF at {th.off_c:.3f} degC, "
+                             f"a hysteresis of {abs(th.on_c - th.off_c):.2g} K (under {MIN_HYSTERESIS_K:g} K): the fan "
+                             f"would chatter; a smaller thermostat.circuit.feedback widens it")
         return self
 
     def circuit_params(self):

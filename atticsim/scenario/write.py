@@ -10,6 +10,7 @@ import tomllib
 from importlib import resources
 from pathlib import Path
 
+from atticsim.errors import OutputError, WriteFailure
 from atticsim.scenario.load import ScenarioError, parse_override, scenario_from_dict
 
 
@@ -76,8 +77,8 @@ def write_scenario(source: str | Path | None, overrides, changes: dict, out: str
 
     Raises
     ------
-    FileExistsError
-        ``out`` exists and ``force`` is not given.
+    OutputError
+        ``out`` exists and ``force`` is not given, or cannot be written (one line).
     ScenarioError
         The result does not validate (one line naming the key).
     """
@@ -85,7 +86,9 @@ def write_scenario(source: str | Path | None, overrides, changes: dict, out: str
 
     out = Path(out)
     if out.exists() and not force:
-        raise FileExistsError(f"{out}: file exists; pass --force to overwrite it")
+        raise OutputError(f"{out}: file exists; pass --force to overwrite it")
+    if out.is_dir():
+        raise OutputError(f"{out}: is a folder; give a file name to write the scenario to")
     if source is None:
         text = resources.files("atticsim.data").joinpath("demo_house.toml").read_text()
         base_dir = None
@@ -115,8 +118,24 @@ def write_scenario(source: str | Path | None, overrides, changes: dict, out: str
             _set(doc, ["weather", "file"], Path(moved).as_posix(), None, "--write")
     result = tomlkit.dumps(doc)
     scenario_from_dict(tomllib.loads(result), str(out), out.resolve().parent)  # refuse a file that cannot run
-    out.parent.mkdir(parents=True, exist_ok=True)
-    tmp = out.with_name(f".tmp-{out.name}")
-    tmp.write_text(result)
-    os.replace(tmp, out)
+    tmp = out.with_name(f".atticsim-tmp-{os.getpid()}-{out.name}")
+    try:
+        out.parent.mkdir(parents=True, exist_ok=True)
+        tmp.write_text(result)
+        if force:
+            os.replace(tmp, out)
+        else:
+            try:
+                os.link(tmp, out)  # fails if a file appeared there meanwhile: never overwritten without --force
+            except FileExistsError:
+                raise
+            except OSError:  # a file system without hard links: create the file exclusively instead
+                with open(out, "x", encoding="utf-8") as fh:
+                    fh.write(result)
+    except FileExistsError:
+        raise OutputError(f"{out}: file exists; pass --force to overwrite it") from None
+    except OSError as exc:
+        raise WriteFailure(exc.errno, f"{out}: cannot write: {exc.strerror or exc}") from None
+    finally:
+        tmp.unlink(missing_ok=True)
     return out

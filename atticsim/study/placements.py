@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-from concurrent.futures import ProcessPoolExecutor
-
 import numpy as np
 import pandas as pd
 
@@ -36,9 +34,16 @@ def run_placements(scenario, placements=None, start=None, end=None, months=None,
     if unknown:
         raise ValueError(f"--only: unknown placement(s) {', '.join(unknown)}; known: {', '.join(PLACEMENTS)}")
     jobs = [(scenario, p, start, end, months, year) for p in placements]
-    if workers > 1:
-        with ProcessPoolExecutor(max_workers=workers) as pool:
+    if workers > 1 and len(jobs) > 1:
+        from atticsim.processes import process_pool
+
+        pool = process_pool(min(workers, len(jobs)))  # workers end with this process
+        try:
             done = dict(pool.map(_one, jobs))
+        except BaseException:  # Ctrl-C, SIGTERM, a failed run: do not wait for the other placements
+            pool.shutdown(wait=False, cancel_futures=True)
+            raise
+        pool.shutdown()
     else:
         done = dict(map(_one, jobs))
     return {p: done[p] for p in placements}

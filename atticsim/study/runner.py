@@ -33,6 +33,7 @@ from pathlib import Path
 
 import numpy as np
 
+from atticsim.errors import is_input_error, one_line
 from atticsim.study.analysis import (DEFAULT_COOLING_COP, degree_hours_above, max_starts_in_window,
                                      net_benefit_kwh)
 from atticsim.study.spec import DERIVED, HEAT_METRICS, Study, StudyError, point_overrides
@@ -148,7 +149,8 @@ def run_point(task: dict) -> dict:
         out["metrics"] = {k: _plain(v) for k, v in point_metrics(result, sc, task["comfort_limit_c"]).items()}
     except Exception as exc:  # a failed point is recorded, the study goes on
         out["status"] = "error"
-        out["error"] = f"{type(exc).__name__}: {str(exc).splitlines()[0] if str(exc) else ''}"
+        out["error"] = f"{type(exc).__name__}: {one_line(str(exc))}"
+        out["error_kind"] = "input" if is_input_error(exc) else "bug"
     finally:
         if collecting:
             gc.enable()
@@ -246,7 +248,10 @@ def plan_study(study: Study) -> Plan:
             overrides = point_overrides(p, base)
             sc = load_scenario(study.scenario, base_overrides + overrides)
         except ScenarioError as exc:
-            raise StudyError(f"--vary: point {i} ({label}): {exc.key + ': ' if exc.key else ''}{exc.reason}") from None
+            why = exc.reason
+            if exc.key == "fan.power" and "fan.flow" in p and not {"fan.power", "fan.speed_ratio"} & set(p):
+                why += "; fan.power scales with the varied fan.flow at the base fan's W per m3/s (vary fan.power too)"
+            raise StudyError(f"--vary: point {i} ({label}): {exc.key + ': ' if exc.key else ''}{why}") from None
         except StudyError as exc:
             raise StudyError(f"--vary: point {i} ({label}): {exc}") from None
         dump = sc.model_dump(mode="json")
@@ -309,12 +314,21 @@ class Journal:
         self._fh = open(path, "a", encoding="utf-8")
 
     def append(self, record: dict) -> None:
-        self._fh.write(json.dumps(record, allow_nan=False) + "\n")
-        self._fh.flush()
-        os.fsync(self._fh.fileno())
+        try:
+            self._fh.write(json.dumps(record, allow_nan=False) + "\n")
+            self._fh.flush()
+            os.fsync(self._fh.fileno())
+        except OSError as exc:
+            from atticsim.errors import WriteFailure
+
+            raise WriteFailure(exc.errno, f"{self.path}: cannot write: {_os_reason(exc)}; the points journaled "
+                                          f"before are kept: rerun with --resume when there is room") from None
 
     def close(self) -> None:
-        self._fh.close()
+        try:
+            self._fh.close()
+        except OSError:  # the disk filled while flushing: append() has said so
+            pass
 
 
 # --- progress -----------------------------------------------------------------------------------------
@@ -415,12 +429,15 @@ def process_executor(workers: int):
     import multiprocessing
     import threading
 
+    from atticsim.processes import process_pool
+
     methods = multiprocessing.get_all_start_methods()
     if sys.platform.startswith("linux") and "fork" in methods and threading.active_count() == 1:
         method = "fork"
     else:
         method = "forkserver" if "forkserver" in methods else "spawn"
-    return cf.ProcessPoolExecutor(max_workers=workers, mp_context=multiprocessing.get_context(method))
+    # workers end with this process, however it ends (atticsim.processes)
+    return process_pool(workers, mp_context=multiprocessing.get_context(method))
 
 
 @dataclass
@@ -440,11 +457,7 @@ class StudyOutcome:
 
 
 def _check_dir(out: Path, plan: Plan, resume: bool, force: bool) -> dict | None:
-    """Check DIR without changing it; return the earlier study.json on resume."""
-    if resume and force:
-        raise StudyError("--resume and --force: choose one (continue the study, or start it over)")
-    if out.exists() and not out.is_dir():
-        raise StudyError(f"{out}: exists and is not a folder")
+    """Check the claimed DIR without changing it; return the earlier study.json on resume."""
     previous = None
     if resume and (out / STUDY_JSON).exists():
         try:
@@ -456,9 +469,6 @@ def _check_dir(out: Path, plan: Plan, resume: bool, force: bool) -> dict | None:
                              f"limit differ); use a new --out, or --force to start over")
     elif resume and (out / JOURNAL).exists():
         raise StudyError(f"--resume: {out} has a journal but no {STUDY_JSON}; use --force to start over")
-    elif not resume and out.exists() and any(out.iterdir()) and not force:
-        raise StudyError(f"{out}: folder already holds files; pass --resume to continue a study there "
-                         f"or --force to start over")
     return previous
 
 
@@ -471,9 +481,25 @@ def _prepare_dir(out: Path, resume: bool) -> None:
 
 
 def _write_atomic(path: Path, write) -> None:
-    tmp = path.with_name(f".tmp-{path.name}")
-    write(tmp)
-    os.replace(tmp, path)
+    """Write a file through a temporary one beside it (the claim's naming, so that a later claim removes it if
+    this process is killed), then move it into place; a failure (a full disk) in one line, nothing left."""
+    from atticsim.errors import WriteFailure
+    from atticsim.results.output import TMP_PREFIX
+
+    tmp = path.with_name(f"{TMP_PREFIX}{os.getpid()}-{path.name}")
+    try:
+        write(tmp)
+        os.replace(tmp, path)
+    except OSError as exc:
+        raise WriteFailure(exc.errno, f"{path.parent}: cannot write {path.name}: {_os_reason(exc)}") from None
+    finally:
+        tmp.unlink(missing_ok=True)
+
+
+def _os_reason(exc: OSError) -> str:
+    import errno
+
+    return "no space left on the disk" if exc.errno in (errno.ENOSPC, errno.EDQUOT) else (exc.strerror or str(exc))
 
 
 def _study_record(plan: Plan, previous: dict | None, command) -> dict:
@@ -495,6 +521,23 @@ def _study_record(plan: Plan, previous: dict | None, command) -> dict:
                    for p in plan.points],
         "runs": list((previous or {}).get("runs", [])),
     }
+
+
+def _every_point_failed(plan: Plan, done: dict, out: Path, resume: bool, previous) -> None:
+    """Stop a study none of whose points ran, in one line: the study's input error (exit 2) when the points
+    failed on bad input, else an error saying it is a bug. A new study's files are removed (nothing of
+    value is in them); a resumed one keeps its folder as it was."""
+    first = next(p for p in plan.points if p.key in done)
+    rec = done[first.key]
+    label = ", ".join(f"{k}={v}" for k, v in first.given.items())
+    line = (f"every one of the {len(plan.points)} points failed, e.g. point {first.index} ({label}): "
+            f"{rec.get('error')}")
+    if not resume:
+        for name in STUDY_FILES:
+            (out / name).unlink(missing_ok=True)
+    if all(r.get("error_kind") == "input" for r in done.values() if r.get("status") != "ok"):
+        raise StudyError(f"sweep: {line}")
+    raise RuntimeError(line)
 
 
 def build_table(plan: Plan, records: dict):
@@ -559,16 +602,70 @@ def run_study(study: Study, out, *, workers: int | None = None, scheduler: str |
     """
     import importlib.util
 
+    from atticsim.results.output import claim_output
+
     if importlib.util.find_spec("pyarrow") is None:
         raise StudyError("points.parquet needs pyarrow: pip install pyarrow")
+    if resume and force:
+        raise StudyError("--resume and --force: choose one (continue the study, or start it over)")
+    if workers is not None and (isinstance(workers, bool) or workers < 1):
+        raise StudyError(f"--workers: must be at least 1 (got {workers})")
+    study.check()  # the study's size among the rest, before anything is drawn or claimed
     out = Path(out)
+    # the folder is this process's until the study ends: a second study (or run) into it fails at once
+    claim = claim_output(out, force, existing_ok=resume,
+                         refuse_hint="pass --resume to continue a study there or --force to start over")
+    for note in claim.notes:
+        if progress is not None:
+            progress.write(f"note: {note}\n")
+    try:
+        outcome = _run_claimed(study, out, claim, workers=workers, scheduler=scheduler, executor=executor,
+                               resume=resume, force=force, progress=progress, on_point=on_point, command=command,
+                               plots=plots)
+    except BaseException:
+        claim.release(failed=True)  # removes the folder if the claim made it and nothing was kept in it
+        raise
+    claim.release(failed=False)
+    return outcome
+
+
+def _check_runs(plan: Plan) -> None:
+    """Load each point's weather once in this process (workers forked from it inherit it) and check its
+    period and the run's size before any point runs: a period outside the weather, a missing or broken
+    weather file, or an output step that would fill the memory fail here in one line, not in every point."""
+    from atticsim.forcing.build import period_bounds
+    from atticsim.pipeline import resolve_period
+    from atticsim.scenario.limits import check_output_rows
+
+    study, seen = plan.study, set()
+    for p in plan.points:
+        sc = p.scenario
+        key = (sc.weather.file, sc.weather.start, sc.weather.end, sc.simulation.output_step)
+        if key in seen:
+            continue
+        seen.add(key)
+        frame, meta = _weather(sc.weather.file)
+        first, last = resolve_period(frame, sc, study.start, study.end)
+        t0, t1 = period_bounds(frame, first, last, str(getattr(meta, "path", None) or sc.weather.file), meta)
+        check_output_rows(sc, (t1 - t0).total_seconds(),
+                          f"--vary: point {p.index} ({', '.join(f'{k}={v}' for k, v in p.given.items())})")
+
+
+def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, force, progress, on_point, command,
+                 plots) -> StudyOutcome:
+    """run_study's work, in a folder this process has claimed."""
     if resume and study.seed is None and study.sample == "lhs" and (out / STUDY_JSON).exists():
         try:  # an interrupted Latin-hypercube study resumes with the seed it drew
             study.seed = json.loads((out / STUDY_JSON).read_text())["study"]["seed"]
         except (json.JSONDecodeError, KeyError, TypeError):
             pass
+    size = study.points if study.sample == "lhs" else math.prod(len(ax.values) for ax in study.axes)
+    if progress is not None and size and size > 500:  # about a millisecond a point: say what the wait is
+        progress.write(f"sweep: checking the scenarios of {size:,} points ...\n")
+        progress.flush()
     plan = plan_study(study)
     previous = _check_dir(out, plan, resume, force)
+    _check_runs(plan)
     wanted = {p.key for p in plan.points}
     done = {}
     if resume:
@@ -585,8 +682,6 @@ def run_study(study: Study, out, *, workers: int | None = None, scheduler: str |
         executor, close = dask_executor(scheduler)
         backend = f"dask {scheduler}"
     else:
-        if workers is not None and workers < 1:
-            raise StudyError(f"--workers: must be at least 1 (got {workers})")
         n = min(workers or os.cpu_count() or 1, max(1, len(todo)))
         if n > 1:
             executor = process_executor(n)
@@ -637,12 +732,16 @@ def run_study(study: Study, out, *, workers: int | None = None, scheduler: str |
                     raise StudyError(f"a worker process died; the {computed + reused} finished points are kept "
                                      f"in {out / JOURNAL}: rerun with --resume") from None
                 finish(result)
-    except BaseException:
+    except BaseException as exc:
         for fut in futures:
             fut.cancel()
         if close is not None and scheduler is None:
             executor.shutdown(wait=False, cancel_futures=True)
             close = None
+        if isinstance(exc, KeyboardInterrupt) and progress is not None:
+            kept = computed - failed + reused
+            progress.write(f"\nsweep: stopped; {kept} finished point{'s' if kept != 1 else ''} kept in "
+                           f"{out / JOURNAL}: rerun with --resume to continue\n")
         raise
     finally:
         journal.close()
@@ -650,6 +749,8 @@ def run_study(study: Study, out, *, workers: int | None = None, scheduler: str |
         if close is not None:
             close()
     wall = time.perf_counter() - t_start
+    if todo and not any(done.get(p.key, {}).get("status") == "ok" for p in plan.points):
+        _every_point_failed(plan, done, out, resume, previous)
 
     from atticsim.study.analysis import (OBJECTIVE_NAMES, circuit_parts, edges, pareto_columns, pareto_mask,
                                          qualifying, recommend)

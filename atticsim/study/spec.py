@@ -22,7 +22,6 @@ file key and the reason.
 from __future__ import annotations
 
 import itertools
-import json
 import math
 import re
 import tomllib
@@ -30,6 +29,9 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
+
+from atticsim.errors import InputError, short_repr
+from atticsim.scenario.load import toml_string
 
 #: Default starts-per-hour limit for small fan motors. Common practice, from memory: motor makers' guidance
 #: for small single-phase induction motors allows roughly 6 starts per hour (a start draws several times the
@@ -54,12 +56,17 @@ HEAT_METRICS = {"degree-hours": "degree_hours_above_limit", "ceiling-gain": "cei
 #: Largest number of values one range may produce (a guard against a mistyped STEP).
 MAX_AXIS_VALUES = 10000
 
+#: Most points one study may hold, checked before any point is drawn (a 100 x 100 grid is 10,000; on two
+#: cores a 92-day point takes about 0.1-0.3 s, so this is hours of work). Planning holds each point's
+#: validated scenario in memory.
+MAX_STUDY_POINTS = 20000
+
 _NUM = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
 _NUMERIC = re.compile(rf"^\s*({_NUM})((?:\s*[:,]\s*{_NUM})*)\s*(.*?)\s*$")
 _KEY = re.compile(r"^[A-Za-z_][\w-]*(?:\.[\w-]+)*$")
 
 
-class StudyError(ValueError):
+class StudyError(InputError):
     """Bad study input; ``str(err)`` is one line naming the option (or file and key) and the reason."""
 
 
@@ -133,7 +140,7 @@ def _numeric_value(number: float, unit: str) -> Value:
     text = _fmt(number)
     if unit:
         display = f"{text} {unit}"
-        return Value(display, json.dumps(display), float(text))
+        return Value(display, toml_string(display), float(text))
     return Value(text, text, float(text))
 
 
@@ -172,7 +179,7 @@ def _text_values(raw: str, where: str, strict: bool = False) -> list[Value]:
     words (``strict``: raise _NotToml instead)."""
     try:
         items = tomllib.loads(f"v = [{raw}]")["v"]
-    except tomllib.TOMLDecodeError:
+    except (ValueError, RecursionError):  # TOMLDecodeError, or an integer too long to read
         if strict:
             raise _NotToml from None
         items = [part.strip() for part in raw.split(",")]
@@ -185,11 +192,11 @@ def _text_values(raw: str, where: str, strict: bool = False) -> list[Value]:
         elif isinstance(item, (int, float)):
             out.append(_numeric_value(float(item), ""))
         elif isinstance(item, str):
-            out.append(Value(item, json.dumps(item)))
+            out.append(Value(item, toml_string(item)))
         elif hasattr(item, "isoformat"):  # TOML date or date-time, e.g. weather.start=2025-07-01,2025-08-01
             out.append(Value(item.isoformat(), item.isoformat()))
         else:
-            raise StudyError(f"{where}: unsupported value {item!r} (use numbers, text, dates or true/false)")
+            raise StudyError(f"{where}: unsupported value {short_repr(item)} (use numbers, text, dates or true/false)")
     return out
 
 
@@ -212,7 +219,9 @@ def parse_vary(text: str, option: str = "--vary") -> Axis:
     StudyError
         One line naming the option, the text and the reason.
     """
-    where = f"{option} {text}"
+    where = f"{option} {short_repr(text) if len(text) > 60 else text}"
+    if len(text) > 5000:
+        raise StudyError(f"{where}: longer than 5000 characters; give a range START:STOP:STEP or fewer values")
     if "=" not in text:
         raise StudyError(f"{where}: expected KEY=START:STOP:STEP[unit] or KEY=a,b,c[unit]")
     key, raw = (s.strip() for s in text.split("=", 1))
@@ -220,6 +229,8 @@ def parse_vary(text: str, option: str = "--vary") -> Axis:
         raise StudyError(f"{where}: {key!r} is not a dotted scenario key such as thermostat.on")
     if not raw:
         raise StudyError(f"{where}: no values after '='")
+    if ":" in raw and any(part.strip().lower().lstrip("+-").startswith(("inf", "nan")) for part in raw.split(":")):
+        raise StudyError(f"{where}: START, STOP and STEP must be finite numbers")
     m = _NUMERIC.match(raw)
     if m and (not m.group(3) or not re.search(r"[:,]", m.group(3))):
         first, rest, unit = m.group(1), m.group(2), m.group(3)
@@ -252,7 +263,8 @@ def axis_from_table(table: dict, where: str) -> Axis:
     allowed = {"key", "start", "stop", "step", "values", "unit"}
     unknown = sorted(set(table) - allowed)
     if unknown:
-        raise StudyError(f"{where}.{unknown[0]}: unknown key (allowed: {', '.join(sorted(allowed))})")
+        raise StudyError(f"{where}.{unknown[0]}: unknown key{_did_you_mean(unknown[0], allowed)} "
+                         f"(allowed: {', '.join(sorted(allowed))})")
     key = table.get("key")
     if not isinstance(key, str) or not _KEY.match(key):
         raise StudyError(f"{where}.key: required, a dotted scenario key such as \"thermostat.on\"")
@@ -293,11 +305,18 @@ def axis_from_table(table: dict, where: str) -> Axis:
             out.append(_numeric_value(float(v), unit))
         elif isinstance(v, str):
             if unit:
-                raise StudyError(f"{where}.values: give numbers when a unit is set (got {v!r})")
-            out.append(Value(v, json.dumps(v)))
+                raise StudyError(f"{where}.values: give numbers when a unit is set (got {short_repr(v)})")
+            out.append(Value(v, toml_string(v)))
         else:
-            raise StudyError(f"{where}.values: unsupported value {v!r}")
+            raise StudyError(f"{where}.values: unsupported value {short_repr(v)}")
     return Axis(key, tuple(out), unit, text=text)
+
+
+def _did_you_mean(name: str, known) -> str:
+    import difflib
+
+    close = difflib.get_close_matches(str(name), sorted(known), n=1, cutoff=0.6)
+    return f" (did you mean {close[0]}?)" if close else ""
 
 
 # --- sampling -----------------------------------------------------------------------------------------
@@ -514,13 +533,31 @@ class Study:
             clash = [k for k in sets if name in keys and k in keys]
             if clash:
                 raise StudyError(f"--vary {name}: cannot vary together with {clash[0]} (it sets {clash[0]})")
-        if self.sample not in ("grid", "lhs"):
-            raise StudyError(f"--sample: must be grid or lhs (got {self.sample!r})")
+        if not isinstance(self.sample, str) or self.sample not in ("grid", "lhs"):
+            raise StudyError(f"--sample: must be grid or lhs (got {short_repr(self.sample)})")
         if self.sample == "lhs":
             if self.points is None or self.points < 1:
                 raise StudyError("--points: Latin-hypercube sampling needs --points N (N >= 1)")
-        elif self.points is not None:
-            raise StudyError("--points: only used with --sample lhs (a grid has one point per combination)")
+            if self.points > MAX_STUDY_POINTS:
+                raise StudyError(f"--points: {self.points:,} points, more than the {MAX_STUDY_POINTS:,} a study may "
+                                 f"hold; split it into smaller studies")
+            for ax in self.axes:
+                if not ax.is_range and not ax.values:
+                    raise StudyError(f"--vary {ax.text}: no values")
+        else:
+            if self.points is not None:
+                raise StudyError("--points: only used with --sample lhs (a grid has one point per combination)")
+            for ax in self.axes:
+                if not ax.values:
+                    raise StudyError(f"--vary {ax.text}: a grid needs START:STOP:STEP or a list of values")
+            total = math.prod(len(ax.values) for ax in self.axes)
+            if total > MAX_STUDY_POINTS:
+                sizes = " x ".join(f"{len(ax.values):,}" for ax in self.axes)
+                raise StudyError(f"--vary: the grid makes {sizes} = {total:,} points, more than the "
+                                 f"{MAX_STUDY_POINTS:,} a study may hold; use fewer values (a coarser STEP) or "
+                                 f"--sample lhs --points N")
+        if self.seed is not None and (isinstance(self.seed, bool) or not 0 <= self.seed < 2**32):
+            raise StudyError(f"--seed: must be a whole number from 0 to {2**32 - 1} (got {short_repr(self.seed)})")
         if not (math.isfinite(self.starts_limit) and self.starts_limit > 0):
             raise StudyError(f"--starts-limit: must be a positive number of starts per hour "
                              f"(got {self.starts_limit!r})")
@@ -530,8 +567,9 @@ class Study:
                              f"(got {self.short_cycles_allowed!r})")
         if not (math.isfinite(self.heat_tolerance) and 0.0 <= self.heat_tolerance < 1.0):
             raise StudyError(f"--heat-tolerance: must be from 0 % to under 100 % (got {self.heat_tolerance!r})")
-        if self.heat_metric not in HEAT_METRICS:
-            raise StudyError(f"--heat-metric: must be one of {', '.join(HEAT_METRICS)} (got {self.heat_metric!r})")
+        if not isinstance(self.heat_metric, str) or self.heat_metric not in HEAT_METRICS:
+            raise StudyError(f"--heat-metric: must be one of {', '.join(HEAT_METRICS)} "
+                             f"(got {short_repr(self.heat_metric)})")
 
     def sample_points(self) -> list[dict[str, Value]]:
         """The study's points, each a dict key -> Value in a fixed order."""
@@ -631,16 +669,10 @@ def load_study_file(path: str | Path) -> Study:
     -------
     Study
     """
+    from atticsim.scenario.load import read_toml
+
     path = Path(path)
-    try:
-        with open(path, "rb") as fh:
-            data = tomllib.load(fh)
-    except FileNotFoundError:
-        raise StudyError(f"{path}: file not found") from None
-    except tomllib.TOMLDecodeError as exc:
-        raise StudyError(f"{path}: TOML syntax error: {exc}") from None
-    except OSError as exc:
-        raise StudyError(f"{path}: cannot read: {exc.strerror}") from None
+    data = read_toml(path, error=lambda file, key, reason: StudyError(f"{file}: {reason}"))
 
     def table(name, allowed):
         t = data.get(name, {})
@@ -648,12 +680,14 @@ def load_study_file(path: str | Path) -> Study:
             raise StudyError(f"{path}: {name}: must be a table")
         unknown = sorted(set(t) - allowed)
         if unknown:
-            raise StudyError(f"{path}: {name}.{unknown[0]}: unknown key (allowed: {', '.join(sorted(allowed))})")
+            raise StudyError(f"{path}: {name}.{unknown[0]}: unknown key{_did_you_mean(unknown[0], allowed)} "
+                             f"(allowed: {', '.join(sorted(allowed))})")
         return t
 
     unknown = sorted(set(data) - _FILE_KEYS)
     if unknown:
-        raise StudyError(f"{path}: {unknown[0]}: unknown key (allowed: {', '.join(sorted(_FILE_KEYS))})")
+        raise StudyError(f"{path}: {unknown[0]}: unknown key{_did_you_mean(unknown[0], _FILE_KEYS)} "
+                         f"(allowed: {', '.join(sorted(_FILE_KEYS))})")
     study = Study(source=str(path))
     if "scenario" in data:
         if not isinstance(data["scenario"], str):

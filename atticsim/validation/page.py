@@ -146,6 +146,53 @@ def render_markdown(results) -> str:
     return "\n".join(lines)
 
 
+def _cells(r):
+    """One case's cells for the HTML table (plain text: the page escapes them)."""
+    c = r.case
+    ran = r.status in (WITHIN, OUTSIDE)
+    return [c.case_id, c.name, _number(r.tool, c.digits) if ran else "",
+            format_reference(r.reference, c.digits) if ran else "", _number(r.difference, c.digits) if ran else "",
+            format_tolerance(c), c.unit, format_result(r).replace("**", ""), c.source]
+
+
+def render_html(results, command: str | None = None) -> str:
+    """The validation page as one self-contained HTML report (the same content as :func:`render_markdown`):
+    the headline, a table for each model part, the known misses and why, the inputs of every case, the
+    cautions and the version."""
+    from atticsim.report.cautions import ALL as CAUTIONS
+    from atticsim.report.page import Page, answers, box, bullets, key_values, paragraph, table
+    from atticsim.version import __version__
+
+    n = counts(results)
+    page = Page("atticsim validation", headline(results))
+    page.section("answers", "How close atticsim comes", answers([
+        ("cases", str(n["total"]), False), ("within tolerance", str(n["within"]), False),
+        ("known misses", str(n["known_misses"]), False), ("unexpected", str(n["unexpected"]), n["unexpected"] > 0)]),
+        paragraph("Each row is one case: atticsim's figure, the reference figure, their difference (atticsim minus "
+                  "reference; for a published range, how far outside it), the tolerance allowed and the source. "
+                  "Houses, sites and weather marked fictional or invented are ours, for the checks; the typical-year "
+                  "files are pvlib's (real climates)."), paragraph(SCOPE, "muted"))
+    head = ["id", "case", "atticsim", "reference", "difference", "tolerance", "unit", "result", "source"]
+    for g in GROUPS:
+        members = [r for r in results if r.case.group == g]
+        if members:
+            page.section(f"part-{GROUPS.index(g)}", f"{g[0].upper()}{g[1:]}",
+                         table(head, [_cells(r) for r in members], numeric={2, 3, 4}, cls="wide small"))
+    misses = [r for r in results if r.status == OUTSIDE and r.case.expected == OUTSIDE]
+    odd = [r for r in results if r.unexpected or r.status in (NOT_RUN, ERROR)]
+    notes = [f"{r.case.case_id} {r.case.name}: outside its tolerance. Why: {r.case.why}." for r in misses]
+    notes += [f"{r.case.case_id} {r.case.name}: {format_result(r).replace('**', '')}"
+              + (f": {r.message}" if r.message else "") for r in odd]
+    page.section("misses", "Known misses, and anything not as expected",
+                 bullets(notes) if notes else paragraph("Every case came out as the page states."))
+    page.section("cases", "What each case computes", bullets(
+        [f"{r.case.case_id} {r.case.name}. {r.case.inputs[:1].upper()}{r.case.inputs[1:]}." for r in results]))
+    page.section("cautions", "Cautions", box("Safety", bullets(list(CAUTIONS)), "warn"))
+    rows = [("atticsim version", __version__)] + ([("command", command)] if command else [])
+    page.section("trace", "Version", key_values(rows, "mono small"))
+    return page.html()
+
+
 def results_json(results) -> dict:
     """Everything the page says, and each case's wall time, as plain data."""
     from atticsim.version import __version__

@@ -1,10 +1,6 @@
-"""The terminal summary of a validation run and the atomic write of a single page."""
+"""The terminal summary of a validation run."""
 
 from __future__ import annotations
-
-import os
-import tempfile
-from pathlib import Path
 
 from atticsim.validation.page import counts, format_reference, headline
 from atticsim.validation.registry import ERROR, GROUPS, NOT_RUN, OUTSIDE, WITHIN
@@ -48,16 +44,3 @@ def summary_text(results, seconds=None) -> str:
     if n["unexpected"] == 0:
         lines.append("every case came out as the page states")
     return "\n".join(lines)
-
-
-def write_page(path: Path, text: str) -> None:
-    """Write ``text`` to ``path`` through a temporary file in the same folder and a rename (never half-written)."""
-    path = Path(path)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent)
-    try:
-        with os.fdopen(fd, "w") as handle:
-            handle.write(text)
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
