@@ -46,6 +46,8 @@ class AirflowState:
         everything is "lower", and "upper" is the same node)
     fan_makeup : 1 when the fan's exhaust is made up by outdoor air entering the lower layer at the same
         mass flow (the simple form, which describes no vents), else 0 (the balance gives the vents' flows)
+    fan_speed : the fan's speed as a fraction of its full speed [-] (1 running, 0 stopped; between while it
+        spins up or coasts down)
     path_flows : per-path flows, + into the attic (names in AirflowModel.path_names)
     """
 
@@ -64,6 +66,7 @@ class AirflowState:
     out_lower: float = 0.0
     out_upper: float = 0.0
     fan_makeup: float = 0.0
+    fan_speed: float = 0.0
     path_flows: tuple = ()
 
 
@@ -116,15 +119,24 @@ class AirflowModel:
             self.update_interval = scenario.simulation.airflow_step
             self.paths = build_paths(scenario)
             self.speed_ratio = fan.speed_ratio
+        # the motor: first-order spin-up and coast-down, and the energy of each start (atticsim.airflow.motor)
+        self.spin_up, self.coast_down = (fan.spin_up, fan.coast_down) if fan.enabled else (0.0, 0.0)
+        self.start_energy = fan.start_energy_j if fan.enabled else 0.0
         self.path_heights = {} if self.paths is None else (
             {(v.name or v.kind): v.height for v in self.paths.vents} | {"fan": self.paths.fan.height})
         self.path_names = [] if self.paths is None else (
             [v.name or v.kind for v in self.paths.vents] + ["fan"]
             + [c.name for c in self.paths.ceiling_leaks] + (["house envelope"] if self.paths.house else []))
 
+    def motor(self):
+        """A fresh :class:`atticsim.airflow.motor.Motor` for one run of this fan."""
+        from atticsim.airflow.motor import Motor
+
+        return Motor(self.spin_up, self.coast_down, self.start_energy)
+
     def solve(self, temp_attic: float, temp_outdoor: float, wind_speed: float, fan_on: bool,
               with_depressurisation: bool = False, pressure: float | None = None,
-              temp_room: float | None = None) -> AirflowState:
+              temp_room: float | None = None, speed: float | None = None) -> AirflowState:
         """Flows for the present conditions.
 
         Parameters
@@ -134,26 +146,43 @@ class AirflowModel:
         wind_speed : float
             Wind speed [m/s].
         fan_on : bool
-            Fan state (ignored when the fan is disabled).
+            Whether the motor is switched on (it draws power; ignored when the fan is disabled).
         with_depressurisation : bool
             Also solve the fan-off case to report the house depressurisation caused by the fan.
         pressure, temp_room : float, optional
             The present station pressure [Pa] and the rooms' temperature [degC] (default: the model's).
+        speed : float, optional
+            The blades' speed as a fraction of full speed [-] (default 1 switched on, 0 off): below 1 while the
+            motor spins up, above 0 while it coasts down. The fan laws scale the curve (flow ~ N).
         """
-        running = bool(fan_on) and self.enabled
+        on = bool(fan_on) and self.enabled
+        speed = (1.0 if on else 0.0) if speed is None or not self.enabled else min(max(float(speed), 0.0), 1.0)
+        moving = speed > 0.0
         if self.kind == "simple":
-            return self.simple_state(running)
+            if speed in (0.0, 1.0) and moving == on:
+                return self.simple_state(on)
+            return self._simple(on, speed)
         from atticsim.airflow.balance import solve_attic_balance
 
         kw = dict(temp_house=self.room_temperature if temp_room is None else temp_room,
-                  wind_speed=max(float(wind_speed), 0.0), fan_speed_ratio=self.speed_ratio,
+                  wind_speed=max(float(wind_speed), 0.0),
                   pressure=self.pressure if pressure is None else pressure)
-        b = solve_attic_balance(self.paths, temp_attic, temp_outdoor, fan_on=running, **kw)
+        ratio = self.speed_ratio * (speed if moving else 1.0)
+        b = solve_attic_balance(self.paths, temp_attic, temp_outdoor, fan_on=moving, fan_speed_ratio=ratio, **kw)
         depress = math.nan
-        if with_depressurisation and running:
-            off = solve_attic_balance(self.paths, temp_attic, temp_outdoor, fan_on=False, **kw)
+        if with_depressurisation and moving:
+            off = solve_attic_balance(self.paths, temp_attic, temp_outdoor, fan_on=False,
+                                      fan_speed_ratio=self.speed_ratio, **kw)
             depress = off.pressure_house - b.pressure_house
-        # the flows between outdoors and each layer, through the vents and the fan, by the layer of their height
+        power = 0.0
+        if on:  # the motor draws its running power while switched on, spinning up or not
+            power = b.fan_power if speed == 1.0 else solve_attic_balance(
+                self.paths, temp_attic, temp_outdoor, fan_on=True, fan_speed_ratio=self.speed_ratio, **kw).fan_power
+        return self._balance_state(b, moving, power, speed, depress)
+
+    def _balance_state(self, b, moving, power, speed, depress) -> AirflowState:
+        """An AirflowState from a solved balance: the flows between outdoors and each layer, through the vents
+        and the fan, by the layer of their height."""
         layer = {name: ("upper" if z >= self.layer_height else "lower") for name, z in self.path_heights.items()}
         flows = {"in_lower": 0.0, "in_upper": 0.0, "out_lower": 0.0, "out_upper": 0.0}
         for p in b.paths:
@@ -167,9 +196,9 @@ class AirflowModel:
         return AirflowState(
             house_in=max(b.ceiling_flow, 0.0), attic_to_house=max(-b.ceiling_flow, 0.0),
             outdoor_flow=sum(p.volume_flow for p in b.paths if p.kind in ("vent", "fan") and p.volume_flow > 0.0),
-            fan_flow=b.fan_flow if running else 0.0, fan_power=b.fan_power if running else 0.0,
+            fan_flow=b.fan_flow if moving else 0.0, fan_power=power,
             ceiling_flow=b.ceiling_flow, pressure_attic=b.pressure_attic, pressure_house=b.pressure_house,
-            depressurisation=depress, residual=b.residual, **flows,
+            depressurisation=depress, residual=b.residual, **flows, fan_speed=speed if moving else 0.0,
             path_flows=tuple(self._path_flow(b, name) for name in self.path_names))
 
     def simple_state(self, running: bool) -> AirflowState:
@@ -180,13 +209,15 @@ class AirflowModel:
 
     @functools.cached_property
     def _simple_states(self) -> dict:
-        states = {}
-        for running in (False, True):
-            fan = self.rated_flow if running else 0.0
-            states[running] = AirflowState(house_in=0.0, attic_to_house=0.0, outdoor_flow=self.passive + fan,
-                                           fan_flow=fan, fan_power=self.rated_power if running else 0.0,
-                                           in_lower=self.passive, out_upper=self.passive, fan_makeup=1.0)
-        return states
+        return {running: self._simple(running, 1.0 if running else 0.0) for running in (False, True)}
+
+    def _simple(self, on: bool, speed: float) -> AirflowState:
+        """The simple form's flows with the blades at ``speed`` (fraction of full; flow ~ N) and the motor
+        switched on or not."""
+        fan = self.rated_flow * speed
+        return AirflowState(house_in=0.0, attic_to_house=0.0, outdoor_flow=self.passive + fan, fan_flow=fan,
+                            fan_power=self.rated_power if on else 0.0, in_lower=self.passive,
+                            out_upper=self.passive, fan_makeup=1.0, fan_speed=speed)
 
     @staticmethod
     def _path_flow(balance, name):

@@ -27,8 +27,9 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from atticsim.hybrid.controller import HeldFan
+from atticsim.airflow.motor import Motor
 from atticsim.hybrid.stepper import StepperFailed
-from atticsim.network.kernel import FORCING_BASE
+from atticsim.network.kernel import BOOKS, FORCING_BASE
 
 #: Forcing channels the loop reads for the airflow.
 _T_OUT, _WIND, _PRESSURE, _T_ROOM = (FORCING_BASE.index(c) for c in ("temp_out", "wind_speed", "pressure",
@@ -105,6 +106,15 @@ class _Rows:
         return starts, self.states
 
 
+def _solve_air(network, airflow, forcing, y, t, fan, speed):
+    """The air flows to hold from t: the airflow model at the present attic air, weather and fan, with the
+    blades at ``speed`` (fraction of full)."""
+    u = forcing.at(t)
+    t_attic = float(network.mean_air(y)) if airflow.kind != "simple" else math.nan
+    return airflow.solve(t_attic, u[_T_OUT], u[_WIND], fan, with_depressurisation=True, pressure=u[_PRESSURE],
+                         temp_room=u[_T_ROOM], speed=speed)
+
+
 def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_times, stepper,
                     fallback=None, progress=None) -> HybridRun:
     """Integrate the hybrid system from t_start to t_end.
@@ -134,30 +144,33 @@ def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_tim
     """
     airflow = getattr(network, "airflow", None)  # None: no air flows (a bare network)
     update = airflow.update_interval if airflow is not None else math.inf
+    motor = airflow.motor() if airflow is not None else Motor()
     i_sensor = network.index["sensor"]
+    i_fan_book = network.n_nodes + BOOKS.index("fan_electric") if motor.start_energy > 0.0 else -1
     controller = controller if controller is not None else HeldFan(False)
     y = np.asarray(y0, dtype=float).copy()
     rows = _Rows(output_times.size)
     events, updates, notes = [], [], []
     t, k = float(t_start), 0
     fan = controller.start(t, y[i_sensor])
+    motor.start(t, fan)
     next_air = t if airflow is not None else math.inf
+    motor_change = math.inf  # the next instant the motor's speed changes the held flows
     after_switch, calls = False, 0
     state = air = None
     span = max(t_end - t_start, 1e-9)
     reported = t
     while t < t_end - 1e-9:
-        if airflow is not None and t >= next_air - 1e-9:
-            u = forcing.at(t)
-            t_attic = float(network.mean_air(y)) if airflow.kind != "simple" else math.nan
-            state = airflow.solve(t_attic, u[_T_OUT], u[_WIND], fan, with_depressurisation=True,
-                                  pressure=u[_PRESSURE], temp_room=u[_T_ROOM])
+        if airflow is not None and t >= min(next_air, motor_change) - 1e-9:
+            next_air = (math.floor(t / update + 1e-9) + 1) * update if math.isfinite(update) else math.inf
+            motor_change = motor.next_change(t)
+            state = _solve_air(network, airflow, forcing, y, t, fan,
+                               motor.mean_speed(t, min(next_air, motor_change, t_end)))
             updates.append((t, state))
             air = network.air_vector(state)
-            next_air = (math.floor(t / update + 1e-9) + 1) * update if math.isfinite(update) else math.inf
         level, direction = controller.watch()
         deadline = controller.deadline()
-        stop = min(t_end, next_air, deadline)
+        stop = min(t_end, next_air, deadline, motor_change)
         k0 = k
         try:
             crossed, t, k = stepper.advance(t, stop, y, fan, air, level, direction, after_switch, k)
@@ -185,6 +198,9 @@ def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_tim
         if cause is not None:
             fan = controller.fan
             events.append((t, fan, float(y[i_sensor]), cause))
+            motor.switch(t, fan)
+            if fan and i_fan_book >= 0:
+                y[i_fan_book] += motor.start_energy  # the start's inrush, beyond the running power
             next_air = t if airflow is not None else math.inf  # the flows follow the new fan state at once
             after_switch = True
     if k < output_times.size and abs(output_times[k] - t) < 1e-6:

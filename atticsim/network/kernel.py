@@ -40,6 +40,7 @@ from atticsim import air as _moist_air
 from atticsim.air import H_FG
 from atticsim.network import heat_transfer
 from atticsim.network.heat_transfer import _EPS2
+from atticsim.network import placement as _placement
 from atticsim.network.placement import PLACEMENTS
 from atticsim.sensor import air as _air
 from atticsim.sensor import convection as _conv
@@ -112,8 +113,9 @@ N_INTS = 12
 SHAPE_CODES = {"sphere": 0, "cylinder": 1}
 #: Order of :func:`air_vector`.
 AIR_ORDER = ("in_lower", "in_upper", "out_lower", "house_in", "attic_to_house", "fan_flow", "fan_power",
-             "fan_makeup")
-_IN_LOWER, _IN_UPPER, _OUT_LOWER, _HOUSE_IN, _ATTIC_TO_HOUSE, _FAN_FLOW, _FAN_POWER, _FAN_MAKEUP = range(8)
+             "fan_makeup", "fan_speed")
+(_IN_LOWER, _IN_UPPER, _OUT_LOWER, _HOUSE_IN, _ATTIC_TO_HOUSE, _FAN_FLOW, _FAN_POWER, _FAN_MAKEUP,
+ _FAN_SPEED) = range(9)
 
 #: Self-heating table for a ``sensor_power`` function: sensor temperatures HEAT_T_MIN..HEAT_T_MAX [degC]
 #: every HEAT_STEP [K], linear interpolation, clamped to the end values outside (a numerical choice of
@@ -251,7 +253,7 @@ _AIR_ORDER_VALUES = operator.attrgetter(*AIR_ORDER)  # (AIR_ORDER's fields of an
 
 
 def air_vector(air) -> np.ndarray:
-    """The air flows :func:`rhs` reads, from an AirflowState: float64[8] in :data:`AIR_ORDER`."""
+    """The air flows :func:`rhs` reads, from an AirflowState: float64[9] in :data:`AIR_ORDER`."""
     return np.array(_AIR_ORDER_VALUES(air), dtype=float)
 
 
@@ -274,7 +276,9 @@ _walton = compiled(heat_transfer.walton_natural)                    # Walton 198
 _sparrow = compiled(heat_transfer.forced_convection_sparrow)         # Sparrow et al. 1979
 _air_density = compiled(_moist_air.air_density)                      # ideal gas, ISO 2533 R_d
 # the placements' local conditions, compiled from their records (atticsim.network.placement) in code order
-(_ridge, _mid, _exhaust, _intake, _deck, _board) = (compiled(p.function) for p in PLACEMENTS.values())
+_with_fan = compiled(_placement.with_fan)
+(_ridge, _mid, _exhaust, _intake, _deck, _board) = (compiled(p.function, with_fan=_with_fan)
+                                                    for p in PLACEMENTS.values())
 assert tuple(PLACEMENTS) == ("ridge", "mid", "exhaust", "intake", "deck", "board"), "_local's branches"
 
 
@@ -347,10 +351,10 @@ def _self_heating(t_s, fan, prm, heat):
 
 
 @numba.njit(cache=True, **_JIT)
-def _local(code, t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area, intake_flow,
+def _local(code, t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_speed, fan_flow, fan_area, intake_flow,
            intake_area, contact_g):
     """The sensor's local conditions by its placement code (the functions of atticsim.network.placement)."""
-    args = (t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area, intake_flow, intake_area,
+    args = (t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_speed, fan_flow, fan_area, intake_flow, intake_area,
             contact_g)
     if code == 0:
         return _ridge(*args)
@@ -527,7 +531,7 @@ def _air_paths(t_lo, t_up, u, fan, air, prm, layers):
         a_i = prm[_INTERFACE_AREA]
         q_b = 0.055 * a_i * math.sqrt(GRAVITY * unstable / (0.5 * (t_lo + t_up) + KELVIN) * math.sqrt(a_i))
         # a stable base rate, the fan's stirring and the overturning
-        q_mix_flow = prm[_LAYER_MIXING] + prm[_FAN_MIXING] * fan * air[_FAN_FLOW] + q_b
+        q_mix_flow = prm[_LAYER_MIXING] + prm[_FAN_MIXING] * air[_FAN_FLOW] + q_b
         q_mix = _air_density(t_lo, u[_U_PRESSURE]) * CP_AIR * q_mix_flow * (t_lo - t_up)
     return vent_lo, vent_up, q_mix
 
@@ -550,7 +554,7 @@ def _local_at(x, u, fan, air, prm, ints, t_up, t_lo, t_deck_mean, t_ct, t_enc):
     mixing weights are engineering assumptions, common practice, no source)."""
     # outdoor air entering the lower layer, at outdoor density
     intake_flow = _mass_flows(t_lo, t_up, u, air)[0] / _air_density(u[_U_T_OUT], u[_U_PRESSURE])
-    return _local(ints[_PLACEMENT], t_up, t_lo, t_deck_mean, t_ct, u[0], t_enc, fan > 0, air[_FAN_FLOW],
+    return _local(ints[_PLACEMENT], t_up, t_lo, t_deck_mean, t_ct, u[0], t_enc, air[_FAN_SPEED], air[_FAN_FLOW],
                   prm[_FAN_AREA], intake_flow, prm[_INTAKE_AREA], prm[_CONTACT_G])
 
 
@@ -615,7 +619,7 @@ def _network(x, u, fan, air, prm, planes, ints, heat, plane_out, stride, surface
     t_ct = x[ints[_I_CEILING_TOP]]
     k_ct = t_ct + KELVIN
     k_ct4 = k_ct * k_ct * k_ct * k_ct
-    h_fan = _inside_forced(fan * air[_FAN_FLOW], t_up, u[_U_PRESSURE], prm)
+    h_fan = _inside_forced(air[_FAN_FLOW], t_up, u[_U_PRESSURE], prm)
     solar = sky = ground = ext = cond = deck_up = deck_lo = deck_floor = t_deck_mean = 0.0
     for p in range(n_p):
         q_sol, q_sky, q_gr, q_ext, q_cond, q_up, q_lo, q_fl, t_so, t_si = _plane(p, x, u, planes, prm, n_p, t_up,
@@ -656,7 +660,7 @@ def rhs(x, u, fan, air, prm, planes, ints, heat, out):
         [degC], pressure [Pa], temp_room [degC]), then the plane-of-array irradiance of each plane [W/m2].
     fan : float
         Fan state, 0.0 off or 1.0 on.
-    air : float64[8]
+    air : float64[9]
         Held air flows in :data:`AIR_ORDER` (:func:`air_vector`).
     prm, planes, ints, heat
         The network's :class:`Packed` arrays.
@@ -702,7 +706,7 @@ def flows(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
 
 @numba.njit(cache=True, **_JIT)
 def flows_columns(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
-    """:func:`flows` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (8, m), into q
+    """:func:`flows` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (9, m), into q
     (N_FLOWS, m) and q_planes (4 P, m)."""
     qj = np.empty(N_FLOWS)
     pj = np.empty(q_planes.shape[0])
@@ -766,7 +770,7 @@ def deck_underside_max(x, u, fan, air, prm, planes, ints, order):
 
 @numba.njit(cache=True, **_JIT)
 def rhs_columns(x, u, fan, air, prm, planes, ints, heat, out):
-    """:func:`rhs` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (8, m), into out
+    """:func:`rhs` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (9, m), into out
     (n_out, m)."""
     oj = np.empty(out.shape[0])
     for j in range(x.shape[1]):

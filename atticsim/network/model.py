@@ -141,7 +141,7 @@ class AtticNetwork:
 
     def _columns(self, temps, forcing, fan_on, air):
         """The arguments of the compiled column functions: states (n, m), forcing (n_u, m), fan (m,), air
-        flows (7, m) from an AirflowState or a namespace of per-column arrays (default ``self.air``)."""
+        flows (9, m) from an AirflowState or a namespace of per-column arrays (default ``self.air``)."""
         x = np.ascontiguousarray(np.atleast_2d(np.asarray(temps, dtype=float)).reshape(self.n_nodes, -1))
         m = x.shape[1]
         u = np.ascontiguousarray(np.broadcast_to(np.asarray(forcing, dtype=float).reshape(len(forcing), -1),

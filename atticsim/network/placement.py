@@ -14,7 +14,8 @@ when the real installation differs.
 
 Every placement function takes, in this order: upper and lower air layer temperatures, the area-weighted
 deck underside temperature, the attic floor (insulation top) temperature, the outdoor air temperature, the
-control box's air temperature [degC]; the fan state (bool); the fan's volume flow [m3/s] and opening
+control box's air temperature [degC]; the fan's speed as a fraction of full speed (1 running, 0 stopped,
+between while the motor spins up or the blades coast down); the fan's volume flow [m3/s] and opening
 area [m2]; the intake's outdoor-air volume flow [m3/s] and net free area [m2]; the deck contact
 conductance [W/K].
 """
@@ -38,29 +39,39 @@ MID_FAN_SPEED = 0.3
 BOX_SPEED = 0.05
 
 
-def ridge(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area, intake_flow, intake_area,
+def with_fan(still, running, fan_speed):
+    """A local air speed between the still attic's and the running fan's, in proportion to the fan's speed
+    (its flow) [m/s]; exactly ``running`` at full speed and ``still`` stopped."""
+    if fan_speed >= 1.0:
+        return running
+    if fan_speed <= 0.0:
+        return still
+    return still + (running - still) * fan_speed
+
+
+def ridge(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_speed, fan_flow, fan_area, intake_flow, intake_area,
           contact_g):
     """Near the ridge, in the upper air layer: sees the upper (hottest) air; 0.15 m/s with the fan off,
-    0.5 m/s with it on; faces the deck underside."""
-    return t_up, (RIDGE_FAN_SPEED if fan_on else STILL_ATTIC_SPEED), t_deck, 0.0, 0.0
+    0.5 m/s with it at full speed; faces the deck underside."""
+    return t_up, with_fan(STILL_ATTIC_SPEED, RIDGE_FAN_SPEED, fan_speed), t_deck, 0.0, 0.0
 
 
-def mid(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area, intake_flow, intake_area,
+def mid(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_speed, fan_flow, fan_area, intake_flow, intake_area,
         contact_g):
     """Mid attic, hanging at the layer interface: sees the mean of upper and lower air; 0.15 m/s fan off,
     0.3 m/s fan on; faces deck and attic floor equally."""
-    return 0.5 * (t_up + t_lo), (MID_FAN_SPEED if fan_on else STILL_ATTIC_SPEED), 0.5 * (t_deck + t_floor), 0.0, 0.0
+    return 0.5 * (t_up + t_lo), with_fan(STILL_ATTIC_SPEED, MID_FAN_SPEED, fan_speed), 0.5 * (t_deck + t_floor), 0.0, 0.0
 
 
-def exhaust(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area, intake_flow, intake_area,
+def exhaust(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_speed, fan_flow, fan_area, intake_flow, intake_area,
             contact_g):
-    """In the fan's inlet stream: sees the upper air the fan draws; while the fan runs the air speed is the
+    """In the fan's inlet stream: sees the upper air the fan draws; while the blades turn the air speed is the
     fan's face velocity (flow / opening area), otherwise 0.15 m/s; faces the deck."""
-    speed = max(fan_flow / fan_area, STILL_ATTIC_SPEED) if fan_on else STILL_ATTIC_SPEED
+    speed = max(fan_flow / fan_area, STILL_ATTIC_SPEED) if fan_speed > 0.0 else STILL_ATTIC_SPEED
     return t_up, speed, t_deck, 0.0, 0.0
 
 
-def intake(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area, intake_flow, intake_area,
+def intake(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_speed, fan_flow, fan_area, intake_flow, intake_area,
            contact_g):
     """Near the soffit intake vents, low in the attic: sees lower-layer air mixed with the entering outdoor
     air, the outdoor share growing with the intake face velocity v_in = Q_in / A_intake up to 1 at 1 m/s
@@ -72,15 +83,15 @@ def intake(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area
             0.0, 0.0)
 
 
-def deck(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area, intake_flow, intake_area,
+def deck(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_speed, fan_flow, fan_area, intake_flow, intake_area,
          contact_g):
     """Taped to the underside of the roof deck: touches the deck through ``sensor.contact_conductance``
     (area-weighted mean deck underside temperature) and loses to the upper air at 0.15 m/s (0.3 m/s with the
     fan on); faces the attic floor."""
-    return t_up, (MID_FAN_SPEED if fan_on else STILL_ATTIC_SPEED), t_floor, t_deck, contact_g
+    return t_up, with_fan(STILL_ATTIC_SPEED, MID_FAN_SPEED, fan_speed), t_floor, t_deck, contact_g
 
 
-def board(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_on, fan_flow, fan_area, intake_flow, intake_area,
+def board(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_speed, fan_flow, fan_area, intake_flow, intake_area,
           contact_g):
     """On the control board, inside the enclosure beside the triac: sees the enclosure's inside air (the
     ``enclosure`` node, heated by the triac's conduction loss while the fan runs and cooled to the lower

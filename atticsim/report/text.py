@@ -62,6 +62,10 @@ def summary_text(result, units: str = "si") -> str:
         f"{sc.house.name} — {s['period_start'][:10]} to {s['period_end'][:10]} ({s['days']:.1f} days)",
         f"  fan: {s['fan_starts']} starts, {s['fan_run_hours']:.1f} h run, {s['fan_energy_kwh']:.2f} kWh electric",
     ]
+    per_day, starts_kwh = s.get("fan_starts_per_day"), s.get("fan_start_energy_kwh")
+    if per_day is not None and s["days"] > 1.0:
+        lines.append(f"  starts: {per_day:.1f} per day" + (f", costing {starts_kwh * 1000.0:.0f} Wh of the fan's "
+                                                            f"electricity" if starts_kwh else ""))
     med = s["cycle_minutes_median"]
     lines.append(f"  runs: median {med:.1f} min, {s['short_cycles']} shorter than "
                  f"{s['short_cycle_threshold_min']:.0f} min" if med is not None else

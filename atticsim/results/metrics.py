@@ -197,6 +197,7 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "fan_run_hours": run_seconds / 3600.0,
         "fan_starts": int(sum(1 for e in run.events if e[1])),
         "fan_energy_kwh": books["fan_electric"] / J_PER_KWH,
+        **_start_figures(run, scenario, period),
         **_cycle_figures(intervals, sim.short_cycle),
         "attic_air_max_c": float(np.max(attic_air)),
         "attic_air_mean_c": float(np.mean(attic_air)),
@@ -235,6 +236,16 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
     daily = _daily(ts, run, nofan, intervals, forcing, period, sim.short_cycle, n)
     daily = _daily_seasons(daily, parts, scenario)
     return SimulationResult(summary, daily, ts, events, notes, scenario, monthly_figures(daily))
+
+
+def _start_figures(run, scenario, period) -> dict:
+    """Starts per day, and the energy the starts cost beyond the running power (``fan.start_energy``, in the
+    fan's electricity already), since starts are what wears a small motor."""
+    starts = sum(1 for e in run.events if e[1])
+    days = (period.t_end - period.t_start) / 86400.0
+    each = scenario.fan.start_energy_j if scenario.fan.enabled else 0.0
+    return {"fan_starts_per_day": starts / days if days > 0 else None,
+            "fan_start_energy_kwh": starts * each / J_PER_KWH}
 
 
 def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:

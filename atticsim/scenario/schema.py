@@ -38,6 +38,9 @@ Conductance = Annotated[float, _q("conductance")]
 Pressure = Annotated[float, _q("pressure")]
 Fraction = Annotated[float, _q("dimensionless")]
 Percent = Annotated[float, _q("percent")]
+Energy = Annotated[float, _q("energy")]
+Current = Annotated[float, _q("current")]
+Voltage = Annotated[float, _q("voltage")]
 # TOML dates (2025-07-01) and date-times arrive as date objects; keep them as ISO text.
 DateText = Annotated[str, BeforeValidator(lambda v: v.isoformat() if hasattr(v, "isoformat") else v)]
 
@@ -342,6 +345,22 @@ class Fan(_Model):
     diameter: Length = Field(0.36, gt=0.0, le=5.0, description="m, fan opening (sets the exhaust stream speed)")
     max_starts_per_hour: float = Field(
         6.0, gt=0.0, le=120.0, description="starts the motor may make in any 60 minutes (warn above)")
+    spin_up: Duration = Field(0.0, ge=0.0, le=600.0,
+                              description="s, time constant of the motor's first-order spin-up (0: full speed at once)")
+    coast_down: Duration = Field(0.0, ge=0.0, le=3600.0,
+                                 description="s, time constant of the blades' first-order coast-down after "
+                                             "switch-off (0: stopped at once)")
+    start_energy: Energy | None = Field(None, ge=0.0, le=1e6,
+                                        description="J each start costs beyond the running power (inrush)")
+    locked_rotor_current: Current | None = Field(
+        None, gt=0.0, le=200.0, description="A drawn at standstill (the nameplate's locked-rotor amps), with "
+                                            "locked_rotor_time: the start energy from them")
+    locked_rotor_time: Duration | None = Field(None, gt=0.0, le=60.0,
+                                               description="s the locked-rotor current lasts at a start")
+    locked_rotor_power_factor: float = Field(0.5, gt=0.0, le=1.0,
+                                             description="power factor at standstill (for the start energy)")
+    supply_voltage: Voltage = Field(120.0, gt=0.0, le=1000.0, description="V, the motor's mains supply (for the "
+                                                                        "start energy)")
 
     @model_validator(mode="after")
     def _curve(self):
@@ -354,7 +373,24 @@ class Fan(_Model):
                 raise ValueError("curve_power needs one value per curve point")
         elif self.flow is None:
             raise ValueError("give the fan's rated flow, or its curve (curve_pressure and curve_flow)")
+        if self.start_energy is not None and self.locked_rotor_current is not None:
+            raise ValueError("give the start energy either as start_energy or from locked_rotor_current and "
+                             "locked_rotor_time, not both")
+        if (self.locked_rotor_current is None) != (self.locked_rotor_time is None):
+            raise ValueError("locked_rotor_current and locked_rotor_time go together: the start energy needs both")
         return self
+
+    @property
+    def start_energy_j(self) -> float:
+        """Energy each start costs beyond the running power [J]: ``start_energy``, or from the locked-rotor
+        current, (V I_LR pf_LR - P) t_LR (the real power drawn at standstill, less the running power it
+        replaces, over the time it lasts; 0 when not given)."""
+        if self.start_energy is not None:
+            return self.start_energy
+        if self.locked_rotor_current is None:
+            return 0.0
+        real = self.supply_voltage * self.locked_rotor_current * self.locked_rotor_power_factor
+        return max(real - self.power, 0.0) * self.locked_rotor_time
 
     @property
     def rated_flow(self) -> float:
