@@ -21,6 +21,13 @@ from dataclasses import dataclass, field
 from atticsim.calibration.errors import CalibrationError
 
 
+#: The bench test's own caution: the sensor of a dropper-fed thermostat is at mains potential.
+BENCH_CAUTION = ("Bench test: a thermostat fed by a capacitive dropper has its sensor, leads and board at mains "
+                 "potential. Never touch them while it is connected to the mains: for the test feed the circuit from an "
+                 "isolated low-voltage bench supply in place of the dropper, or warm the sensor only with a warm air "
+                 "stream from a safe distance, and have the circuit checked by a qualified person.")
+
+
 @dataclass
 class BenchResult:
     """The inferred time constant and what it rests on (temperatures in degC, times in s)."""
@@ -49,7 +56,8 @@ class BenchResult:
                 "switch_off_c": self.off_c, "switch_on_c": self.on_c, "self_heating_k": self.rise_k,
                 "settles_at_c": self.final_c, "rule_run_on_s": self.rule_run_on_s, "log_ratio": self.log_ratio,
                 "tau_per_kelvin_of_heated_to_s": self.per_kelvin_s, "action": self.action,
-                "body_still_air_tau_s": self.body_tau_s, "findings": list(self.findings)}
+                "body_still_air_tau_s": self.body_tau_s, "findings": list(self.findings),
+                "cautions": [BENCH_CAUTION]}
 
 
 def time_constant_from_run_on(run_on_s: float, start_c: float, final_c: float, off_c: float) -> float:
@@ -198,7 +206,10 @@ def bench_text(r: BenchResult, units: str = "si") -> str:
     ]
     if r.body_tau_s is not None:
         lines.append(f"  the scenario's sensor.body predicts {r.body_tau_s:.1f} s in still air (its correlations)")
+    from atticsim.report.cautions import caution_text
+
     lines += [f"  - {f}" for f in r.findings]
+    lines += [f"! CAUTION: {BENCH_CAUTION}", caution_text()]
     return "\n".join(lines)
 
 

@@ -25,7 +25,7 @@ import numpy as np
 import pandas as pd
 
 from atticsim.calibration.errors import CalibrationError
-from atticsim.calibration.keys import fit_keys, parse_bounds, scenario_value
+from atticsim.calibration.keys import fit_keys, parse_bounds, raw_value, scenario_value
 from atticsim.calibration import stats
 
 #: The fit needs at least this many days of readings after the spin-up days it leaves out [d] (common
@@ -511,7 +511,8 @@ def build_problem(scenario_path, overrides, log_path, keys, *, bounds=(), weathe
     if weather == FROM_LOG:
         text = "the log's outdoor readings with a clear sky (--weather log)"
     else:
-        text = (weather or scenario.weather.file) + ("" if weather else " (the scenario's)")
+        given = raw_value(data, "weather.file") or scenario.weather.file
+        text = weather if weather else f"{given} (the scenario's)"
     return problem, log, scenario, warnings, notes, text, figures
 
 
@@ -596,8 +597,9 @@ def fit_measured(scenario_path, overrides, log_path, keys, *, bounds=(), weather
         if bar is not None:
             bar.close()
     # a key the readings do not see stays at the scenario's value (the fit cannot move it for a reason)
-    u = np.where(effect_k(jac) >= NO_EFFECT_K, res.x, u0)
-    values = [k.from_u(x) for k, x in zip(problem.keys, u)]
+    seen = effect_k(jac) >= NO_EFFECT_K
+    u = np.where(seen, res.x, u0)
+    values = [k.from_u(x) if s else k.start for k, x, s in zip(problem.keys, u, seen)]
     final_sc = problem.scenario(values)
     final_raw = problem.run(final_sc)
     final_model = problem.model(final_raw)
@@ -636,10 +638,19 @@ def _intervals(problem, u, jac, r, step_s):
     fit_cols = problem.in_fit
     model = stats.error_model(grid[:, fit_cols], step_s)
     a_inv = np.linalg.pinv(ja.T @ ja)
-    modelled = stats.modelled_covariance(jac_grid[:, fit_cols], problem.seconds[fit_cols], model, a_inv)
+    white, slow = stats.modelled_covariance(jac_grid[:, fit_cols], problem.seconds[fit_cols], model, a_inv,
+                                            parts=True)
     lags = max(1, int(round(stats.HAC_WINDOW_S / max(step_s, 1.0))))
     plain, newey_west = stats.covariance(ja, r, problem.residual_times(), len(problem.seconds), lags)
     p = int(active.sum())
+    # the slow part's variance rests on one degree of freedom per correlation time of the fitted span; the keys
+    # absorb the share of it their own effects can mimic, and the misfit shows only the rest (as n / (n - p)
+    # scales the white part's)
+    fitted = problem.seconds[fit_cols]
+    absorbed = stats.absorbed_share(ja.T @ ja, slow, model, keep[:, fit_cols].sum(axis=1))
+    dof_slow = stats.slow_degrees_of_freedom(fitted[-1] - fitted[0], model["tau_s"]) * (1.0 - absorbed)
+    slow = slow / (1.0 - absorbed)
+    modelled = white + slow
     out = {"interval": {}, "plain": {}, "sd": {}, "n_eff": {}, "dof": {}}
     where = np.cumsum(active) - 1
     for i, k in enumerate(problem.keys):
@@ -651,10 +662,11 @@ def _intervals(problem, u, jac, r, step_s):
         var = max(modelled[j, j], newey_west[j, j], plain[j, j])
         sd, sd_plain = math.sqrt(var), math.sqrt(max(plain[j, j], 0.0))
         n_eff = float(r.size * plain[j, j] / var) if var > 0 else float(r.size)
-        tq = stats.t_quantile(n_eff - p)
+        dof = stats.satterthwaite([white[j, j], slow[j, j]], [r.size - p, dof_slow])
+        tq = stats.t_quantile(dof)
         out["interval"][k.key] = [k.from_u(max(u[i] - tq * sd, 0.0)), k.from_u(min(u[i] + tq * sd, 1.0))]
         out["plain"][k.key] = [k.from_u(max(u[i] - 1.96 * sd_plain, 0.0)), k.from_u(min(u[i] + 1.96 * sd_plain, 1.0))]
-        out["sd"][k.key], out["n_eff"][k.key], out["dof"][k.key] = sd, n_eff, n_eff - p
+        out["sd"][k.key], out["n_eff"][k.key], out["dof"][k.key] = sd, n_eff, dof
     corr = np.eye(len(problem.keys))
     corr[np.ix_(active, active)] = stats.correlation(modelled)
     errors = {"slow_tau_h": model["tau_s"] / 3600.0,
@@ -750,21 +762,22 @@ def _assemble(problem, log, final_sc, u, values, jac, r, r0, base_model, final_m
     trend = stats.trend_per_day(problem.seconds[fit_idx], per_stamp[fit_idx])
     main = problem.columns[0]
     lag = stats.clock_lag(problem.seconds, problem.measured[0], base_model[0], log.step_s)
-    warnings = list(warnings) + key_warnings
     v = stats.verdict(rmse)
+    first = []
     if v == "poor":
-        warnings.insert(0, f"The fit is poor: the model misses the readings by {rmse:.2f} K RMS even at its best "
-                           f"values, so those values are not to be trusted. Check that the weather is the logged "
-                           f"days' and place's, the logger's clock, where the probes hang, and the scenario's house.")
+        first.append(f"The fit is poor: the model misses the readings by {rmse:.2f} K RMS even at its best values, "
+                     f"so those values are not to be trusted. Check that the weather is the logged days' and "
+                     f"place's, the logger's clock, where the probes hang, and the scenario's house.")
     if rmse > 3.0 * noise and rmse > 0.9 * _rms(r0):
-        warnings.append(f"The fit barely improves on the scenario's own values ({_rms(r0):.2f} K RMS at the start, "
-                        f"{rmse:.2f} K fitted, against a logger noise of {noise:.2f} K): what the model misses is not "
-                        f"in the keys fitted. Check the weather (the logged days'?), the logger's clock and the "
-                        f"scenario before trusting any value.")
+        first.append(f"The fit barely improves on the scenario's own values ({_rms(r0):.2f} K RMS at the start, "
+                     f"{rmse:.2f} K fitted, against a logger noise of {noise:.2f} K): what the model misses is not "
+                     f"in the keys fitted. Check the weather (the logged days'?), the logger's clock and the "
+                     f"scenario before trusting any value.")
     if abs(lag) >= 40 * 60:
         when = "later" if lag > 0 else "earlier"
-        warnings.append(f"The readings' daily cycle ({main}) matches the model's best moved {abs(lag) / 60:.0f} min "
-                        f"{when}: is the logger's clock on daylight-saving time or another zone (--utc-offset)?")
+        first.append(f"The readings' daily cycle ({main}) matches the model's best moved {abs(lag) / 60:.0f} min "
+                     f"{when}: is the logger's clock on daylight-saving time or another zone (--utc-offset)?")
+    warnings = first + list(warnings) + key_warnings
     span_days = (problem.seconds[fit_idx][-1] - problem.seconds[fit_idx][0]) / 86400.0
     if abs(trend) * span_days >= 0.5:
         notes.append(f"the misfit drifts by {trend * span_days:+.2f} K over the fitted days (a drifting logger, "

@@ -36,7 +36,7 @@ import numpy as np
 import pandas as pd
 
 from atticsim.calibration.errors import CalibrationError
-from atticsim.io.weather_frame import _format_duration, format_time, site_timezone
+from atticsim.io.weather_frame import format_time, site_timezone
 
 #: First line of a logger file written by atticsim (the demo's); not required from a user's file.
 SIGNATURE = "# atticsim logger CSV"
@@ -232,6 +232,13 @@ def _clock(texts: list[str], where: str, header_offset, option_offset, weather_o
     return stamps.tz_convert(target), clock, notes
 
 
+def _duration(seconds: float) -> str:
+    """A duration as a person reads it: "20 min", "2.83 h", "3.5 d"."""
+    if seconds < 3600.0:
+        return f"{seconds / 60.0:.3g} min"
+    return f"{seconds / 3600.0:.3g} h" if seconds < 3 * 86400.0 else f"{seconds / 86400.0:.3g} d"
+
+
 def _seconds(index: pd.DatetimeIndex) -> np.ndarray:
     """The stamps as seconds since the epoch (floats)."""
     return index.asi8 / {"s": 1.0, "ms": 1e3, "us": 1e6, "ns": 1e9}[index.unit]
@@ -254,9 +261,9 @@ def _check_order(index: pd.DatetimeIndex, where: str, max_gap_s: float) -> float
     gap = np.flatnonzero(steps > max_gap_s)
     if gap.size:
         i = gap[0]
-        raise CalibrationError(where, "time", f"gap of {_format_duration(pd.Timedelta(seconds=steps[i]))} without "
+        raise CalibrationError(where, "time", f"gap of {_duration(steps[i])} without "
                                f"readings from {format_time(index[i])} (longest accepted "
-                               f"{_format_duration(pd.Timedelta(seconds=max_gap_s))}: split the log there, or "
+                               f"{_duration(max_gap_s)}: split the log there, or "
                                f"pass --max-gap)")
     return float(np.median(steps))
 
@@ -272,13 +279,13 @@ def _column_gaps(values: np.ndarray, index: pd.DatetimeIndex, where: str, label:
     long_ = np.flatnonzero(spans > max_gap_s)
     if long_.size:
         i = ok[long_[0]]
-        raise CalibrationError(where, label, f"no readings for {_format_duration(pd.Timedelta(seconds=spans[long_[0]]))} "
+        raise CalibrationError(where, label, f"no readings for {_duration(spans[long_[0]])} "
                                f"from {format_time(index[i])} (longest accepted "
-                               f"{_format_duration(pd.Timedelta(seconds=max_gap_s))}; --max-gap)")
+                               f"{_duration(max_gap_s)}; --max-gap)")
     for a, b in ((seconds[0], t[0]), (t[-1], seconds[-1])):
         if b - a > max_gap_s:
             raise CalibrationError(where, label, f"no readings for the first or last "
-                                   f"{_format_duration(pd.Timedelta(seconds=b - a))} of the log; trim the "
+                                   f"{_duration(b - a)} of the log; trim the "
                                    f"log to where the column has readings")
 
 

@@ -16,7 +16,7 @@ COLUMN_COLOURS = {"sensor_c": COLOURS["sensor"], "attic_air_c": COLOURS["attic"]
                   "attic_upper_air_c": COLOURS["upper_air"], "attic_lower_air_c": COLOURS["insulation"],
                   "deck_c": COLOURS["deck"]}
 #: Colours of the overlay's roles (the same in every panel: one label, one colour).
-LOGGED, START, FITTED, SPINUP = "#4D4D4D", "#E69F00", "#0072B2", "#DDDDDD"
+LOGGED, START, FITTED, SPINUP = "#4D4D4D", "#E69F00", "#009E73", "#DDDDDD"
 
 
 def _conv(units):

@@ -16,8 +16,9 @@ FIT_LINES = [
     "out while the model settles.",
     "Each interval is the least-squares one from the Jacobian at the solution (central differences), widened for "
     "errors that persist from one reading to the next: the misfit is modelled as white noise plus a slow part "
-    "with an exponential correlation fitted to it, and a Newey-West sum over a day of lags checks it; the wider "
-    "of the two is kept, and the effective number of independent readings sets Student's t.",
+    "with an exponential correlation fitted to it (its variance resting on one degree of freedom per correlation "
+    "time), a Newey-West sum over a day of lags checks it, the wider of the two is kept, and Student's t takes "
+    "the combined degrees of freedom.",
     "Two keys whose estimates correlate at 0.9 or more cannot be told apart by the log: it fixes a combination of "
     "them. A key whose interval spans half its range or more is poorly identified.",
 ]
@@ -90,9 +91,9 @@ def fit_text(result, units: str = "si") -> str:
     rows = key_rows(r)
     head = ["key", "start", "fitted", "95 % interval", "readings' worth"]
     widths = [max(len(head[i]), *(len(row[i]) for row in rows)) for i in range(5)]
-    lines.append("  " + "  ".join(h.ljust(w) for h, w in zip(head, widths)))
+    lines.append(("  " + "  ".join(h.ljust(w) for h, w in zip(head, widths))).rstrip())
     for row in rows:
-        lines.append("  " + "  ".join(c.ljust(w) for c, w in zip(row[:5], widths)))
+        lines.append(("  " + "  ".join(c.ljust(w) for c, w in zip(row[:5], widths))).rstrip())
     pairs = [(a.key, b.key, r.correlation[i, j]) for i, a in enumerate(r.keys) for j, b in enumerate(r.keys)
              if j > i and abs(r.correlation[i, j]) >= 0.5]
     if pairs:
@@ -102,7 +103,10 @@ def fit_text(result, units: str = "si") -> str:
         lines.append(f"  worst hour: {when:%Y-%m-%d %H:%M}, the model {_diff(abs(err), units)} "
                      f"{'above' if err > 0 else 'below'} the readings")
     lines += [f"  thermostat: {s}" for s in switching_lines(r.switching, units)]
+    from atticsim.report.cautions import caution_text
+
     lines += [f"  WARNING: {w}" for w in r.warnings]
+    lines.append(caution_text())
     return "\n".join(lines)
 
 

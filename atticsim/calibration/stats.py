@@ -3,12 +3,20 @@ goodness of fit, the logger's own noise and the clock's offset against the model
 
 A logger's errors are not independent from one reading to the next: a probe drifts, the sun on a vent or a
 stuck fan makes hours of error of one sign, and the model itself misses slow things. The least-squares
-covariance s^2 (J^T J)^-1 assumes independent errors and is then far too narrow. Here the scores of each
-instant, g_t = sum over the columns of J_t r_t, are summed with Bartlett weights over a window of lags
-(Newey & West 1987, "A simple, positive semi-definite, heteroskedasticity and autocorrelation consistent
-covariance matrix", Econometrica 55(3)), the window long enough to span a day of the house's cycle; the
-interval's quantile is Student's t with one degree of freedom per window of data, less one per key, so that a
-log of few days gets the wide intervals few independent days deserve.
+covariance s^2 (J^T J)^-1 assumes independent errors and is then far too narrow. Two corrections are made and
+the wider kept, key by key:
+
+- an error model: the misfit taken as white noise plus a slow part whose correlation fades as exp(-lag / tau),
+  fitted to the misfit's own autocovariance (:func:`error_model`); the covariance of the estimates is then the
+  sandwich (J^T J)^-1 J^T Sigma J (J^T J)^-1 under that Sigma (:func:`modelled_covariance`), the slow part's
+  variance resting on one degree of freedom per correlation time of the fitted span;
+- Newey & West's sum of the scores' autocovariances with Bartlett weights over a day of lags ("A simple,
+  positive semi-definite, heteroskedasticity and autocorrelation consistent covariance matrix", Econometrica
+  55(3), 1987), which assumes no shape of the errors.
+
+The interval's quantile is Student's t with the degrees of freedom of the white and slow parts combined
+(Satterthwaite 1946); the effective number of independent readings reported is n times the white-noise
+variance over the corrected one.
 """
 
 from __future__ import annotations
@@ -277,7 +285,8 @@ def error_model(resid: np.ndarray, step_s: float, max_lag_s: float = 86400.0) ->
     return {"tau_s": float(tau), "variance": var, "slow_share": w, "cross": cross}
 
 
-def modelled_covariance(jac_grid: np.ndarray, seconds: np.ndarray, model: dict, a_inv: np.ndarray) -> np.ndarray:
+def modelled_covariance(jac_grid: np.ndarray, seconds: np.ndarray, model: dict, a_inv: np.ndarray,
+                        parts: bool = False):
     """Covariance of the fitted parameters under the error model of :func:`error_model`:
     (J^T J)^-1 J^T Sigma J (J^T J)^-1, Sigma of each column pair a, b the white part var_a (1 - w_a) on the
     diagonal (a = b) plus s_a s_b C_ab exp(-|t_i - t_j| / tau), s = sqrt(w var).
@@ -292,15 +301,45 @@ def modelled_covariance(jac_grid: np.ndarray, seconds: np.ndarray, model: dict, 
         :func:`error_model`'s result.
     a_inv : numpy.ndarray
         (J^T J)^-1.
+    parts : bool
+        Return the white and the slow part's covariances apart (their sum is the covariance).
     """
     var, w, cross, tau = model["variance"], model["slow_share"], model["cross"], model["tau_s"]
     slow = np.sqrt(w * var)
     p = jac_grid.shape[2]
-    s = np.zeros((p, p))
+    s_white, s_slow = np.zeros((p, p)), np.zeros((p, p))
     filtered = [exp_filter(seconds, slow[c] * jac_grid[c], tau) for c in range(jac_grid.shape[0])]
     for a in range(jac_grid.shape[0]):
-        s += var[a] * (1.0 - w[a]) * jac_grid[a].T @ jac_grid[a]
+        s_white += var[a] * (1.0 - w[a]) * jac_grid[a].T @ jac_grid[a]
         for b in range(jac_grid.shape[0]):
-            s += cross[a, b] * (slow[a] * jac_grid[a]).T @ filtered[b]
-    s = 0.5 * (s + s.T)
-    return a_inv @ s @ a_inv
+            s_slow += cross[a, b] * (slow[a] * jac_grid[a]).T @ filtered[b]
+    s_slow = 0.5 * (s_slow + s_slow.T)
+    white, slow_cov = a_inv @ s_white @ a_inv, a_inv @ s_slow @ a_inv
+    return (white, slow_cov) if parts else white + slow_cov
+
+
+def slow_degrees_of_freedom(span_s: float, tau_s: float) -> float:
+    """Degrees of freedom of a slow error's variance estimated over ``span_s``: one per correlation time
+    (the variance of the sample variance of an exponentially correlated series, 2 sigma^4 tau / T for T >> tau;
+    worked by hand from the sum of its squared correlations)."""
+    return max(span_s / tau_s, 1.0)
+
+
+def absorbed_share(jtj: np.ndarray, slow_cov: np.ndarray, model: dict, counts) -> float:
+    """The share of the slow error's variance the fitted keys take up (so the misfit shows only the rest):
+    tr(H Sigma_slow) / tr(Sigma_slow) with H = J (J^T J)^-1 J^T the fit's projection, = tr((J^T J) C_slow) /
+    sum over the columns of w var n (C_slow the slow part's covariance of the estimates, n the readings of each
+    column); at most 0.9."""
+    total = float(np.sum(model["slow_share"] * model["variance"] * np.asarray(counts, float)))
+    if total <= 0:
+        return 0.0
+    return float(min(max(np.trace(jtj @ slow_cov) / total, 0.0), 0.9))
+
+
+def satterthwaite(variances, dofs) -> float:
+    """Degrees of freedom of a sum of variance estimates (Satterthwaite 1946, Biometrics Bulletin 2(6)):
+    (sum v)^2 / sum(v^2 / dof)."""
+    v = np.asarray(variances, float)
+    d = np.maximum(np.asarray(dofs, float), 1.0)
+    den = float(np.sum(v**2 / d))
+    return float(np.sum(v) ** 2 / den) if den > 0 else float(np.max(d))

@@ -23,7 +23,7 @@ LOG_WEATHER_WIND = 3.4
 #: The log's outdoor air differs from the weather file's by more than this RMS [K]: a warning that the file may
 #: not be the logged days' weather (common practice, no source: an outdoor probe in the shade of the house reads
 #: within a kelvin or two of a nearby station's air).
-OUTDOOR_MISMATCH_K = 3.0
+OUTDOOR_MISMATCH_K = 2.0
 
 
 def weather_offset(spec, scenario) -> float | None:
