@@ -86,7 +86,7 @@ def test_figures_series_and_report_page(demo_fit):
     assert {p.name for p in out.iterdir()} == {"fit.json", "calibrated.toml", "series.csv", "overlay.png",
                                                "misfit.png", "report.html"}
     s = pd.read_csv(out / "series.csv")
-    assert {"attic_air_c", "attic_air_c_model", "attic_air_c_start", "sensor_c", "fan_on", "in_fit"} <= set(s.columns)
+    assert {"attic_air_c", "attic_air_model_c", "attic_air_start_c", "sensor_c", "fan_on", "in_fit"} <= set(s.columns)
     assert len(s) == 2881 and s["in_fit"].sum() == 2881 - 288
     page = (out / "report.html").read_text()
     assert "Calibration report" in page and "vents.passive_ach" in page and "data:image/png;base64," in page

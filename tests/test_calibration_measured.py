@@ -122,3 +122,13 @@ def test_a_long_missing_stretch_in_one_column_is_a_gap(tmp_path):
     # allowed with a longer --max-gap; the missing readings stay missing
     log = read_measured(p, weather_utc_offset=-6, max_gap_s=3 * 3600)
     assert int(log.frame["sensor_c"].isna().sum()) == 20
+
+
+def test_the_demo_log_is_what_its_script_makes(tmp_path):
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location("make_demo_logger", ROOT / "weather_demo" / "make_demo_logger.py")
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    path = module.make(tmp_path)
+    assert path.read_bytes() == DEMO_LOG.read_bytes()

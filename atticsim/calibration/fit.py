@@ -346,8 +346,9 @@ class FitResult:
     """A finished fit: the values, their intervals and correlations, the goodness of fit and what to show.
 
     ``fitted``, ``start_values``, ``interval_95`` are by key in SI; ``series`` holds, at every stamp of the
-    log, the readings (``<column>``), the model at the start values (``<column>_start``) and at the fitted
-    values (``<column>_model``), the fan (``fan_on``, the log's or the model's) and ``in_fit``.
+    log, the readings (``attic_air_c``...), the model at the start values (``attic_air_start_c``) and at the
+    fitted values (``attic_air_model_c``), the outdoor air (``outdoor_c`` logged, ``outdoor_weather_c``), the fan
+    (``fan_on``, the log's or the model's) and ``in_fit``.
     """
 
     problem: FitProblem
@@ -713,13 +714,24 @@ def _flags(problem, u, intervals, corr, jac):
     return flags, warnings
 
 
+def start_column(column: str) -> str:
+    """The series' column of the model at the start values for a measured column (``attic_air_c`` ->
+    ``attic_air_start_c``: the unit ending last, as every column and key of the project)."""
+    return column[:-2] + "_start_c"
+
+
+def model_column(column: str) -> str:
+    """The series' column of the model at the fitted values (``attic_air_c`` -> ``attic_air_model_c``)."""
+    return column[:-2] + "_model_c"
+
+
 def _series(problem, log, base_model, final_model, final_raw) -> pd.DataFrame:
     """Readings, the model at the start and fitted values, the outdoor air and the fan at every stamp."""
     cols = {}
     for i, c in enumerate(problem.columns):
         cols[c] = problem.measured[i]
-        cols[f"{c}_start"] = base_model[i]
-        cols[f"{c}_model"] = final_model[i]
+        cols[start_column(c)] = base_model[i]
+        cols[model_column(c)] = final_model[i]
     if "outdoor_c" in log.frame:
         cols["outdoor_c"] = log.frame["outdoor_c"].to_numpy()
     cols["outdoor_weather_c"] = problem.model(final_raw, ["outdoor_c"])[0]

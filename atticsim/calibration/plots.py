@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from atticsim.calibration.fit import model_column, start_column
 from atticsim.report.plots import COLOURS, _dates, _legend, _new_figure, _tz_label, fan_shading
 
 #: Words for each measured column.
@@ -46,8 +47,8 @@ def overlay_figure(result, units: str = "si"):
         fan_shading(ax, index, s["fan_on"].to_numpy())
         _spinup(ax, index, s["in_fit"].to_numpy())
         ax.plot(index, conv(s[c]), lw=0.7, color=LOGGED, label="logged readings")
-        ax.plot(index, conv(s[f"{c}_start"]), lw=1.0, ls="--", color=START, label="model, the scenario's values")
-        ax.plot(index, conv(s[f"{c}_model"]), lw=1.2, color=FITTED, label="model, fitted values")
+        ax.plot(index, conv(s[start_column(c)]), lw=1.0, ls="--", color=START, label="model, the scenario's values")
+        ax.plot(index, conv(s[model_column(c)]), lw=1.2, color=FITTED, label="model, fitted values")
         ax.set_title(COLUMN_WORDS.get(c, c), fontsize=10, loc="left")
         ax.set_ylabel(unit)
         ax.grid(alpha=0.3)
@@ -74,7 +75,7 @@ def misfit_figure(result, units: str = "si"):
     top, bottom = fig.subplots(2, 1, height_ratios=[1.3, 1.0])
     index = s.index.tz_localize(None)
     for c in cols:
-        d = (s[f"{c}_model"] - s[c])
+        d = (s[model_column(c)] - s[c])
         colour = COLUMN_COLOURS.get(c, COLOURS["ventilation"])
         top.plot(index, diff(d), lw=0.6, color=colour, label=COLUMN_WORDS.get(c, c))
         hourly = d.groupby(s.index.hour).mean()
