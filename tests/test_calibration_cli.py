@@ -188,3 +188,11 @@ def test_weather_from_the_logs_outdoor_column_and_a_typical_year(tmp_path):
                "pvlib:723170TYA.CSV", "--utc-offset", "-6", "--out", tmp_path / "b")
     assert r.exit_code == 0, r.output
     assert "WARNING: The weather is a typical year, not the weather of the logged days" in r.output
+
+
+def test_a_logged_fan_needs_the_scenarios_fan(tmp_path):
+    r = invoke("fit", BUNGALOW, "--set", "fan.enabled=false", "--measured", DEMO_LOG, "--fit", "vents.passive_ach",
+               "--out", tmp_path / "o")
+    assert r.exit_code == 2
+    assert f"{DEMO_LOG}: fan_on: the log has the fan running but the scenario's fan.enabled is false" in \
+        one_line_error(r)

@@ -353,7 +353,7 @@ class FitResult:
 
     problem: FitProblem
     log: object
-    scenario: object
+    scenario: object  # the calibrated scenario (the fitted values in it)
     keys: list
     start_values: dict
     fitted: dict
@@ -385,6 +385,7 @@ class FitResult:
     fitted_rows: int = 0
     spinup_days: float = 1.0
     error_model: dict = field(default_factory=dict)
+    start_scenario: object = None  # the scenario as given (its own values)
     unit_place: np.ndarray | None = None   # the solution on the keys' unit scales
     jacobian: np.ndarray | None = None     # residuals' Jacobian there [K per unit], central differences
     residuals: np.ndarray | None = None    # model minus readings at the solution [K]
@@ -490,6 +491,9 @@ def build_problem(scenario_path, overrides, log_path, keys, *, bounds=(), weathe
     else:
         offset = float(scenario.site.utc_offset)
     log = read_measured(log_path, utc_offset=utc_offset, weather_utc_offset=offset, max_gap_s=max_gap_s)
+    if log.fan is not None and log.fan.any() and not scenario.fan.enabled:
+        raise CalibrationError(log.path, "fan_on", "the log has the fan running but the scenario's fan.enabled is "
+                               "false: pass --set fan.enabled=true (and the fan's flow)")
     frame, meta = peek if peek is not None else weather_from_log(log, scenario)
     check_coverage(frame, meta, log, weather)
     if log.days - spinup_days < MIN_FIT_DAYS:
@@ -613,6 +617,7 @@ def fit_measured(scenario_path, overrides, log_path, keys, *, bounds=(), weather
     result = _assemble(problem, log, final_sc, u, values, jac, r, r0, base_model, final_model, final_raw,
                        warnings, notes, weather_text, wfig, spinup_days)
     result.runs, result.iterations, result.workers = ev.runs + 1, int(res.nfev), workers
+    result.start_scenario = scenario
     result.switching = switching_errors(problem, final_sc, final_raw, log, spinup_days)
     result.runs += 1 if result.switching else 0
     result.wall_s = time.perf_counter() - t_start

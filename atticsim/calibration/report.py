@@ -162,7 +162,7 @@ def fingerprint(result, scenario_path) -> dict:
         frame = result.problem.weather[0]
         h_w = hashlib.sha256(frame.to_numpy().tobytes() + frame.index.asi8.tobytes()).hexdigest()
         what = "the weather as used"
-    sc = scenario_digest(result.scenario)
+    sc = scenario_digest(result.start_scenario or result.scenario)
     run_id = hashlib.sha256(json.dumps([__version__, sc, h_w, h_log, result.problem.start, result.problem.end,
                                         [k.key for k in result.keys]]).encode()).hexdigest()[:16]
     return {"atticsim_version": __version__, "run_id": run_id, "scenario_sha256": sc, "weather_hashed": what,

@@ -80,7 +80,7 @@ def fit(scenario, measured, keys, bounds, weather, utc_offset, spinup, deck_plan
     from atticsim.report.inputs import scenario_inputs
 
     ctx = click.get_current_context()
-    inputs = scenario_inputs(scenario, overrides, result.scenario)
+    inputs = scenario_inputs(scenario, overrides, result.start_scenario)
     files = write_outputs(out, fit_writers(result, scenario, list(overrides), units, inputs, given_options(ctx),
                                            command_line(ctx)), force=force)
     for note in result.notes:
