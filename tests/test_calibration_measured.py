@@ -132,3 +132,9 @@ def test_the_demo_log_is_what_its_script_makes(tmp_path):
     spec.loader.exec_module(module)
     path = module.make(tmp_path)
     assert path.read_bytes() == DEMO_LOG.read_bytes()
+
+
+def test_fan_run_time_from_a_later_instant(tmp_path):
+    body = [f"2025-07-01T00:{m:02d}:00-06:00,30.0,{s}" for m, s in ((0, 0), (5, 0), (10, 1), (15, 1), (20, 0))]
+    log = read_measured(write(tmp_path, body, "time,attic_air_c,fan_on"), weather_utc_offset=-6)
+    assert log.fan_run_seconds(log.start + pd.Timedelta(minutes=10)) == 450.0  # 00:10:00 to 00:17:30

@@ -279,11 +279,11 @@ class FitProgress:
         where = f"{self.workers} processes" if self.workers > 1 else "this process"
         return f"fit: {self.stage}, {self.n_runs} runs on {where}{rms}, elapsed {_hms(time.perf_counter() - self.t0)}"
 
-    def _emit(self, final=False):
+    def _emit(self):
         if self.stream is None:
             return
         if self.tty:
-            self.stream.write("\r" + self.line().ljust(100) + ("\n" if final else ""))
+            self.stream.write("\r" + self.line().ljust(100))
         else:
             self.stream.write(self.line() + "\n")
         self.stream.flush()
@@ -842,11 +842,11 @@ def switching_errors(problem, scenario, raw, log, spinup_days) -> dict | None:
     after = [e for e in own.events if e[0] >= t_fit]
     runs = fan_intervals(after, fan0, t_fit, raw.period.t_end)
     logged = [e for e in ev if e[1]]
-    fan = log.fan[log.fan.index >= log.start + pd.Timedelta(days=spinup_days)]
     return {
         "action": ctl.action, "switch_on": describe(on, ctl.on), "switch_off": describe(off, ctl.off),
         "timing_uncertainty_s": log.step_s / 2.0,
-        "logged_starts": len(logged), "logged_run_hours": float(fan.mean() * len(fan) * log.step_s / 3600.0),
+        "logged_starts": len(logged),
+        "logged_run_hours": log.fan_run_seconds(log.start + pd.Timedelta(days=spinup_days)) / 3600.0,
         "model_starts": int(sum(1 for e in after if e[1])),
         "model_run_hours": float(sum(b - a for a, b, _ in runs) / 3600.0),
     }

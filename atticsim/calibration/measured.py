@@ -139,14 +139,17 @@ class MeasuredLog:
             out.append(bool(states[i]))
         return instants, out
 
-    def fan_run_seconds(self) -> float:
-        """Seconds the logged fan ran (from the midpoints of :meth:`fan_switches` to the log's ends)."""
+    def fan_run_seconds(self, since=None) -> float:
+        """Seconds the logged fan ran (from the midpoints of :meth:`fan_switches` to the log's end), from ``since``
+        (a timestamp; default the log's start)."""
         sw = self.fan_switches()
         if sw is None:
             return float("nan")
         instants, states = sw
+        since = self.start if since is None else since
         edges = list(instants[1:]) + [self.end]
-        return float(sum((b - a).total_seconds() for a, b, s in zip(instants, edges, states) if s))
+        return float(sum(max((b - max(a, since)).total_seconds(), 0.0)
+                         for a, b, s in zip(instants, edges, states) if s))
 
 
 def _header(lines: list[str], where: str) -> dict:
