@@ -10,7 +10,7 @@ with --drift, a drift of that many kelvin wandering over about 12 h (atticsim.ca
 three keys starts from the scenario's values. Printed per log: whether each interval holds the truth and its width
 (natural log of high / low, or high - low for the absorptance); then the counts, with the same counts for the
 white-noise formula alone, and the median wall time of a fit. The README's figures come from the default run
-(seeds 300-339, not used while the method was built); a run takes about 5 minutes on the 2-core development
+(seeds 300-339, not used while the method was built); a run took 2.4 minutes on the 2-core development
 machine.
 """
 
