@@ -157,6 +157,18 @@ def test_circuit_report_in_a_browser(browser, tmp_path):
     assert any(alt == "hysteresis loop" for *_, alt in r["images"])
 
 
+def test_fit_report_in_a_browser(browser, tmp_path):
+    out = tmp_path / "fit"
+    invoke("fit", ROOT / "scenarios" / "heron_lane_bungalow.toml", "--measured",
+           ROOT / "weather_demo" / "heron_lane_logger_2025.csv", "--fit", "vents.passive_ach", "--out", out)
+    fit = json.loads((out / "fit.json").read_text())
+    r = open_page(browser, out / "report.html")
+    assert_page_ok(r, 2)
+    assert "Fitted values" in r["text"] and "vents.passive_ach" in r["text"]
+    assert f"{fit['fitted']['vents.passive_ach']:.4g}" in r["text"]
+    assert {"readings and model", "misfit over time and by hour"} <= {alt for *_, alt in r["images"]}
+
+
 def test_the_checks_catch_an_outside_request_and_a_broken_image(browser, tmp_path):
     # a page that asks for something outside the file (the loopback address; no server there) and holds a
     # broken image: the checks above must fail on it, or they prove nothing

@@ -179,6 +179,7 @@ def cli():
 def _register():
     from atticsim.cli.compare import compare
     from atticsim.cli.designday import designday
+    from atticsim.cli.fit import fit
     from atticsim.cli.placements import placements
     from atticsim.cli.run import run
     from atticsim.cli.sweep import sweep
@@ -188,6 +189,7 @@ def _register():
     for command in (run, designday, thermostat, placements, sweep, compare):
         cli.add_command(command)
     cli.add_command(validate)
+    cli.add_command(fit)
 
 
 _register()

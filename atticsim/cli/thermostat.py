@@ -29,23 +29,34 @@ from atticsim.cli.options import Quantity, claim_out, force_option, scenario_arg
 @click.option("--write", "write_to", type=click.Path(dir_okay=False),
               help="With --design: write SCENARIO with the chosen feedback resistor and trimmer setting to this "
                    "file, ready to run.")
+@click.option("--run-on", "run_on", metavar="TIME[,TIME...]",
+              help='Bench test: the fan\'s timed run-on after the heat was taken off the bare sensor, e.g. "25s" or '
+                   '"25s,27s,24s" for repeats; infers the sensor\'s still-air time constant (with --ambient and '
+                   '--heated-to; --write puts it in a scenario).')
+@click.option("--ambient", help='Bench test: the room\'s air temperature, e.g. "24degC".')
+@click.option("--heated-to", "heated_to", help="Bench test: the sensor's temperature when the heat was taken away.")
+@click.option("--timing", default="1s", show_default=True, help="Bench test: uncertainty of each timing.")
 @units_option
 @click.option("--out", "out", type=click.Path(file_okay=False),
               help="Also write thermostat.json, hysteresis_loop.png and report.html to this folder.")
 @force_option
-def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis, series, write_to, units, out,
-               force):
+def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis, series, write_to, run_on, ambient,
+               heated_to, timing, units, out, force):
     """Explain SCENARIO's circuit thermostat: the temperatures its parts really switch at (with
     self-heating and tolerances), its LED current, its mains-side supply, its timer stage and the time
     rules the simulation applies; or, with --design, the parts that give wanted temperatures (of the air by
     default: the thermistor's own dissipation included). With --out, the same as files and a report page;
-    --force replaces an existing --out folder or --write file."""
+    --force replaces an existing --out folder or --write file. With --run-on, --ambient and --heated-to (any
+    thermostat kind): the sensor's still-air time constant from a timed run-on on the bench."""
     from atticsim.report.thermostat import design_report, design_text, thermostat_report, thermostat_text
     from atticsim.scenario import load_scenario
     from atticsim.units import to_si
 
+    if run_on is not None:
+        return _bench(scenario, overrides, run_on, ambient, heated_to, timing, as_json, write_to, units, out, design,
+                      force)
     if write_to and not design:
-        raise click.UsageError("--write needs --design (it writes the parts the design chooses)")
+        raise click.UsageError("--write needs --design or --run-on (it writes what they find)")
     if write_to and not force:
         from atticsim.errors import OutputError
 
@@ -108,3 +119,41 @@ def thermostat(scenario, overrides, as_json, design, on_, off, hysteresis, basis
         }
         files = claim.write(writers)
         click.echo(f"wrote {len(files)} files to {out}", err=True)
+
+
+def _bench(scenario, overrides, run_on, ambient, heated_to, timing, as_json, write_to, units, out, design, force):
+    """``--run-on``: the sensor's still-air time constant from a timed run-on (atticsim.calibration.bench)."""
+    from atticsim.calibration.bench import bench_text, scenario_bench
+    from atticsim.scenario import load_scenario
+    from atticsim.units import to_si
+
+    if design or out:
+        raise click.UsageError("--run-on infers the sensor's time constant: not with --design or --out")
+    if ambient is None or heated_to is None:
+        raise click.UsageError("--run-on needs --ambient (the room's air) and --heated-to (the sensor's temperature "
+                               "when the heat was taken away)")
+    if write_to and not force and Path(write_to).exists():
+        raise FileExistsError(f"{write_to}: file exists; pass --force to overwrite it")
+    sc = load_scenario(scenario, list(overrides))
+    for w in sc.input_warnings:
+        click.echo(f"atticsim: warning: {w}", err=True)
+    times = [to_si(t.strip(), "time") for t in run_on.split(",") if t.strip()]
+    result = scenario_bench(sc, times, to_si(heated_to, "temperature"), to_si(ambient, "temperature"),
+                            to_si(timing, "time"))
+    click.echo(json.dumps(result.as_dict(), indent=2) if as_json else bench_text(result, units))
+    if write_to:
+        if sc.sensor.body is not None:
+            from atticsim.scenario.load import ScenarioError
+
+            raise ScenarioError(scenario or "<built-in demo house>", "sensor.body",
+                                f"is {sc.sensor.body!r}: the body's correlations set its time constant; remove "
+                                f"sensor.body to run with the measured one")
+        from atticsim.scenario.write import write_scenario
+
+        note = (f"still air, from a bench run-on of {run_on} (atticsim thermostat --run-on): "
+                f"{result.band_s[0]:.1f} .. {result.band_s[1]:.1f} s")
+        path = write_scenario(scenario, list(overrides), {"sensor.time_constant": f"{result.tau_s:.3g} s"}, write_to,
+                              force=force, comment=note)
+        click.echo(f"wrote {path}: the scenario with sensor.time_constant = {result.tau_s:.3g} s (measured in still "
+                   f"air; the attic's moving air cools a sensor faster, so the model's lag is then on the long side)",
+                   err=True)
