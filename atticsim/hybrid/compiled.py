@@ -412,15 +412,19 @@ def _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta):
     early when the segment is already far outside ``tol`` (rejection is sure: a segment too long also
     converges slowly).
     """
+    w_b, w_b_prev, w_c, w_c_prev, w_a, w_g0a = w.b, w.b_prev, w.c, w.c_prev, w.a, w.g0a
+    w_g0a_m, w_z1, w_zm, w_u1, w_um, w_xe = w.g0a_m, w.z1, w.zm, w.u1, w.um, w.xe
+    w_f1, w_fm, w_r1, w_rm, w_z1n, w_zmn = w.f1, w.fm, w.r1, w.rm, w.z1n, w.zmn
+    fan, air, prm, planes, ints, heat, f_values, f_step = s  # once: each array taken out costs a reference
     n = x.size
-    _assign(w.b, w.b_prev)
-    _assign(w.c, w.c_prev)
-    block_mv(blk, 1, w.a, w.g0a)        # G0 a over h and h / 2: fixed through the iterations
-    block_mv(blk_m, 1, w.a, w.g0a_m)
-    _with_g0a(blk, w.g0a, w.b, w.c, w.z1)
-    _with_g0a(blk_m, w.g0a_m, w.b, w.c, w.zm)
-    _forcing_at(s.f_values, s.f_step, t + h, w.u1)
-    _forcing_at(s.f_values, s.f_step, t + 0.5 * h, w.um)
+    _assign(w_b, w_b_prev)
+    _assign(w_c, w_c_prev)
+    block_mv(blk, 1, w_a, w_g0a)        # G0 a over h and h / 2: fixed through the iterations
+    block_mv(blk_m, 1, w_a, w_g0a_m)
+    _with_g0a(blk, w_g0a, w_b, w_c, w_z1)
+    _with_g0a(blk_m, w_g0a_m, w_b, w_c, w_zm)
+    _forcing_at(f_values, f_step, t + h, w_u1)
+    _forcing_at(f_values, f_step, t + 0.5 * h, w_um)
     converged = False
     change_prev = math.inf
     n_rhs = 0
@@ -430,25 +434,25 @@ def _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta):
     iters = 0
     for iters in range(1, 31):
         for i in range(n):
-            w.xe[i] = x[i] + w.z1[i]
-        _rates(w.xe, w.u1, s, w.f1)
+            w_xe[i] = x[i] + w_z1[i]
+        kernel.rhs(w_xe, w_u1, fan, air, prm, planes, ints, heat, w_f1)
         for i in range(n):
-            w.xe[i] = x[i] + w.zm[i]
-        _rates(w.xe, w.um, s, w.fm)
+            w_xe[i] = x[i] + w_zm[i]
+        kernel.rhs(w_xe, w_um, fan, air, prm, planes, ints, heat, w_fm)
         n_rhs += 2
-        matvec(jac, w.z1, w.r1)
-        matvec(jac, w.zm, w.rm)
+        matvec(jac, w_z1, w_r1)
+        matvec(jac, w_zm, w_rm)
         for i in range(n):
-            w.r1[i] = w.f1[i] - w.r1[i]
-            w.rm[i] = w.fm[i] - w.rm[i]
+            w_r1[i] = w_f1[i] - w_r1[i]
+            w_rm[i] = w_fm[i] - w_rm[i]
             # the quadratic through r(0) = a, r(h/2) = rm, r(h) = r1
-            w.b[i] = (4.0 * w.rm[i] - w.r1[i] - 3.0 * w.a[i]) / h
-            w.c[i] = 2.0 * (w.r1[i] - 2.0 * w.rm[i] + w.a[i]) / (h * h)
-        if iters >= 2 and h > 1.0 and _largest(w.c) * h * h * h / 6.0 > 8.0 * tol:
+            w_b[i] = (4.0 * w_rm[i] - w_r1[i] - 3.0 * w_a[i]) / h
+            w_c[i] = 2.0 * (w_r1[i] - 2.0 * w_rm[i] + w_a[i]) / (h * h)
+        if iters >= 2 and h > 1.0 and _largest(w_c) * h * h * h / 6.0 > 8.0 * tol:
             break
-        _with_g0a(blk, w.g0a, w.b, w.c, w.z1n)
-        _with_g0a(blk_m, w.g0a_m, w.b, w.c, w.zmn)
-        change = max(_max_change(w.z1n, w.z1), _max_change(w.zmn, w.zm))
+        _with_g0a(blk, w_g0a, w_b, w_c, w_z1n)
+        _with_g0a(blk_m, w_g0a_m, w_b, w_c, w_zmn)
+        change = max(_max_change(w_z1n, w_z1), _max_change(w_zmn, w_zm))
         # theta = change / change_prev, eta = theta / (1 - theta): the error left is about eta change
         if iters >= 2:
             theta = change / change_prev
@@ -457,10 +461,10 @@ def _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta):
             converged = True
             # the rates were taken at the previous iterate: carry them to the accepted one by the linear model
             # (the next segment starts from f1; only the middle's book rates are used)
-            _shift_rates(jac, jac_b, w.z1n, w.z1, w.f1, w.r1, True)
-            _shift_rates(jac, jac_b, w.zmn, w.zm, w.fm, w.rm, False)
-        _assign(w.z1, w.z1n)
-        _assign(w.zm, w.zmn)
+            _shift_rates(jac, jac_b, w_z1n, w_z1, w_f1, w_r1, True)
+            _shift_rates(jac, jac_b, w_zmn, w_zm, w_fm, w_rm, False)
+        _assign(w_z1, w_z1n)
+        _assign(w_zm, w_zmn)
         if converged:
             break
         change_prev = change
@@ -488,6 +492,7 @@ def _segment(w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta
     accepted False when even half a second would not converge. ``j_pref`` indexes the preferred length
     segment / 2^j: twice as long next when well inside the tolerance (error ~ h^3), halved with each rejection.
     """
+    w_c = w.c
     jac, jac_b, _, store, lens, meta, cnt, _, _, _ = lin
     n_rej, n_rhs, iters = 0, 0, 0
     while True:
@@ -498,7 +503,7 @@ def _segment(w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta
         if not converged and h < 0.5:
             return False, h, iters, eta, j_pref, first_after_switch, n_rej, n_rhs
         if converged:
-            err = _largest(w.c)
+            err = _largest(w_c)
             err *= h * h * h / 6.0
             if err <= tol or h <= 1.0:
                 # the error this curvature gives over the preferred length: a segment cut short (by the grid
@@ -526,13 +531,15 @@ def _segment(w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta
 def _book_remainder(w, jac_b, h, n):
     """The books' rates f_b(x0) + J_b z + r_b(s): the same quadratic remainder r_b = f0 + bb s + cb s^2
     through their true values at the segment's start, middle and end."""
-    matvec(jac_b, w.z1, w.bb)
-    matvec(jac_b, w.zm, w.cb)
-    for i in range(w.bb.size):
-        rb1 = w.f1[n + i] - w.bb[i]
-        rbm = w.fm[n + i] - w.cb[i]
-        w.bb[i] = (4.0 * rbm - rb1 - 3.0 * w.f0[n + i]) / h
-        w.cb[i] = 2.0 * (rb1 - 2.0 * rbm + w.f0[n + i]) / (h * h)
+    w_z1, w_bb, w_zm, w_cb, w_f1, w_fm = w.z1, w.bb, w.zm, w.cb, w.f1, w.fm
+    w_f0 = w.f0
+    matvec(jac_b, w_z1, w_bb)
+    matvec(jac_b, w_zm, w_cb)
+    for i in range(w_bb.size):
+        rb1 = w_f1[n + i] - w_bb[i]
+        rbm = w_fm[n + i] - w_cb[i]
+        w_bb[i] = (4.0 * rbm - rb1 - 3.0 * w_f0[n + i]) / h
+        w_cb[i] = 2.0 * (rb1 - 2.0 * rbm + w_f0[n + i]) / (h * h)
 
 
 @nb.njit(cache=True, inline="always")
@@ -547,6 +554,10 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
     when the sensor reached its level within the check step from sigma, crossed is True (w.zs and w.yb hold
     the state and the books' increment at sigma); else the outputs up to t + h are written.
     """
+    w_a, w_b, w_c, w_p0, w_p1, w_p2 = w.a, w.b, w.c, w.p0, w.p1, w.p2
+    w_q0, w_q1, w_q2, w_r0, w_r1b, w_r2 = w.q0, w.q1, w.q2, w.r0, w.r1b, w.r2
+    w_zs, w_yb, w_zt, w_f0, w_bb, w_cb = w.zs, w.yb, w.zt, w.f0, w.bb, w.cb
+    w_ybt = w.ybt
     jac, jac_b, _, store, lens, _, cnt, _, _, k_q = lin
     n, nb_ = x.size, books.size
     first = origin + (math.floor((t - origin) / q_step + 1e-9) + 1.0) * q_step - t
@@ -557,13 +568,13 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
         cnt[1] = i_q
     expanded = first + q_step < h - 1e-6
     if expanded:
-        _expanded(blk_q, w.a, w.b, w.c, w.p0, w.p1, w.p2, w.q0, w.q1, w.q2)
-        matvec(jac_b, w.q0, w.r0)
-        matvec(jac_b, w.q1, w.r1b)
-        matvec(jac_b, w.q2, w.r2)
+        _expanded(blk_q, w_a, w_b, w_c, w_p0, w_p1, w_p2, w_q0, w_q1, w_q2)
+        matvec(jac_b, w_q0, w_r0)
+        matvec(jac_b, w_q1, w_r1b)
+        matvec(jac_b, w_q2, w_r2)
     sigma = 0.0
-    _zero(w.zs)
-    _zero(w.yb)
+    _zero(w_zs)
+    _zero(w_yb)
     g_prev = (x[i_sensor] - level) * direction
     step = 0.0
     last = False
@@ -573,11 +584,21 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
         if sigma + step >= h - 1e-6:
             step = h - sigma
             last = True
-        _check_step(w, blk, blk_q, store, lens, cnt, jac, jac_b, k_q, s0, chain_, sigma, step, last,
-                    expanded and abs(step - q_step) < 1e-9, n, nb_)
+        if expanded and sigma > 0.0 and not last and abs(step - q_step) < 1e-9:
+            # a full check step on the grid (the most frequent): the expansion, inline
+            block_mv(blk_q, 0, w_zs, w_zt)
+            matvec(k_q, w_zs, w_ybt)
+            s2 = sigma * sigma
+            for i in range(n):
+                w_zt[i] += w_p0[i] + sigma * w_p1[i] + s2 * w_p2[i]
+            for i in range(nb_):
+                w_ybt[i] += w_yb[i] + w_r0[i] + sigma * w_r1b[i] + s2 * w_r2[i]
+        else:
+            _check_step(w, blk, blk_q, store, lens, cnt, jac, jac_b, k_q, s0, chain_, sigma, step, last,
+                        expanded and abs(step - q_step) < 1e-9, n, nb_)
         s_new = sigma + step
         if direction != 0:
-            g_new = (x[i_sensor] + w.zt[i_sensor] - level) * direction
+            g_new = (x[i_sensor] + w_zt[i_sensor] - level) * direction
             if g_prev < 0.0 <= g_new:
                 return DONE, True, sigma, step, k
             g_prev = g_new
@@ -586,13 +607,13 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
             if abs(out_t[k] - now) > 1e-6:
                 return OFF_GRID, False, sigma, step, k
             for i in range(n):
-                out_y[i, k] = x[i] + w.zt[i]
+                out_y[i, k] = x[i] + w_zt[i]
             for i in range(nb_):
-                out_y[n + i, k] = (books[i] + (w.f0[n + i] + (0.5 * w.bb[i] + w.cb[i] / 3.0 * s_new) * s_new) * s_new
-                                   + w.ybt[i])
+                out_y[n + i, k] = (books[i] + (w_f0[n + i] + (0.5 * w_bb[i] + w_cb[i] / 3.0 * s_new) * s_new) * s_new
+                                   + w_ybt[i])
             k += 1
-        _assign(w.zs, w.zt)
-        _assign(w.yb, w.ybt)
+        _assign(w_zs, w_zt)
+        _assign(w_yb, w_ybt)
         sigma = s_new
     return DONE, False, sigma, step, k
 
@@ -603,38 +624,41 @@ def _check_step(w, blk, blk_q, store, lens, cnt, jac, jac_b, k_q, s0, chain_, si
     """The state w.zt and the books' increment w.ybt after a check step of length ``step`` from sigma (from
     w.zs, w.yb): by the expansion for a full check step on the grid (:func:`_checks`), straight from the
     segment's blocks at its end, or from the step's own blocks for the first step to the grid."""
+    w_zt, w_p0, w_ybt, w_yb, w_r0, w_z1 = w.zt, w.p0, w.ybt, w.yb, w.r0, w.z1
+    w_zs, w_p1, w_p2, w_r1b, w_r2, w_a = w.zs, w.p1, w.p2, w.r1b, w.r2, w.a
+    w_it_, w_b, w_c = w.it_, w.b, w.c
     if on_grid:
         # (at sigma = 0, z = 0: z = P0, J_b int z = R0); the segment's end keeps z1 itself
         if sigma == 0.0:
-            _assign(w.zt, w.p0)
-            _assign(w.ybt, w.r0)
+            _assign(w_zt, w_p0)
+            _assign(w_ybt, w_r0)
         else:
             if last:
-                _assign(w.zt, w.z1)
+                _assign(w_zt, w_z1)
             else:
-                block_mv(blk_q, 0, w.zs, w.zt)
-            matvec(k_q, w.zs, w.ybt)
+                block_mv(blk_q, 0, w_zs, w_zt)
+            matvec(k_q, w_zs, w_ybt)
             s2 = sigma * sigma
             if not last:
                 for i in range(n):
-                    w.zt[i] += w.p0[i] + sigma * w.p1[i] + s2 * w.p2[i]
+                    w_zt[i] += w_p0[i] + sigma * w_p1[i] + s2 * w_p2[i]
             for i in range(nb_):
-                w.ybt[i] += w.yb[i] + w.r0[i] + sigma * w.r1b[i] + s2 * w.r2[i]
+                w_ybt[i] += w_yb[i] + w_r0[i] + sigma * w_r1b[i] + s2 * w_r2[i]
     elif last:
         # the segment's end: straight from the h blocks (int z = G1 a + G2 b + 2 G3 c)
-        _assign(w.zt, w.z1)
-        block_mv(blk, 2, w.a, w.it_)
-        block_mv_add(blk, 3, w.b, 1.0, w.it_)
-        block_mv_add(blk, 4, w.c, 2.0, w.it_)
-        matvec(jac_b, w.it_, w.ybt)
+        _assign(w_zt, w_z1)
+        block_mv(blk, 2, w_a, w_it_)
+        block_mv_add(blk, 3, w_b, 1.0, w_it_)
+        block_mv_add(blk, 4, w_c, 2.0, w_it_)
+        matvec(jac_b, w_it_, w_ybt)
     else:
         # the first step (to the check grid) from z = 0: G0 a + G1 b + 2 G2 c, int G1 a + G2 b + 2 G3 c
         blk_f = store[_lookup(step, lens, store, cnt, jac, s0, chain_)]
-        _from_start(blk_f, w.a, w.b, w.c, w.zt)
-        block_mv(blk_f, 2, w.a, w.it_)
-        block_mv_add(blk_f, 3, w.b, 1.0, w.it_)
-        block_mv_add(blk_f, 4, w.c, 2.0, w.it_)
-        matvec(jac_b, w.it_, w.ybt)
+        _from_start(blk_f, w_a, w_b, w_c, w_zt)
+        block_mv(blk_f, 2, w_a, w_it_)
+        block_mv_add(blk_f, 3, w_b, 1.0, w_it_)
+        block_mv_add(blk_f, 4, w_c, 2.0, w_it_)
+        matvec(jac_b, w_it_, w_ybt)
 
 
 @nb.njit(cache=True, inline="always")
@@ -645,10 +669,12 @@ def _locate(w, x, jac, chain_, s0, levels, sigma, step, i_sensor, level, directi
     a cubic Hermite interpolant of the sensor's exact values and slopes in the last base step, and the state
     there by the Taylor series. Returns the crossing's sigma; w.zt holds the state there and w.zi the integral
     of z from the first sigma on."""
+    w_zi, w_zs, w_v0, w_v1, w_c, w_zt = w.zi, w.zs, w.v0, w.v1, w.c, w.zt
+    w_it_, w_sub, w_a, w_b, w_tmp = w.it_, w.sub, w.a, w.b, w.tmp
     n = x.size
     s_hi = sigma + step
-    _zero(w.zi)
-    g_lo = (x[i_sensor] + w.zs[i_sensor] - level) * direction
+    _zero(w_zi)
+    g_lo = (x[i_sensor] + w_zs[i_sensor] - level) * direction
     lev = levels
     while lev > 0 and s0 * 2.0**lev > step + 1e-9:
         lev -= 1
@@ -656,11 +682,11 @@ def _locate(w, x, jac, chain_, s0, levels, sigma, step, i_sensor, level, directi
         hl = s0 * 2.0**lev
         if sigma + hl < s_hi - 1e-9:
             _remainder_at(w, sigma, n)
-            _step_on(chain_[lev], w.zs, w.zi, w.v0, w.v1, w.c, w.zt, w.it_)
-            g_hi = (x[i_sensor] + w.zt[i_sensor] - level) * direction
+            _step_on(chain_[lev], w_zs, w_zi, w_v0, w_v1, w_c, w_zt, w_it_)
+            g_hi = (x[i_sensor] + w_zt[i_sensor] - level) * direction
             if g_hi < 0.0:
-                _assign(w.zs, w.zt)
-                _assign(w.zi, w.it_)
+                _assign(w_zs, w_zt)
+                _assign(w_zi, w_it_)
                 g_lo = g_hi
                 sigma += hl
         lev -= 1
@@ -670,27 +696,27 @@ def _locate(w, x, jac, chain_, s0, levels, sigma, step, i_sensor, level, directi
         if abs(hs - s0) < 1e-12:
             sb = base
         else:
-            taylor(jac, hs, w.sub)
-            sb = w.sub
+            taylor(jac, hs, w_sub)
+            sb = w_sub
         _remainder_at(w, sigma, n)
-        _step_on(sb, w.zs, w.zi, w.v0, w.v1, w.c, w.zt, w.it_)
-        g_hi = (x[i_sensor] + w.zt[i_sensor] - level) * direction
+        _step_on(sb, w_zs, w_zi, w_v0, w_v1, w_c, w_zt, w_it_)
+        g_hi = (x[i_sensor] + w_zt[i_sensor] - level) * direction
         if g_hi >= 0.0 or sigma + hs >= s_hi - 1e-9:
             # slopes from the model: z' = J z + r(s)
             s_end = sigma + hs
-            d_lo = w.v0[i_sensor]
-            d_hi = w.a[i_sensor] + (w.b[i_sensor] + w.c[i_sensor] * s_end) * s_end
+            d_lo = w_v0[i_sensor]
+            d_hi = w_a[i_sensor] + (w_b[i_sensor] + w_c[i_sensor] * s_end) * s_end
             for j in range(n):
-                d_lo += jac[i_sensor, j] * w.zs[j]
-                d_hi += jac[i_sensor, j] * w.zt[j]
+                d_lo += jac[i_sensor, j] * w_zs[j]
+                d_hi += jac[i_sensor, j] * w_zt[j]
             theta = _cubic_root(g_lo, d_lo * direction, max(g_hi, 0.0), d_hi * direction, hs)
             delta = theta * hs
-            _taylor_state(jac, w.zs, w.v0, w.v1, w.c, delta, w.zt, w.tmp)
+            _taylor_state(jac, w_zs, w_v0, w_v1, w_c, delta, w_zt, w_tmp)
             for i in range(n):
-                w.zi[i] += w.tmp[i]
+                w_zi[i] += w_tmp[i]
             return sigma + delta
-        _assign(w.zi, w.it_)
-        _assign(w.zs, w.zt)
+        _assign(w_zi, w_it_)
+        _assign(w_zs, w_zt)
         g_lo = g_hi
         sigma += hs
 
@@ -698,9 +724,10 @@ def _locate(w, x, jac, chain_, s0, levels, sigma, step, i_sensor, level, directi
 @nb.njit(cache=True, inline="always")
 def _remainder_at(w, sigma, n):
     """v0 = r(sigma) and v1 = r'(sigma) of the remainder a + b s + c s^2."""
+    w_v0, w_a, w_b, w_c, w_v1 = w.v0, w.a, w.b, w.c, w.v1
     for i in range(n):
-        w.v0[i] = w.a[i] + (w.b[i] + w.c[i] * sigma) * sigma
-        w.v1[i] = w.b[i] + 2.0 * w.c[i] * sigma
+        w_v0[i] = w_a[i] + (w_b[i] + w_c[i] * sigma) * sigma
+        w_v1[i] = w_b[i] + 2.0 * w_c[i] * sigma
 
 
 @nb.njit(cache=True)
@@ -722,17 +749,20 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     n, nb_ = x.size, books.size
     s = _System(fan, air, prm, planes, ints, heat, f_values, f_step)
     w = _work(n, nb_, f_values.shape[0])
+    w_u0, w_f0, w_a, w_um, w_fm, w_b_prev = w.u0, w.f0, w.a, w.um, w.fm, w.b_prev
+    w_bb, w_cb, w_ybt, w_z1, w_f1, w_u1 = w.bb, w.cb, w.ybt, w.z1, w.f1, w.u1
+    w_b, w_c, w_c_prev, w_zi, w_yb, w_zt = w.b, w.c, w.c_prev, w.zi, w.yb, w.zt
     jac, jac_b, links, _, _, meta, cnt, x_lin, air_lin, _ = lin
     n_rhs, n_jac, n_rej, n_seg = 0, 0, 0, 0
     if k < out_t.size and abs(out_t[k] - t) < 1e-6:
         out_y[:n, k] = x
         out_y[n:, k] = books
         k += 1
-    _forcing_at(f_values, f_step, t, w.u0)
-    _rates(x, w.u0, s, w.f0)
+    _forcing_at(f_values, f_step, t, w_u0)
+    _rates(x, w_u0, s, w_f0)
     n_rhs += 1
     if not (meta[0] > 0.0 and _max_change(x, x_lin) <= drift and t - meta[3] <= age and _air_close(air, air_lin)):
-        _relinearise(x, w.u0, t, fan, air, prm, planes, ints, heat, w.f0, lin, q_step, unit_halvings, segment)
+        _relinearise(x, w_u0, t, fan, air, prm, planes, ints, heat, w_f0, lin, q_step, unit_halvings, segment)
         n_rhs += n
         n_jac += 1
     j_pref = 0
@@ -748,7 +778,7 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     while t < t_end - 1e-9:
         # renew the linearisation when the nodes have moved or it is old
         if _max_change(x, x_lin) > drift or t - meta[3] > age or iters > slow_iters:
-            _relinearise(x, w.u0, t, fan, air, prm, planes, ints, heat, w.f0, lin, q_step, unit_halvings, segment)
+            _relinearise(x, w_u0, t, fan, air, prm, planes, ints, heat, w_f0, lin, q_step, unit_halvings, segment)
             n_rhs += n
             n_jac += 1
         if cnt[0] > _CACHE - 28:
@@ -756,15 +786,15 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             cnt[1] = -1
         s0, chain_ = meta[1], links[:int(meta[2]) + 1]
         h = _segment_length(t, t_end, origin, segment, j_pref, f_step)
-        _assign(w.a, w.f0)
-        if n_seg > 0 and _slope_jump(f_values, f_step, t, w.u0, w.um):
+        _assign(w_a, w_f0)
+        if n_seg > 0 and _slope_jump(f_values, f_step, t, w_u0, w_um):
             # at a weather sample the forcing's slope changes, and the remainder's slope with it by
             # df/du (u'_after - u'_before): one directional difference over KINK_SPAN carries the prediction
             # across the kink (a prediction only: the fixed point still matches the true rates)
-            _rates(x, w.um, s, w.fm)
+            _rates(x, w_um, s, w_fm)
             n_rhs += 1
             for i in range(n):
-                w.b_prev[i] += (w.fm[i] - w.f0[i]) / KINK_SPAN
+                w_b_prev[i] += (w_fm[i] - w_f0[i]) / KINK_SPAN
         ok, h, iters, eta, j_pref, first_after_switch, rejected, nr = _segment(
             w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta, first_after_switch)
         n_rhs += nr
@@ -780,26 +810,26 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             return OFF_GRID, t, k, n_rhs, n_jac, n_rej, n_seg
         if not crossed:
             for i in range(nb_):
-                books[i] = books[i] + (w.f0[n + i] + (0.5 * w.bb[i] + w.cb[i] / 3.0 * h) * h) * h + w.ybt[i]
+                books[i] = books[i] + (w_f0[n + i] + (0.5 * w_bb[i] + w_cb[i] / 3.0 * h) * h) * h + w_ybt[i]
             for i in range(n):
-                x[i] += w.z1[i]
+                x[i] += w_z1[i]
             t = t + h
-            _assign(w.f0, w.f1)
-            _assign(w.u0, w.u1)
+            _assign(w_f0, w_f1)
+            _assign(w_u0, w_u1)
             for i in range(n):
-                w.b_prev[i] = w.b[i] + 2.0 * w.c[i] * h   # the remainder's slope and curvature carried on
-                w.c_prev[i] = w.c[i]
+                w_b_prev[i] = w_b[i] + 2.0 * w_c[i] * h   # the remainder's slope and curvature carried on
+                w_c_prev[i] = w_c[i]
             continue
         sigma = _locate(w, x, jac, chain_, s0, int(meta[2]), sigma, step, i_sensor, level, direction)
         # the books to the crossing: up to the check step (yb) and over its part (J_b int z)
         for i in range(nb_):
             acc = 0.0
             for j in range(n):
-                acc += jac_b[i, j] * w.zi[j]
-            books[i] = (books[i] + (w.f0[n + i] + (0.5 * w.bb[i] + w.cb[i] / 3.0 * sigma) * sigma) * sigma
-                        + w.yb[i] + acc)
+                acc += jac_b[i, j] * w_zi[j]
+            books[i] = (books[i] + (w_f0[n + i] + (0.5 * w_bb[i] + w_cb[i] / 3.0 * sigma) * sigma) * sigma
+                        + w_yb[i] + acc)
         for i in range(n):
-            x[i] += w.zt[i]
+            x[i] += w_zt[i]
         return SWITCH, t + sigma, k, n_rhs, n_jac, n_rej, n_seg
     return DONE, t, k, n_rhs, n_jac, n_rej, n_seg
 
