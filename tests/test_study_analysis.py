@@ -99,20 +99,20 @@ def test_recommendation_qualifies_by_starts_and_short_cycles_then_takes_the_gent
     # Applying the rule by hand (rule_text): step 1 drops points 0 (9 starts in an hour) and 2 (3 short
     # cycles: within the starts limit, but the fan hunts); step 2: lowest qualifying heat 12.0, tolerance
     # max(0.01, 1 % x 12.0) = 0.12, so 12.0, 12.05 and 12.1 tie and 12.5 does not; step 3: fewest starts
-    # among 1, 3 and 5 -> points 1 and 5 (5 starts each); widest hysteresis -> point 5 (4 K).
+    # among 1, 3 and 5 -> points 1 and 5 (5 starts each); least fan energy -> point 1 (1.2 kWh against 1.4).
     t = table([
         (0, "ok", 9, 0, 10.0, 0.5, 30, 1.0),    # lowest heat, too many starts in one hour
-        (1, "ok", 2, 0, 12.05, 3.0, 5, 1.2),    # tied, 5 starts
+        (1, "ok", 2, 0, 12.05, 3.0, 5, 1.2),    # tied, 5 starts, less energy than point 5 -> chosen
         (2, "ok", 3, 3, 11.9, 1.0, 12, 1.1),    # short-cycles (the old rule's pick: narrowest, lowest heat)
         (3, "ok", 2, 0, 12.0, 2.0, 8, 1.1),     # tied, 8 starts
         (4, "ok", 1, 0, 12.5, 5.0, 4, 1.3),     # the fewest starts, but not tied (12.5 > 12.12)
-        (5, "ok", 1, 0, 12.1, 4.0, 5, 1.4),     # tied, 5 starts, wider than point 1 -> chosen
+        (5, "ok", 1, 0, 12.1, 4.0, 5, 1.4),     # tied, 5 starts, wider than point 1 but more energy
         (6, "error", None, None, None, 1.0, None, None),
     ])
     rec = recommend(t, starts_limit=6, heat_column="degree_hours_above_limit")
-    assert rec["point"] == 5 and rec["candidates"] == 4 and rec["tied"] == 3
-    # the runner-up is the rule applied without point 5: of 1 and 3 (12.0, tolerance 0.12), point 1
-    assert rec["runner_up"] == 1
+    assert rec["point"] == 1 and rec["candidates"] == 4 and rec["tied"] == 3
+    # the runner-up is the rule applied without point 1: of 3 and 5 (12.0, tolerance 0.12), point 5 (5 starts)
+    assert rec["runner_up"] == 5
     # allowing 3 short cycles lets point 2 in: lowest heat 11.9, tolerance 0.119, so only 2 and 3 (12.0 <=
     # 12.019) tie, not 1 (12.05); the fewer starts of the two: point 3 (8 against 12)
     rec = recommend(t, starts_limit=6, heat_column="degree_hours_above_limit", short_cycles_allowed=3)
@@ -139,7 +139,45 @@ def test_rule_text_states_its_numbers():
     text = rule_text(4.0, 2, "ceiling_heat_gain_kwh", 0.005)
     assert "max_starts_per_hour <= 4" in text and "short_cycles <= 2" in text
     assert "max(0.01, 0.5 % of the lowest)" in text and "ceiling_heat_gain_kwh" in text
-    assert text.index("fewest fan starts") < text.index("widest hysteresis") < text.index("least fan energy")
+    assert text.index("fewest fan starts") < text.index("least fan energy") < text.index("widest hysteresis")
+
+
+def test_hysteresis_or_timer_at_the_same_heat_figure():
+    # worked by hand: points 0-2 use hysteresis alone, 3-5 a minimum run; all qualify; the heat figures 20.0 to
+    # 20.15 tie (tolerance max(0.01, 1 % of 20.0) = 0.2), 25.0 does not. Hysteresis alone: fewest starts
+    # point 1 (3.0 K, 40 starts); a timer with no wider band: point 4 (1.0 K, 5 min, 30 starts) beats point 5
+    # (4.0 K is wider than 3.0 K) -> the timer wins on starts
+    cols = ["point", "status", "max_starts_per_hour", "short_cycles", "degree_hours_above_limit", "hysteresis_k",
+            "fan_starts", "fan_energy_kwh", "thermostat.min_run", "thermostat.min_run_given"]
+    t = pd.DataFrame([
+        (0, "ok", 3, 0, 20.0, 1.0, 90, 5.0, 0.0, "0 min"),
+        (1, "ok", 2, 0, 20.1, 3.0, 40, 5.5, 0.0, "0 min"),
+        (2, "ok", 1, 0, 25.0, 5.0, 20, 4.0, 0.0, "0 min"),   # not tied: too hot
+        (3, "ok", 2, 0, 20.05, 1.0, 35, 5.6, 180.0, "3 min"),
+        (4, "ok", 2, 0, 20.15, 1.0, 30, 5.7, 300.0, "5 min"),
+        (5, "ok", 1, 0, 20.1, 4.0, 10, 5.2, 300.0, "5 min"),  # a timer with a wider band than hysteresis alone
+    ], columns=cols)
+    rec = recommend(t, 6, "degree_hours_above_limit")
+    ht = rec["hysteresis_or_timer"]
+    assert (ht["hysteresis_point"], ht["timer_point"], ht["winner"]) == (1, 4, "timer")
+    assert "point 1 (hysteresis 3.00 K: 40 starts" in ht["text"] and "min_run 5 min: 30 starts" in ht["text"]
+    assert rec["point"] == 5  # the rule itself still takes the fewest starts of all tied points
+    # a study that varies no time rule has no such comparison
+    assert recommend(t.drop(columns=["thermostat.min_run"]), 6, "degree_hours_above_limit")["hysteresis_or_timer"] is None
+    # every tied point needs its timer: said so
+    only = recommend(t[t["thermostat.min_run"] > 0], 6, "degree_hours_above_limit")["hysteresis_or_timer"]
+    assert only["winner"] == "timer" and only["hysteresis_point"] is None and "a time rule is needed" in only["text"]
+
+
+def test_no_edge_advice_below_a_rule_of_zero():
+    from atticsim.study.analysis import edges
+    from atticsim.study.spec import parse_vary
+
+    axes = [parse_vary("thermostat.min_run=0,5,10min")]
+    t = pd.DataFrame({"point": [0, 1, 2], "thermostat.min_run": [0.0, 300.0, 600.0],
+                      "thermostat.min_run_given": ["0 min", "5 min", "10 min"]})
+    assert edges(t, 0, axes) == []  # nothing lies below no minimum run
+    assert [e["side"] for e in edges(t, 2, axes)] == ["highest"]
 
 
 # --- edges of the searched range ----------------------------------------------------------------------

@@ -39,7 +39,7 @@ def rule_text(starts_limit: float, short_cycles_allowed: int, heat_column: str, 
             f"simulation.short_cycle). 2. Among the qualifying points, every point whose {heat_column} is within "
             f"max({abs_tol:g}, {100.0 * rel_tol:g} % of the lowest) of the lowest qualifying {heat_column} ties "
             f"with it. 3. Of the tied points, the gentlest setting is chosen: the fewest fan starts (fan_starts), "
-            f"then the widest hysteresis (hysteresis_k), then the least fan energy (fan_energy_kwh), then the "
+            f"then the least fan energy (fan_energy_kwh), then the widest hysteresis (hysteresis_k), then the "
             f"lowest point number. The runner-up is the point the same rule chooses when the chosen point is "
             f"left out.")
 
@@ -186,8 +186,74 @@ def _choose(table, mask, heat_column, rel_tol, abs_tol):
     order = pd.DataFrame({
         "starts": pd.to_numeric(tied["fan_starts"]), "hyst": -hyst.fillna(0.0),
         "energy": pd.to_numeric(tied["fan_energy_kwh"]), "point": tied["point"]}, index=tied.index)
-    chosen = order.sort_values(["starts", "hyst", "energy", "point"], kind="mergesort").index[0]
+    chosen = order.sort_values(["starts", "energy", "hyst", "point"], kind="mergesort").index[0]
     return chosen, len(tied), best
+
+
+#: The thermostat's time rules a study may vary (the columns that tell a timer's points from the others).
+RULE_KEYS = tuple(f"thermostat.{r}" for r in ("start_delay", "run_on", "min_run", "min_rest"))
+
+
+def hysteresis_or_timer(table, mask, heat_column, rel_tol, abs_tol=HEAT_ABS_TOLERANCE) -> dict | None:
+    """At the same heat figure (the points that tie in step 2 of the rule), the best point that stops the
+    short-cycling with hysteresis alone against the best that uses a time rule with no wider a hysteresis,
+    each by fewest starts then least fan energy; None when the study varies no time rule or no point
+    qualifies.
+
+    Returns
+    -------
+    dict
+        ``hysteresis_point``, ``timer_point`` (None when that side has no tied point), ``winner``
+        ("hysteresis" or "timer"; "tie" when equal) and ``text`` (one sentence).
+    """
+    import pandas as pd
+
+    rules = [k for k in RULE_KEYS if k in table]
+    if not rules or not mask.any():
+        return None
+    rows = table[mask]
+    h = pd.to_numeric(rows[heat_column])
+    best = float(h.min())
+    tied = rows[h <= best + max(abs_tol, rel_tol * abs(best))]
+    timed = (tied[rules].apply(pd.to_numeric, errors="coerce").fillna(0.0) > 0.0).any(axis=1)
+    def best(part):
+        order = part.assign(_s=pd.to_numeric(part["fan_starts"]), _e=pd.to_numeric(part["fan_energy_kwh"]))
+        return order.sort_values(["_s", "_e", "point"], kind="mergesort").iloc[0]
+
+    if (~timed).sum() == 0:
+        b = best(tied)
+        return {"hysteresis_point": None, "timer_point": int(b["point"]), "winner": "timer",
+                "text": f"no point with hysteresis alone qualifies and ties on {heat_column}: a time rule is needed "
+                        f"here (best: point {int(b['point'])}, {int(b['fan_starts'])} starts)"}
+    if timed.sum() == 0:
+        a = best(tied)
+        return {"hysteresis_point": int(a["point"]), "timer_point": None, "winner": "hysteresis",
+                "text": f"no point with a time rule ties on {heat_column} among the qualifying points: hysteresis "
+                        f"alone does best here (point {int(a['point'])}, {int(a['fan_starts'])} starts)"}
+    a = best(tied[~timed])
+    # a timer is the alternative to a wider hysteresis: its points with no wider a band than hysteresis alone needs
+    band = pd.to_numeric(tied["hysteresis_k"], errors="coerce") if "hysteresis_k" in tied else None
+    narrower = timed & (band <= float(a["hysteresis_k"]) + 1e-9) if band is not None and pd.notna(
+        a.get("hysteresis_k")) else timed
+    if narrower.sum() == 0:
+        return None
+    b = best(tied[narrower])
+    key_a, key_b = (float(a["fan_starts"]), float(a["fan_energy_kwh"])), (float(b["fan_starts"]), float(b["fan_energy_kwh"]))
+    winner = "tie" if key_a == key_b else ("hysteresis" if key_a < key_b else "timer")
+
+    def said(r):
+        given = ", ".join(f"{k.split('.')[-1]} {r.get(k + '_given', r[k])}" for k in rules
+                          if pd.to_numeric(r[k], errors="coerce") > 0)
+        hyst = r.get("hysteresis_k")
+        band = f"hysteresis {float(hyst):.2f} K" if hyst is not None and pd.notna(hyst) else "its hysteresis"
+        return (f"point {int(r['point'])} ({band}{', ' + given if given else ''}: {int(r['fan_starts'])} starts, "
+                f"{float(r['fan_energy_kwh']):.2f} kWh)")
+
+    verdict = {"tie": "they tie", "hysteresis": "the wider hysteresis starts the motor less (or costs less)",
+               "timer": "the timer starts the motor less (or costs less)"}[winner]
+    text = (f"at the same {heat_column} the best with hysteresis alone is {said(a)}, the best with a time rule "
+            f"{said(b)}: {verdict}")
+    return {"hysteresis_point": int(a["point"]), "timer_point": int(b["point"]), "winner": winner, "text": text}
 
 
 def recommend(table, starts_limit: float, heat_column: str, short_cycles_allowed: int = 0, rel_tol: float = 0.01,
@@ -243,12 +309,37 @@ def recommend(table, starts_limit: float, heat_column: str, short_cycles_allowed
         out["runner_up"] = int(table.loc[_choose(table, rest, heat_column, rel_tol, abs_tol)[0], "point"])
     n_limit = int(((table["status"] == "ok") & (pd.to_numeric(table["max_starts_per_hour"], errors="coerce")
                                                  <= starts_limit)).sum())
+    out["hysteresis_or_timer"] = hysteresis_or_timer(table, mask, heat_column, rel_tol, abs_tol)
     out["reason"] = (f"{n_limit} of {len(table)} points keep within {starts_limit:g} starts per hour, "
                      f"{int(mask.sum())} of them with {'no' if short_cycles_allowed == 0 else f'at most {short_cycles_allowed}'} "
                      f"short cycles; {n_tied} of those "
                      f"tie on {heat_column} (lowest {best:.4g}, tolerance "
                      f"{max(abs_tol, rel_tol * abs(best)):.3g}); the gentlest of them is chosen")
     return out
+
+
+def _least_allowed(key: str) -> float:
+    """The lowest value a scenario key may take (its schema's ``ge`` bound; 0 for a time rule), or -inf when it
+    has none."""
+    import annotated_types
+
+    from atticsim.scenario.fields import locate
+    from atticsim.scenario.schema import Scenario
+    from atticsim.scenario.thermostat import CircuitThermostat, SetpointThermostat
+
+    if key in RULE_KEYS:
+        return 0.0  # a time rule: 0 (none) to a day
+    parts = key.split(".")
+    roots = [(Scenario, parts)]
+    if parts[0] == "thermostat":
+        roots += [(SetpointThermostat, parts[1:]), (CircuitThermostat, parts[1:])]
+    for root, loc in roots:
+        owner, name, _ = locate(root, loc)
+        info = owner.model_fields.get(name) if owner is not None else None
+        if info is not None:
+            bounds = [m.ge for m in info.metadata if isinstance(m, annotated_types.Ge)]
+            return float(bounds[0]) if bounds else -math.inf
+    return -math.inf
 
 
 def edges(table, point: int, axes, sampled: bool = False) -> list[dict]:
@@ -283,8 +374,8 @@ def edges(table, point: int, axes, sampled: bool = False) -> list[dict]:
             continue
         lo, hi = float(values.min()), float(values.max())
         side = "lowest" if v <= lo else "highest" if v >= hi else None
-        if side is None:
-            continue
+        if side is None or (side == "lowest" and lo <= _least_allowed(ax.key)):
+            continue  # not at an edge, or at the lowest the key can take (a rule of 0 s): nothing lies below
         given = row.get(f"{ax.key}_given", v)
         way = "below" if side == "lowest" else "above"
         unit = f" {ax.unit}" if ax.unit else ""
@@ -351,6 +442,8 @@ def recommendation_text(rec: dict, table, axes_keys: list[str], units: str = "si
         lines.append(f"  runner-up point {runner_up}: {text2} ({f(r2, 'fan_starts', '.0f', 'starts')}, "
                      f"{f(r2, 'short_cycles', '.0f', 'short cycles')}, {f(r2, rec['heat_column'], '.4g', '')} "
                      f"{rec['heat_column']}, {f(r2, 'fan_energy_kwh', '.2f', 'kWh')})")
+    if rec.get("hysteresis_or_timer"):
+        lines.append(f"  hysteresis or timer: {rec['hysteresis_or_timer']['text']}")
     for e in rec.get("edges", []):
         lines.append(f"  EDGE: {e['advice']}")
     for w in rec.get("warnings", []):

@@ -61,6 +61,9 @@ def study_page(study, outcome, inputs=None, options=None, command=None, folder=N
                 cards.append((label(k), f"{fmt(f[k])} {unit(k)}".strip(), k == "net_benefit_kwh" and f[k] < 0))
         parts.append(answers(cards))
     parts.append("<h3>Why</h3>" + paragraph(rec.get("reason", "")) + paragraph("Rule: " + rec.get("rule", ""), "muted"))
+    if rec.get("hysteresis_or_timer"):
+        parts.append("<h3>Hysteresis or timer</h3>" + paragraph(rec["hysteresis_or_timer"]["text"][:1].upper()
+                                                                + rec["hysteresis_or_timer"]["text"][1:] + "."))
     cp = rec.get("circuit_parts")
     if cp:
         parts.append("<h3>Standard parts for the recommended point</h3>" + key_values([
