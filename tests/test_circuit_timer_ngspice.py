@@ -13,6 +13,7 @@ import subprocess
 import pytest
 
 from atticsim.circuit.timer import TimerParams, timer_delays
+from atticsim.validation.ngspice import timer_netlist as input_delay_netlist
 
 NGSPICE = shutil.which("ngspice")
 pytestmark = pytest.mark.skipif(NGSPICE is None, reason="ngspice is not installed (apt-get install ngspice)")
@@ -38,32 +39,6 @@ def run_ngspice(text, tmp_path, names):
 def _tran(tau, t_end):
     # steps of a two-thousandth of R C: the .meas interpolation then errs far below 0.5 %
     return [".options RELTOL=1e-6 ABSTOL=1e-12 VNTOL=1e-9", f".tran {tau / 2000!r} {t_end!r} 0 {tau / 2000!r} UIC"]
-
-
-def input_delay_netlist(p, t_call, t_release, t_end, extras=()):
-    """An input delay: the driving output steps to the call level at t_call and back at t_release."""
-    v = p.supply
-    call, rest = (v, 0.0) if p.on_call == "charges" else (0.0, v)
-    edge = p.tau * 1e-6
-    lines = [
-        "* atticsim timer stage, input delay",
-        f"VDRV drv 0 PWL(0 {rest!r} {t_call!r} {rest!r} {t_call + edge!r} {call!r} {t_release!r} {call!r} "
-        f"{t_release + edge!r} {rest!r})",
-        f"RT drv c {p.resistance!r}",
-        f"CT c 0 {p.capacitance!r} IC={rest!r}",
-    ]
-    instant = {"delay-start": rest, "delay-stop": call}.get(p.wiring)
-    if instant is not None:
-        # the diode conducts towards the level of the instant direction
-        lines.append("DRS drv c DSW" if instant == v else "DRS c drv DSW")
-        lines.append(".model DSW D(IS=1e-14 N=1)")
-    # the following stage: fan on (1) when the capacitor is past the threshold on the call's side
-    sign = "" if p.on_call == "charges" else "-"
-    lines.append(f"BFAN fan 0 V = 0.5*(1 + tanh(1e4*{sign}(V(c) - {p.threshold_v!r})))")
-    lines += list(extras)
-    lines += _tran(p.tau, t_end)
-    lines += [".meas tran T_ON WHEN V(fan)=0.5 RISE=1", ".meas tran T_OFF WHEN V(fan)=0.5 FALL=1", ".end"]
-    return "\n".join(lines) + "\n"
 
 
 def monostable_netlist(p, t_call, t_release, t_end):

@@ -1,4 +1,4 @@
-"""ngspice as an outside reference for the thermostat circuit's switching temperatures.
+"""ngspice as an outside reference for the thermostat circuit's switching temperatures and its timer stage.
 
 A netlist of the same circuit is written from :class:`~atticsim.circuit.comparator.CircuitParams`
 (behavioural open-collector comparator, Shockley diode LED, the thermistor as a behavioural resistor of a
@@ -74,6 +74,61 @@ def netlist(p, t_low, t_high):
     return "\n".join(lines) + "\n"
 
 
+def measure(text: str, names, folder=None) -> dict:
+    """Run a netlist in ngspice's batch mode; its ``.meas`` results named in ``names`` (lower case) [SI].
+
+    Raises
+    ------
+    FileNotFoundError
+        ngspice is not installed.
+    RuntimeError
+        ngspice ran but did not measure every name (its output is in the message).
+    """
+    exe = ngspice_path()
+    if exe is None:
+        raise FileNotFoundError("ngspice not found (Debian/Ubuntu: apt-get install ngspice)")
+    with tempfile.TemporaryDirectory(prefix="atticsim-ngspice-") as tmp:
+        path = Path(folder or tmp) / "circuit.cir"
+        path.write_text(text)
+        out = subprocess.run([exe, "-b", str(path)], capture_output=True, text=True, timeout=120)
+    found = {}
+    for line in out.stdout.splitlines():
+        parts = line.split()
+        if len(parts) >= 3 and parts[0] in names and parts[1] == "=":
+            found[parts[0]] = float(parts[2])
+    if set(found) != set(names):
+        raise RuntimeError(f"ngspice did not measure {sorted(names)}:\n{out.stdout}\n{out.stderr}")
+    return found
+
+
+def timer_netlist(p, t_call: float, t_release: float, t_end: float, extras=()) -> str:
+    """An RC input-delay stage (:class:`atticsim.circuit.timer.TimerParams`, wiring delay-start, delay-stop or
+    delay-both) driven by an output that steps to the call level at t_call and back at t_release; a silicon
+    diode across R makes the instant direction instant; the following stage is a sharp behavioural switch at
+    the threshold. ``.meas`` gives t_on and t_off, the instants the fan side turns on and off [s]; the
+    transient takes steps of a two-thousandth of R C (its interpolation then errs far below 0.5 %)."""
+    v = p.supply
+    call, rest = (v, 0.0) if p.on_call == "charges" else (0.0, v)
+    edge = p.tau * 1e-6
+    lines = [
+        "* atticsim timer stage, input delay",
+        f"VDRV drv 0 PWL(0 {rest!r} {t_call!r} {rest!r} {t_call + edge!r} {call!r} {t_release!r} {call!r} "
+        f"{t_release + edge!r} {rest!r})",
+        f"RT drv c {p.resistance!r}",
+        f"CT c 0 {p.capacitance!r} IC={rest!r}",
+    ]
+    instant = {"delay-start": rest, "delay-stop": call}.get(p.wiring)
+    if instant is not None:  # the diode conducts towards the level of the instant direction
+        lines += ["DRS drv c DSW" if instant == v else "DRS c drv DSW", ".model DSW D(IS=1e-14 N=1)"]
+    sign = "" if p.on_call == "charges" else "-"
+    lines.append(f"BFAN fan 0 V = 0.5*(1 + tanh(1e4*{sign}(V(c) - {p.threshold_v!r})))")
+    lines += list(extras)
+    lines += [".options RELTOL=1e-6 ABSTOL=1e-12 VNTOL=1e-9",
+              f".tran {p.tau / 2000!r} {t_end!r} 0 {p.tau / 2000!r} UIC",
+              ".meas tran T_ON WHEN V(fan)=0.5 RISE=1", ".meas tran T_OFF WHEN V(fan)=0.5 FALL=1", ".end"]
+    return "\n".join(lines) + "\n"
+
+
 def run_ngspice(p, t_low=-10.0, t_high=70.0, folder=None):
     """(t_on, t_off) [degC] of the circuit as ngspice measures them.
 
@@ -92,20 +147,7 @@ def run_ngspice(p, t_low=-10.0, t_high=70.0, folder=None):
     RuntimeError
         ngspice ran but did not measure both crossings (its output is in the message).
     """
-    exe = ngspice_path()
-    if exe is None:
-        raise FileNotFoundError("ngspice not found (Debian/Ubuntu: apt-get install ngspice)")
-    with tempfile.TemporaryDirectory(prefix="atticsim-ngspice-") as tmp:
-        path = Path(folder or tmp) / "thermostat.cir"
-        path.write_text(netlist(p, t_low, t_high))
-        out = subprocess.run([exe, "-b", str(path)], capture_output=True, text=True, timeout=120)
-    found = {}
-    for line in out.stdout.splitlines():
-        parts = line.split()
-        if len(parts) >= 3 and parts[0] in ("t_on", "t_off") and parts[1] == "=":
-            found[parts[0]] = float(parts[2])
-    if set(found) != {"t_on", "t_off"}:
-        raise RuntimeError(f"ngspice did not measure both crossings:\n{out.stdout}\n{out.stderr}")
+    found = measure(netlist(p, t_low, t_high), ("t_on", "t_off"), folder)
     return found["t_on"], found["t_off"]
 
 

@@ -21,7 +21,7 @@ GROUPS = ("sun and sky", "roof and attic heat transfer", "airflow", "sensor", "c
 #: Short prefixes of the case ids, one per group (S1, S2 ... for sun and sky).
 PREFIX = dict(zip(GROUPS, ("S", "H", "A", "T", "C", "N", "F")))
 #: The modules that register cases (imported on first use: each keeps its heavy imports inside its cases).
-CASE_MODULES = ("sun_sky", "heat_transfer", "airflow", "sensor", "circuit", "solver", "field")
+CASE_MODULES = ("sun_sky", "heat_transfer", "airflow", "sensor", "circuit", "solver", "timing", "field")
 
 WITHIN, OUTSIDE, ERROR, NOT_RUN = "within", "outside", "error", "not run"
 
