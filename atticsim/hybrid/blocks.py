@@ -117,7 +117,9 @@ def taylor(jac, s, out):
         np.dot(js, acc, tmp)
         for i in range(n):
             tmp[i, i] += 1.0 / fact
-        acc[:, :] = tmp
+        for i in range(n):  # element by element: a slice assignment compiles its shape checks' messages
+            for j in range(n):
+                acc[i, j] = tmp[i, j]
     sk = s ** (top + 1)
     for i in range(n):
         for j in range(n):
@@ -133,6 +135,16 @@ def taylor(jac, s, out):
             out[k, i, i] += w
         if k > 0:
             kfact /= k
+
+
+@nb.njit(cache=True, _nrt=False)
+def _copy3(src, dst):
+    """dst[q] = src[q] for the first dst.shape[0] blocks, element by element (a slice assignment compiles its
+    shape checks' messages)."""
+    for q in range(dst.shape[0]):
+        for i in range(dst.shape[1]):
+            for j in range(dst.shape[2]):
+                dst[q, i, j] = src[q, i, j]
 
 
 @nb.njit(cache=True)
@@ -183,14 +195,13 @@ def blocks_for(jac, h, s0, links, out):
             lev += 1
             step *= 2.0
         if count == 0:  # h = 0: the identity and zero blocks
-            for q in range(out.shape[0]):
-                out[q, :, :] = 0.0
+            out.fill(0.0)
             for i in range(jac.shape[1]):
                 out[0, i, i] = 1.0
             return 0.0
         if lev >= links.shape[0]:
             raise ValueError("step longer than the doubling chain")
-        out[:, :, :] = links[lev, :out.shape[0]]
+        _copy3(links[lev], out)
         length = step
         count >>= 1
         lev += 1
@@ -202,7 +213,7 @@ def blocks_for(jac, h, s0, links, out):
                 raise ValueError("step longer than the doubling chain")
             # (callers pass the chain's filled part: links[:levels + 1])
             compose(out, links[lev], step, tmp)
-            out[:, :, :] = tmp
+            _copy3(tmp, out)
             length += step
         count >>= 1
         lev += 1

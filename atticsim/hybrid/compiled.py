@@ -221,7 +221,8 @@ def _taylor_state(jac, z, v0, v1, c, delta, z_out, int_out):
         elif m == 3:
             for i in range(n):
                 nxt[i] += 2.0 * c[i]         # z''' = J z'' + 2 c
-        term[:] = nxt
+        for i in range(n):
+            term[i] = nxt[i]
         coef_z *= delta / m
         coef_i *= delta / (m + 1)
         for i in range(n):
@@ -285,15 +286,19 @@ def _relinearise(x, u, t, fan, air, prm, planes, ints, heat, f0, lin, q_step, un
     n = x.size
     jac_all = np.empty((f0.size, n))
     _jacobian(x, u, fan, air, prm, planes, ints, heat, f0, jac_all)
-    jac[:, :] = jac_all[:n]
-    jac_b[:, :] = jac_all[n:]
+    for i in range(n):  # element by element: a slice assignment compiles its shape checks' messages
+        for j in range(n):
+            jac[i, j] = jac_all[i, j]
+    for i in range(jac_b.shape[0]):
+        for j in range(n):
+            jac_b[i, j] = jac_all[n + i, j]
     s0, _ = base_step(jac, q_step, unit_halvings)
     # links up to the longest length asked for (segment, or two check steps): its highest binary digit
     levels = min(int(np.floor(np.log2(max(segment, 2.0 * q_step) / s0) + 1e-9)), links.shape[0] - 1)
     chain_into(jac, s0, levels, links)
     meta[0], meta[1], meta[2], meta[3] = 1.0, s0, levels, t
-    x_lin[:] = x
-    air_lin[:] = air
+    _assign(x_lin, x)
+    _assign(air_lin, air)
     cnt[0] = 0     # block cache: empty
     cnt[1] = -1    # J_b G0(q): to be formed
 
@@ -755,8 +760,10 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     jac, jac_b, links, _, _, meta, cnt, x_lin, air_lin, _ = lin
     n_rhs, n_jac, n_rej, n_seg = 0, 0, 0, 0
     if k < out_t.size and abs(out_t[k] - t) < 1e-6:
-        out_y[:n, k] = x
-        out_y[n:, k] = books
+        for i in range(n):
+            out_y[i, k] = x[i]
+        for i in range(nb_):
+            out_y[n + i, k] = books[i]
         k += 1
     _forcing_at(f_values, f_step, t, w_u0)
     _rates(x, w_u0, s, w_f0)

@@ -712,8 +712,10 @@ def flows_columns(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
     pj = np.empty(q_planes.shape[0])
     for j in range(x.shape[1]):
         flows(x[:, j].copy(), u[:, j].copy(), fan[j], air[:, j].copy(), prm, planes, ints, heat, qj, pj)
-        q[:, j] = qj
-        q_planes[:, j] = pj
+        for i in range(qj.size):  # element by element: a slice assignment compiles its shape checks' messages
+            q[i, j] = qj[i]
+        for i in range(pj.size):
+            q_planes[i, j] = pj[i]
 
 
 @numba.njit(cache=True, **_JIT)
@@ -775,7 +777,8 @@ def rhs_columns(x, u, fan, air, prm, planes, ints, heat, out):
     oj = np.empty(out.shape[0])
     for j in range(x.shape[1]):
         rhs(x[:, j].copy(), u[:, j].copy(), fan[j], air[:, j].copy(), prm, planes, ints, heat, oj)
-        out[:, j] = oj
+        for i in range(oj.size):
+            out[i, j] = oj[i]
 
 
 jitcache.restore()
