@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import sys
 from pathlib import Path
 
 import click
@@ -27,6 +28,7 @@ def placements(scenario, out, only, start, end, months, workers, overrides, unit
     from atticsim.report.cautions import caution_text
     from atticsim.report.plots import plot_placements
     from atticsim.results.output import check_output_dir, write_json, write_outputs
+    from atticsim.network.placement import PLACEMENTS
     from atticsim.results.placements import placement_findings, placement_table, run_placements
     from atticsim.scenario import load_scenario
 
@@ -34,18 +36,24 @@ def placements(scenario, out, only, start, end, months, workers, overrides, unit
     sc = load_scenario(scenario, list(overrides))
     names = [p.strip() for p in only.split(",")] if only else None
     click.echo("running one simulation per placement ...", err=True)
-    results = run_placements(sc, names, start=start, end=end, months=months, workers=workers)
+    from atticsim.progress import Progress, is_terminal
+
+    bar = Progress(len(names or PLACEMENTS), 0, sys.stderr if is_terminal(sys.stderr) else None,
+                   label="placements", unit="runs")
+    bar.start()
+    results = run_placements(sc, names, start=start, end=end, months=months, workers=workers, on_done=bar.update)
+    bar.close()
     table = placement_table(results)
     findings = placement_findings(table, sc.simulation.short_cycle / 60.0)
     from atticsim.cli.options import command_line, given_options
     from atticsim.report.html import placements_page, report_writer
     from atticsim.report.inputs import scenario_inputs
-    from atticsim.results.export import ip_table
+    from atticsim.results.export import ip_table, write_csv
 
     ctx = click.get_current_context()
     inputs = scenario_inputs(scenario, overrides, sc)
     files = write_outputs(out, {
-        "placements.csv": lambda p: ip_table(table, units).to_csv(p, index=False, float_format="%.4f"),
+        "placements.csv": lambda p: write_csv(ip_table(table, units), p),
         "placements.json": lambda p: write_json(p, {"placements": ip_table(table, units).to_dict(orient="records"),
                                                     "findings": findings}),
         "placements.png": lambda p: plot_placements(results, p, units),

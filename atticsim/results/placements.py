@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from concurrent.futures import ProcessPoolExecutor
+from concurrent.futures import ProcessPoolExecutor, as_completed
 
 import numpy as np
 import pandas as pd
@@ -23,8 +23,11 @@ def _one(args):
     return placement, build_result(sc, raw)
 
 
-def run_placements(scenario, placements=None, start=None, end=None, months=None, year=None, workers=1):
+def run_placements(scenario, placements=None, start=None, end=None, months=None, year=None, workers=1,
+                   on_done=None):
     """Run the scenario once per placement (fan under thermostat control; no no-fan run needed).
+
+    ``on_done()``, when given, is called as each placement's run finishes (a progress bar's ``update``).
 
     Returns
     -------
@@ -36,11 +39,20 @@ def run_placements(scenario, placements=None, start=None, end=None, months=None,
     if unknown:
         raise ValueError(f"--only: unknown placement(s) {', '.join(unknown)}; known: {', '.join(PLACEMENTS)}")
     jobs = [(scenario, p, start, end, months, year) for p in placements]
+    done = {}
     if workers > 1:
         with ProcessPoolExecutor(max_workers=workers) as pool:
-            done = dict(pool.map(_one, jobs))
+            for fut in as_completed([pool.submit(_one, job) for job in jobs]):
+                name, result = fut.result()
+                done[name] = result
+                if on_done is not None:
+                    on_done()
     else:
-        done = dict(map(_one, jobs))
+        for job in jobs:
+            name, result = _one(job)
+            done[name] = result
+            if on_done is not None:
+                on_done()
     return {p: done[p] for p in placements}
 
 
