@@ -125,11 +125,32 @@ def test_csv_numbers_are_printf_text_to_each_columns_decimals(tmp_path):
 
 
 def test_decimals_follow_the_unit_endings():
-    # the precision each file column is written with (README's table of the time series says the same)
     assert [decimals(n) for n in ("attic_air_c", "attic_air_f", "hysteresis_k", "poa_south_w_m2",
                                   "ceiling_heat_gain_w", "ceiling_heat_gain_btu_h", "fan_flow_m3_s", "fan_flow_cfm",
                                   "attic_pressure_pa", "attic_pressure_in_wc", "wind_speed_m_s", "fan_energy_kwh",
                                   "fan_run_hours")] == [3, 3, 3, 1, 1, 1, 4, 1, 3, 5, 2, 4, 4]
+
+
+def test_readme_states_the_decimals_the_files_are_written_with():
+    import re
+    from pathlib import Path
+
+    readme = (Path(__file__).resolve().parent.parent / "README.md").read_text()
+    table = readme.split("| column ending | what | written to |", 1)[1].split("\n\n", 1)[0]
+    rows = [r.split("|")[1:4] for r in table.strip().splitlines()[1:]]
+    assert len(rows) == 7
+    checked = 0
+    for endings, _, written in rows:
+        groups = [re.findall(r"`(_[a-z0-9_]+)`", g) for g in endings.split(" / ")]
+        places = [int(re.match(r"\s*(\d+)", part).group(1)) for part in written.split(" / ")]
+        if endings.strip().startswith("anything else"):
+            groups, places = [groups[0]], [places[0]]
+        assert len(groups) == len(places), endings
+        for names, want in zip(groups, places):
+            for ending in names:
+                assert decimals("x" + ending) == want, ending
+                checked += 1
+    assert checked == 15
 
 
 def test_round_significant_gives_the_double_of_the_decimal_text():

@@ -30,8 +30,9 @@ DEFAULT_DECIMALS = 4
 SIGNIFICANT = {"airflow_mass_residual": 2}
 #: Rows converted and written at a time (bounded memory: a chunk's text, not the file's).
 CHUNK_ROWS = 8192
-#: Rows of a Parquet row group (fewer, larger groups write faster and compress better than CSV's chunks).
-PARQUET_ROWS = 65536
+#: Rows of a Parquet row group: the demo year written in 8192-row groups took 1.3 s for 56 MB, in 32768-row
+#: groups 1.1 s for 48 MB, in 65536-row groups 1.0 s for 44 MB with some 20 MB more resident (measured side by side).
+PARQUET_ROWS = 32768
 
 
 def decimals(name: str) -> int:
