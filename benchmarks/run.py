@@ -24,8 +24,10 @@ Figures:
 The fast year and the summer runs are timed --repeat times (default 3) and the best is reported
 (annual_fast_runs_s lists every run: wall, solver, with-fan year); the reference year and the sweep run
 once; the end-to-end commands run --repeat times each, interleaved, best reported (every run listed in
-end_to_end_runs). JSON keys: run_year_end_to_end_s, run_year_parquet_s, run_day_warm_s, run_year_peak_mb,
-run_year_parquet_peak_mb, run_day_peak_mb, import_baseline_mb, first_run_fresh_s, end_to_end_runs,
+end_to_end_runs as [wall s, peak MB, processor s]). JSON keys: run_year_end_to_end_s, run_year_parquet_s,
+run_day_warm_s, run_year_peak_mb, run_year_parquet_peak_mb, run_day_peak_mb, import_baseline_mb,
+first_run_fresh_s, their processor times run_year_cpu_s, run_year_parquet_cpu_s, run_day_cpu_s,
+first_run_fresh_cpu_s, end_to_end_runs,
 annual_fast_s, annual_reference_s, speedup, annual_fast_solver_s, annual_fast_with_fan_s, annual_fast_runs_s,
 annual_reference_solver_s, first_use_s, summer_92d_s, vented_summer_92d_s, sweep_points, sweep_days,
 sweep_points_per_s, help_s, peak_mb, plus the machine (machine, cpu, memory_gb, load_average, commit,
@@ -82,9 +84,10 @@ def machine() -> dict:
             "atticsim": source, "commit": commit, "date": datetime.date.today().isoformat()}
 
 
-def fresh_process(args, env=None) -> tuple[float, float]:
-    """(wall time [s], peak resident memory [MB]) of ``python args...`` in a fresh process; output discarded,
-    its error output shown if it fails."""
+def fresh_process(args, env=None) -> tuple[float, float, float]:
+    """(wall time [s], peak resident memory [MB], processor time [s]: user + system) of ``python args...`` in a
+    fresh process; output discarded, its error output shown if it fails. On a machine busy with other work the
+    wall time stretches and the processor time much less: on an idle one the wall time comes close to it."""
     with tempfile.TemporaryFile() as err:
         t0 = time.perf_counter()
         proc = subprocess.Popen([sys.executable, *args], stdout=subprocess.DEVNULL, stderr=err, env=env)
@@ -94,10 +97,10 @@ def fresh_process(args, env=None) -> tuple[float, float]:
         if proc.returncode:
             err.seek(0)
             raise RuntimeError(f"{' '.join(args)}: exit {proc.returncode}: {err.read().decode()[-2000:]}")
-    return wall, usage.ru_maxrss / 1024.0  # kB on Linux
+    return wall, usage.ru_maxrss / 1024.0, usage.ru_utime + usage.ru_stime  # ru_maxrss in kB on Linux
 
 
-def atticsim_command(*args, env=None) -> tuple[float, float]:
+def atticsim_command(*args, env=None) -> tuple[float, float, float]:
     """:func:`fresh_process` of ``atticsim ARGS`` (through the interpreter running this script)."""
     return fresh_process(["-m", "atticsim.cli.main", *args], env=env)
 
@@ -124,16 +127,20 @@ def end_to_end(repeat: int, parquet: bool = True) -> dict:
         for name in ("ATTICSIM_CACHE_DIR", "NUMBA_CACHE_DIR"):
             fresh[name] = os.path.join(out, "empty-" + name.lower())
             os.mkdir(fresh[name])
-        first, _ = atticsim_command(*day, "--out", os.path.join(out, "fresh"), env={**os.environ, **fresh})
+        first = atticsim_command(*day, "--out", os.path.join(out, "fresh"), env={**os.environ, **fresh})
     finally:
         shutil.rmtree(out, ignore_errors=True)
-    fastest = {k: min(w for w, _ in v) for k, v in runs.items()}  # the least disturbed run
-    lowest = {k: min(p for _, p in v) for k, v in runs.items()}
+    fastest = {k: min(w for w, _, _ in v) for k, v in runs.items()}  # the least disturbed run
+    lowest = {k: min(p for _, p, _ in v) for k, v in runs.items()}
+    cpu = {k: min(c for _, _, c in v) for k, v in runs.items()}
     return {"run_year_end_to_end_s": fastest["year_csv"], "run_year_parquet_s": fastest.get("year_parquet"),
             "run_day_warm_s": fastest["day"], "run_year_peak_mb": lowest["year_csv"],
             "run_year_parquet_peak_mb": lowest.get("year_parquet"), "run_day_peak_mb": lowest["day"],
-            "import_baseline_mb": min(baseline), "first_run_fresh_s": first,
-            "end_to_end_runs": {k: [[round(w, 2), round(p, 1)] for w, p in v] for k, v in runs.items()}}
+            "import_baseline_mb": min(baseline), "first_run_fresh_s": first[0],
+            "run_year_cpu_s": cpu["year_csv"], "run_year_parquet_cpu_s": cpu.get("year_parquet"),
+            "run_day_cpu_s": cpu["day"], "first_run_fresh_cpu_s": first[2],
+            "end_to_end_runs": {k: [[round(w, 2), round(p, 1), round(c, 2)] for w, p, c in v]
+                                for k, v in runs.items()}}
 
 
 def timed_simulate(solver: str, start: str, end: str) -> dict:

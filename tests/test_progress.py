@@ -109,3 +109,20 @@ def test_run_says_no_stages_into_a_pipe(tmp_path):
                                  "--set", "simulation.spinup_days=1"])
     assert r.exit_code == 0, r.output
     assert "atticsim: simulating" not in r.output and " ... 0." not in r.output
+
+
+def test_design_day_tells_each_try_and_writes_parquet_on_request(tmp_path, demo):
+    from atticsim.pipeline import design_day
+
+    said = []
+    r = design_day(demo, "2025-07-21", 35.0, 9.0, dew_point=24.0, progress=said.append)
+    tries = [s for s in said if s.startswith("the design day after")]
+    assert tries[0] == "the design day after 2 repeated days, with and without the fan"
+    assert len(tries) == {2: 1, 4: 2, 8: 3, 16: 4, 32: 5, 64: 6}[r.summary["spinup_days_used"]]
+    assert said[-1] == "temperatures, flows and the day's figures"
+    out = tmp_path / "dd"
+    res = CliRunner().invoke(cli, ["designday", "--date", "2025-07-21", "--tmax", "95degF", "--range", "18degF",
+                                   "--format", "parquet", "--out", str(out)])
+    assert res.exit_code == 0, res.output
+    assert (out / "timeseries.parquet").is_file() and not (out / "timeseries.csv").exists()
+    assert "atticsim: the design day after" not in res.output  # not a terminal: no stages
