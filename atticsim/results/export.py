@@ -12,10 +12,11 @@ from atticsim.results.output import write_json
 
 #: Decimals written for a column by its unit ending (the first ending that matches; the longer endings come
 #: before the ones they end with). Chosen by what the figure means, not by what the solver carries:
-#: temperatures to 0.001 K (an order below the fast solver's agreement with the reference, 0.005 K, and two
-#: below a thermistor's tolerance); heat rates to 0.1 W; irradiance to 0.1 W/m2 (field pyranometers read to
+#: temperatures to 0.001 K (below the fast solver's error tolerance, 0.005 K, and far below a thermistor's tenths
+#: of a kelvin); heat rates to 0.1 W; irradiance to 0.1 W/m2 (field pyranometers read to
 #: about 1 W/m2); wind to 0.01 m/s; air flows to 0.1 L/s (0.2 cfm); pressures to 0.001 Pa (field manometers
-#: resolve 0.1 Pa; an attic's natural-ventilation pressures are tenths of a pascal). Common practice, no source.
+#: resolve 0.1 Pa; an attic's natural-ventilation pressures are tenths of a pascal). Common practice, no source;
+#: the instruments' resolutions are from memory.
 DECIMALS = (
     ("_w_m2", 1), ("_btu_h_ft2", 2),
     ("_m3_s", 4), ("_m3s", 4), ("_cfm", 1),
