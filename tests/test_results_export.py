@@ -229,3 +229,19 @@ def test_run_writes_parquet_on_request_and_the_csv_matches_the_result(tmp_path):
     from atticsim.results.compare import read_run_folder
 
     assert read_run_folder(tmp_path / "pq").series_file == "timeseries.parquet"
+
+
+def test_every_chunk_of_a_column_has_one_type(tmp_path):
+    # a column whose only huge value (a model gone wrong) sits in its last chunk, a text column missing in its
+    # first chunk: both written whole, in one type throughout (chunks of 8192 rows)
+    n = 20000
+    huge = np.full(n, 1.5)
+    huge[-1] = 1e300
+    words = pd.Series([None] * 10000 + ["on"] * (n - 10000), dtype=object)
+    frame = pd.DataFrame({"ceiling_heat_gain_w": huge, "fan": words})
+    write_csv(frame, tmp_path / "t.csv")
+    write_parquet(frame, tmp_path / "t.parquet", index=False)
+    rows = _cells(tmp_path / "t.csv")
+    assert len(rows) == n + 1 and rows[1] == ["1.5", ""] and rows[-1] == ["1e+300", "on"]
+    back = pd.read_parquet(tmp_path / "t.parquet")
+    assert back["ceiling_heat_gain_w"].iloc[-1] == 1e300 and back["fan"].iloc[-1] == "on"

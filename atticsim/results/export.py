@@ -111,27 +111,55 @@ def _decimal_type(places: int):
     return pa.decimal64(18, places) if hasattr(pa, "decimal64") else pa.decimal128(38, places)
 
 
-def _arrow_column(name: str, values, for_text: bool, time_unit: str):
-    """One column as an Arrow array: a number rounded to its decimals once, as a count of its last decimal's
-    unit, then written from that count (for text a fixed-point decimal, so that 21.5 is written 21.500; for
-    Parquet the double nearest to that decimal); times as ISO text for CSV; the rest as it is."""
+def _plan(name: str, values):
+    """How a whole column is converted, decided once so that every chunk has the same type: ``("time",)``,
+    ``("bool",)``, ``("fixed", places)`` (a number to its decimals), ``("significant", digits)``,
+    ``("double",)`` (a number too large for 18 digits: a model gone wrong, written as it is) or
+    ``("other", arrow type)``."""
     import numpy as np
     import pandas as pd
     import pyarrow as pa
-    import pyarrow.compute as pc
 
     if pd.api.types.is_datetime64_any_dtype(values):
-        return arrow_times(values, time_unit) if for_text else pa.array(values)
+        return ("time",)
     arr = values.to_numpy() if hasattr(values, "to_numpy") else np.asarray(values)
     if arr.dtype.kind == "b":
-        return pa.array(np.where(arr, "True", "False"), type=pa.string()) if for_text else pa.array(arr)
+        return ("bool",)
     if arr.dtype.kind != "f":
-        return pa.array(values, from_pandas=True)
+        return ("other", pa.array(values, from_pandas=True).type)
+    if name in SIGNIFICANT:
+        return ("significant", SIGNIFICANT[name])
+    places = decimals(name)
+    finite = np.abs(arr[np.isfinite(arr)])
+    if finite.size and float(finite.max()) * 10.0 ** places >= _MAX_UNITS:
+        return ("double",)
+    return ("fixed", places)
+
+
+def _arrow_column(plan, values, for_text: bool, time_unit: str):
+    """A chunk of one column as an Arrow array, by its :func:`_plan`: a number rounded to its decimals once, as a
+    count of its last decimal's unit, then written from that count (for text a fixed-point decimal, so that 21.5
+    is written 21.500; for Parquet the double nearest to that decimal); times as ISO text for CSV; the rest as
+    it is. Missing and infinite numbers become missing values."""
+    import numpy as np
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    how = plan[0]
+    if how == "time":
+        return arrow_times(values, time_unit) if for_text else pa.array(values)
+    if how == "other":
+        return pa.array(values, type=plan[1], from_pandas=True)
+    arr = values.to_numpy() if hasattr(values, "to_numpy") else np.asarray(values)
+    if how == "bool":
+        return pa.array(np.where(arr, "True", "False"), type=pa.string()) if for_text else pa.array(arr)
     bad = ~np.isfinite(arr)
     mask = bad if bad.any() else None
-    if name in SIGNIFICANT:
-        return pa.array(round_significant(arr, SIGNIFICANT[name]), mask=mask)
-    places = decimals(name)
+    if how == "significant":
+        return pa.array(round_significant(arr, plan[1]), mask=mask)
+    if how == "double":
+        return pa.array(arr, mask=mask)
+    places = plan[1]
     scaled = arr * 10.0 ** places
     units = np.rint(scaled)
     if mask is not None:
@@ -139,8 +167,6 @@ def _arrow_column(name: str, values, for_text: bool, time_unit: str):
     ties = np.flatnonzero(np.abs(scaled - units) == 0.5)  # the product rounded onto a half: printf decides
     if ties.size:
         units[ties] = [float(format(v, f".{places}f").replace(".", "")) for v in arr[ties]]
-    if np.any(np.abs(units) >= _MAX_UNITS):
-        return pa.array(arr, mask=mask)
     if not for_text:
         return pa.array(units / 10.0 ** places, mask=mask)
     counts = pa.array(units.astype(np.int64), mask=mask)
@@ -151,7 +177,7 @@ def _arrow_column(name: str, values, for_text: bool, time_unit: str):
 
 
 def _table_columns(frame, index: bool):
-    """(names, column getters) of a frame, its index first when ``index``."""
+    """(names, columns) of a frame, its index first when ``index``."""
     names, cols = [], []
     if index:
         names.append(frame.index.name or "index")
@@ -168,10 +194,11 @@ def _batches(frame, index: bool, for_text: bool, time_unit: str, rows: int | Non
 
     rows = rows or CHUNK_ROWS
     names, cols = _table_columns(frame, index)
+    plans = [_plan(name, col) for name, col in zip(names, cols)]
     n = len(frame)
     for a in range(0, max(n, 1), rows):
         b = min(n, a + rows)
-        arrays = [_arrow_column(name, col[a:b], for_text, time_unit) for name, col in zip(names, cols)]
+        arrays = [_arrow_column(plan, col[a:b], for_text, time_unit) for plan, col in zip(plans, cols)]
         yield pa.RecordBatch.from_arrays(arrays, names=names)
 
 
@@ -192,7 +219,6 @@ def write_csv(frame, path, index: bool = False, time_unit: str = "s") -> None:
     time_unit : {"s", "us"}
         Times to whole seconds or to microseconds.
     """
-    import pyarrow as pa
     import pyarrow.csv as pcsv
 
     names, cols = _table_columns(frame, index)
@@ -212,9 +238,8 @@ def write_csv(frame, path, index: bool = False, time_unit: str = "s") -> None:
 def write_parquet(frame, path, index: bool = True) -> None:
     """Write a table as Parquet (zstd): the same columns and rounding as :func:`write_csv`, with their types
     (times as timestamps in their time zone, the fan state as an integer) kept."""
-    import pyarrow.parquet as pq
-
     import pyarrow as pa
+    import pyarrow.parquet as pq
 
     batches = _batches(frame, index, False, "s", rows=PARQUET_ROWS)
     first = next(batches)
