@@ -168,9 +168,9 @@ def model_notes(scenario) -> list[str]:
     return notes + scenario.roof.optics()[1]
 
 
-def _say(progress, text: str) -> None:
-    if progress is not None:
-        progress(text)
+def _say(progress, stage: str) -> None:
+    if progress is not None and stage:
+        progress(stage)
 
 
 def period_words(period) -> str:
@@ -203,8 +203,9 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         to follow a logged fan state; its instants on the forcing's clock, seconds from
         ``RawRuns.forcing.times[0]``; or a log made with ``LoggedFan.at_instants``, which this puts on it).
     progress : callable, optional
-        ``progress(text)`` is called as each stage begins ("simulating 2025-07-01 to 2025-07-07 with the
-        fan", ...): :class:`atticsim.progress.Stages` shows them.
+        ``progress(stage)`` is called with each stage's words as it begins ("simulating 2025-07-01 to 2025-07-07
+        with the fan", ...); ``progress(stage, fraction)`` gives the share of the stage done [0-1] where it is
+        known. :class:`atticsim.progress.Stages` shows both.
     """
     if weather is None:
         _say(progress, "reading the weather")
@@ -232,24 +233,25 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
 
     no_fan_scenario = scenario.model_copy(update={"fan": scenario.fan.model_copy(update={"enabled": False})})
 
-    def one(enabled: bool, outputs=output_times):
+    words = period_words(period)
+
+    def one(enabled: bool, outputs=output_times, stage=""):
         net = network if enabled else build_network(no_fan_scenario, pressure=pressure)
         ctl = controller if enabled else None
+        _say(progress, stage)
         y_start = _spin_up(net, forcing, ctl, period, y0.copy(), sim.spinup_days, sim)
         run = integrate(net, forcing, ctl, period.t_start, period.t_end, y_start, outputs, sim)
         return run, y_start
 
-    words = period_words(period)
-    _say(progress, f"simulating {words} " + ("with the fan" if scenario.fan.enabled else "(fan disabled)"))
-    with_fan, y_fan = one(scenario.fan.enabled)
+    with_fan, y_fan = one(scenario.fan.enabled, output_times,
+                          f"simulating {words} " + ("with the fan" if scenario.fan.enabled else "(fan disabled)"))
     no_fan_outputs = no_fan_output_times(output_times, period, forcing, sim)
     if include_no_fan and reuse_no_fan:
         key = _no_fan_key(no_fan_scenario, frame, period, pressure)
         if key not in _NO_FAN_RUNS:
-            _say(progress, f"simulating {words} without the fan")
             while len(_NO_FAN_RUNS) >= _NO_FAN_KEEP:
                 _NO_FAN_RUNS.pop(next(iter(_NO_FAN_RUNS)))
-            run, y_run = one(False, no_fan_outputs)
+            run, y_run = one(False, no_fan_outputs, f"simulating {words} without the fan")
             for array in (run.t, run.y, run.fan, run.y_end, y_run):
                 array.setflags(write=False)  # shared with every caller: read-only, so none can change it
             _NO_FAN_RUNS[key] = (run, y_run)
@@ -258,8 +260,7 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         without_fan = dataclasses.replace(kept, events=list(kept.events), air_updates=list(kept.air_updates),
                                           notes=list(kept.notes))
     elif include_no_fan:
-        _say(progress, f"simulating {words} without the fan")
-        without_fan, y_nofan = one(False, no_fan_outputs)
+        without_fan, y_nofan = one(False, no_fan_outputs, f"simulating {words} without the fan")
     else:
         without_fan, y_nofan = None, None
     notes = (list(getattr(meta, "notes", [])) + list(forcing.notes) + model_notes(scenario) + with_fan.notes

@@ -89,9 +89,10 @@ class Progress:
 class Stages:
     """The stages of a command, each on its own line with the time it took, on a terminal only.
 
-    Call it with a stage's words to begin that stage (ending the one before); :meth:`part` names the part of
-    the stage under way (shown while it runs: ``writing the files: timeseries.csv``); :meth:`close` ends the
-    last stage. While a stage runs, its line shows the seconds elapsed, refreshed every ``tick`` seconds by a
+    Call it with a stage's words to begin that stage (ending the one before), and again with the same words
+    and the share of it done, ``stage(words, 0.4)``, where that is known (shown as ``40 %`` while it runs);
+    :meth:`part` names the part of the stage under way (shown while it runs: ``writing the files:
+    timeseries.csv``); :meth:`close` ends the last stage. While a stage runs, its line shows the seconds elapsed, refreshed every ``tick`` seconds by a
     background thread, so a long stage (a year with the reference solver) is seen to be alive; a finished
     stage keeps its line with the time it took::
 
@@ -122,11 +123,14 @@ class Stages:
         """Whether anything is shown (the stream is a terminal)."""
         return self.stream is not None
 
-    def __call__(self, text: str) -> None:
+    def __call__(self, text: str, fraction: float | None = None) -> None:
         now = time.perf_counter()
         with self._lock:
-            self._finish(now)
-            self.text, self.detail, self.t_stage = text, "", now
+            if text != self.text:
+                self._finish(now)
+                self.text, self.detail, self.t_stage = text, "", now
+            if fraction is not None:
+                self.detail = f": {100.0 * min(max(fraction, 0.0), 1.0):.0f} %"
             self._show(now)
         if self.stream is not None and self.tick > 0 and self._thread is None:
             self._thread = threading.Thread(target=self._refresh, name="atticsim-stages", daemon=True)

@@ -42,6 +42,19 @@ def test_stages_on_a_terminal_keep_one_line_each_with_its_time():
                                                 "writing 2 files"]
 
 
+def test_a_stage_told_again_with_its_share_done_shows_it_and_stays_one_stage():
+    term = Terminal()
+    with Stages(term, tick=0) as stage:
+        stage("simulating 2025 with the fan")
+        stage("simulating 2025 with the fan", 0.25)
+        stage("simulating 2025 with the fan", 1.0)
+        stage("writing 8 files")
+    assert "\ratticsim: simulating 2025 with the fan: 25 % ... " in term.getvalue()
+    assert [re.sub(r"\d+\.\d s$", "T", line) for line in lines(term)] == [
+        "atticsim: simulating 2025 with the fan ... T", "atticsim: writing 8 files ... T"]
+    assert len(stage.times) == 2
+
+
 def test_stages_refresh_the_running_line_from_a_thread():
     import time
 
