@@ -125,6 +125,37 @@ def _forcing(frame, meta, scenario, t0, t1, source, reuse):
     return kept[1]
 
 
+def no_fan_output_times(output_times, period, forcing, simulation) -> np.ndarray:
+    """The output instants of the no-fan run: every m-th instant of the with-fan run's grid (and the period's
+    end), m as large as it goes while the run stays the same.
+
+    Nothing reads the no-fan run between the local midnights: the metrics take its books at the days' first
+    output instants, at the period's ends and at its end (:func:`atticsim.results.metrics.season_days`), so a
+    year's 84 MB of rows shrink to 4 MB. m is kept only where every local midnight of the period stays on the
+    coarser grid and the compiled solver's check step and segment length come out as on the full grid
+    (:func:`atticsim.hybrid.compiled.grid_steps`): its segments, and so the no-fan run, are then the same to
+    the last bit (a test holds the books equal). The reference solver keeps the full grid.
+    """
+    if simulation.solver != "fast" or output_times.size < 3:
+        return output_times
+    from atticsim.hybrid.compiled import grid_steps
+
+    step = float(output_times[1] - output_times[0])
+    fine = grid_steps(output_times, period.t_start)
+    if fine is None:
+        return output_times
+    midnight = (period.start.normalize() + pd.Timedelta(days=1) - forcing.times[0]).total_seconds()
+    for m in range(int(fine[2] // step), 1, -1):
+        coarse = step * m
+        if 86400.0 % coarse or (midnight - period.t_start) % coarse:
+            continue
+        times = np.append(output_times[:-1][::m], output_times[-1])
+        steps = grid_steps(times, period.t_start)
+        if steps is not None and steps[1:] == fine[1:]:
+            return times
+    return output_times
+
+
 def model_notes(scenario) -> list[str]:
     """What the model took from presets and geometry rather than from the scenario's own keys."""
     from atticsim.scenario.geometry import attic_geometry
@@ -136,6 +167,18 @@ def model_notes(scenario) -> list[str]:
         notes.append(f"air layers: the upper holds {g.upper_volume_share:.0%} of the air and faces "
                      f"{g.upper_deck_share:.0%} of the deck (interface {g.interface_height:.2f} m up)")
     return notes + scenario.roof.optics()[1]
+
+
+def _say(progress, stage: str) -> None:
+    if progress is not None and stage:
+        progress(stage)
+
+
+def period_words(period) -> str:
+    """The period as a person says it: ``2025-07-01 to 2025-07-07`` (the last day included)."""
+    last = period.end - pd.Timedelta(seconds=1)
+    first, last = period.start.strftime("%Y-%m-%d"), last.strftime("%Y-%m-%d")
+    return first if first == last else f"{first} to {last}"
 
 
 def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, months=None,
@@ -161,15 +204,18 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         to follow a logged fan state; its instants on the forcing's clock, seconds from
         ``RawRuns.forcing.times[0]``; or a log made with ``LoggedFan.at_instants``, which this puts on it).
     progress : callable, optional
-        ``progress(stage, fraction)`` with stage "with fan" or "without fan" and the share of that run done
-        [0-1], called about every simulated day (for a progress bar).
+        ``progress(stage)`` is called with each stage's words as it begins ("simulating 2025-07-01 to 2025-07-07
+        with the fan", ...); ``progress(stage, fraction)`` gives the share of the stage done [0-1] where it is
+        known. :class:`atticsim.progress.Stages` shows both.
     """
     if weather is None:
+        _say(progress, "reading the weather")
         weather = load_weather(scenario.weather.file, year=year)
     frame, meta = weather[0], weather[1]
     source = getattr(meta, "path", None) or scenario.weather.file
     start, end = resolve_period(frame, scenario, start, end, months, year)
     t0, t1 = period_bounds(frame, start, end, str(source), meta)
+    _say(progress, "sun on each roof plane and the sky")
     forcing = _forcing(frame, meta, scenario, t0, t1, str(source), reuse_no_fan)
     base = forcing.times[0]
     period = Period(t0, t1, (t0 - base).total_seconds(), (t1 - base).total_seconds())
@@ -188,24 +234,28 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
 
     no_fan_scenario = scenario.model_copy(update={"fan": scenario.fan.model_copy(update={"enabled": False})})
 
-    def one(enabled: bool):
+    words = period_words(period)
+
+    def one(enabled: bool, outputs=output_times, stage=""):
         net = network if enabled else build_network(no_fan_scenario, pressure=pressure)
         ctl = controller if enabled else None
+        _say(progress, stage)
         y_start = _spin_up(net, forcing, ctl, period, y0.copy(), sim.spinup_days, sim)
-        stage = "with fan" if enabled else "without fan"
-        report = (lambda fraction: progress(stage, fraction)) if progress is not None else None
-        run = integrate(net, forcing, ctl, period.t_start, period.t_end, y_start, output_times, sim, progress=report)
-        if progress is not None:
-            progress(stage, 1.0)
+        report = (lambda fraction: progress(stage, fraction)) if progress is not None and stage else None
+        run = integrate(net, forcing, ctl, period.t_start, period.t_end, y_start, outputs, sim, progress=report)
+        if report is not None:
+            report(1.0)
         return run, y_start
 
-    with_fan, y_fan = one(scenario.fan.enabled)
+    with_fan, y_fan = one(scenario.fan.enabled, output_times,
+                          f"simulating {words} " + ("with the fan" if scenario.fan.enabled else "(fan disabled)"))
+    no_fan_outputs = no_fan_output_times(output_times, period, forcing, sim)
     if include_no_fan and reuse_no_fan:
         key = _no_fan_key(no_fan_scenario, frame, period, pressure)
         if key not in _NO_FAN_RUNS:
             while len(_NO_FAN_RUNS) >= _NO_FAN_KEEP:
                 _NO_FAN_RUNS.pop(next(iter(_NO_FAN_RUNS)))
-            run, y_run = one(False)
+            run, y_run = one(False, no_fan_outputs, f"simulating {words} without the fan")
             for array in (run.t, run.y, run.fan, run.y_end, y_run):
                 array.setflags(write=False)  # shared with every caller: read-only, so none can change it
             _NO_FAN_RUNS[key] = (run, y_run)
@@ -214,7 +264,7 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
         without_fan = dataclasses.replace(kept, events=list(kept.events), air_updates=list(kept.air_updates),
                                           notes=list(kept.notes))
     elif include_no_fan:
-        without_fan, y_nofan = one(False)
+        without_fan, y_nofan = one(False, no_fan_outputs, f"simulating {words} without the fan")
     else:
         without_fan, y_nofan = None, None
     notes = (list(getattr(meta, "notes", [])) + list(forcing.notes) + model_notes(scenario) + with_fan.notes
@@ -224,7 +274,7 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
 
 
 def simulate(scenario, weather=None, start=None, end=None, months=None, year=None, reuse_no_fan=False,
-             summary_only=False):
+             summary_only=False, progress=None):
     """Simulate a scenario and compute its results (time series, events, summary, daily and monthly figures).
 
     Parameters
@@ -243,6 +293,8 @@ def simulate(scenario, weather=None, start=None, end=None, months=None, year=Non
     summary_only : bool
         Summary and events only: no daily or monthly figures, a time series of attic air and fan state
         (what a study point needs; see :func:`atticsim.results.metrics.build_result`).
+    progress : callable, optional
+        Called with each stage's words as it begins (see :func:`run_raw`).
 
     Returns
     -------
@@ -251,12 +303,13 @@ def simulate(scenario, weather=None, start=None, end=None, months=None, year=Non
     from atticsim.results.metrics import build_result
 
     raw = run_raw(scenario, weather, start, end, include_no_fan=True, months=months, year=year,
-                  reuse_no_fan=reuse_no_fan)
+                  reuse_no_fan=reuse_no_fan, progress=progress)
+    _say(progress, "temperatures, flows and the season's figures")
     return build_result(scenario, raw, summary_only=summary_only)
 
 
 def design_day(scenario, date, t_max, daily_range, dew_point=None, wind_speed=3.4, tolerance=0.05,
-               max_days=64):
+               max_days=64, progress=None):
     """Simulate a clear design day repeated until the attic's response is periodic.
 
     The day is repeated as spin-up (2, 4, 8, ... days) until every node temperature at the end of the
@@ -273,6 +326,8 @@ def design_day(scenario, date, t_max, daily_range, dew_point=None, wind_speed=3.
         Design maximum dry-bulb [degC] and daily range [K].
     dew_point, wind_speed : float, optional
         Dew point [degC] (default the day's minimum dry-bulb) and wind speed [m/s].
+    progress : callable, optional
+        Called with each stage's words as it begins (each try of the repeated days).
     """
     from atticsim.forcing.design_day import design_day_weather
     from atticsim.results.metrics import build_result
@@ -282,6 +337,7 @@ def design_day(scenario, date, t_max, daily_range, dew_point=None, wind_speed=3.
                                  daily_range, dew_point, wind_speed)
     days = 2
     while True:
+        _say(progress, f"the design day after {days} repeated days, with and without the fan")
         sim = scenario.simulation.model_copy(update={"spinup_days": days})
         sc = scenario.model_copy(update={"simulation": sim})
         raw = run_raw(sc, weather, start=date, end=date, include_no_fan=True)
@@ -292,6 +348,7 @@ def design_day(scenario, date, t_max, daily_range, dew_point=None, wind_speed=3.
         if residual < tolerance or days >= max_days:
             break
         days *= 2
+    _say(progress, "temperatures, flows and the day's figures")
     result = build_result(sc, raw)
     result.summary["periodic_residual_k"] = residual
     result.summary["spinup_days_used"] = days

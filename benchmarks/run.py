@@ -5,6 +5,11 @@
     python benchmarks/run.py --json           # the same figures as JSON
 
 Figures:
+- what the user waits for, each in a fresh process (subprocess) so that start-up, imports and first-touch
+  memory count: ``atticsim run --months year`` on the demo house with all its files (CSV time series), the
+  same with ``--format parquet``, a one-day ``run``, each with warm caches; the first one-day run with empty
+  compile and unit caches (``ATTICSIM_CACHE_DIR`` and ``NUMBA_CACHE_DIR`` pointing at empty folders); the
+  peak resident memory of the year's run and of a process that only imports what a run imports;
 - the compiled solver's first use in a fresh process (compiling on a new checkout, loading numba's
   on-disk cache after that), measured on a one-day run before anything else is timed;
 - a full-year run of the demo house at 1-minute output with exact events, fast and reference solver
@@ -18,9 +23,17 @@ Figures:
 - peak memory of this process (resident set).
 The fast year and the summer runs are timed --repeat times (default 3) and the best is reported
 (annual_fast_runs_s lists every run: wall, solver, with-fan year); the reference year and the sweep run
-once. JSON keys: annual_fast_s, annual_reference_s, speedup, annual_fast_solver_s, annual_fast_with_fan_s,
-annual_fast_runs_s, annual_reference_solver_s, first_use_s, summer_92d_s, vented_summer_92d_s, sweep_points,
-sweep_days, sweep_points_per_s, help_s, peak_mb, plus the machine.
+once; the end-to-end commands run --repeat times each, interleaved, best reported (every run listed in
+end_to_end_runs as [wall s, peak MB, processor s]). JSON keys: run_year_end_to_end_s, run_year_parquet_s,
+run_day_warm_s, run_year_peak_mb, run_year_parquet_peak_mb, run_day_peak_mb, import_baseline_mb,
+first_run_fresh_s, their processor times run_year_cpu_s, run_year_parquet_cpu_s, run_day_cpu_s,
+first_run_fresh_cpu_s, end_to_end_runs,
+annual_fast_s, annual_reference_s, speedup, annual_fast_solver_s, annual_fast_with_fan_s, annual_fast_runs_s,
+annual_reference_solver_s, first_use_s, summer_92d_s, vented_summer_92d_s, sweep_points, sweep_days,
+sweep_points_per_s, help_s, peak_mb, plus the machine (machine, cpu, memory_gb, load_average, commit,
+date).
+
+    python benchmarks/run.py --end-to-end --json   # only the end-to-end figures (a few minutes)
 """
 
 from __future__ import annotations
@@ -30,9 +43,104 @@ import json
 import os
 import platform
 import resource
+import shutil
 import subprocess
 import sys
+import tempfile
 import time
+
+#: What a run imports (the import baseline's process imports these and does nothing else).
+RUN_IMPORTS = ("atticsim.cli.main", "atticsim.cli.run", "atticsim.scenario", "atticsim.pipeline",
+               "atticsim.hybrid.compiled", "atticsim.forcing.solar", "atticsim.results.metrics",
+               "atticsim.results.export", "atticsim.report.html", "atticsim.report.plots", "atticsim.report.text",
+               "matplotlib.figure", "matplotlib.backends.backend_agg", "pvlib", "pyarrow.csv", "pyarrow.parquet")
+
+
+def machine() -> dict:
+    """The machine the figures come from: architecture, cores, processor, memory, load, commit and date."""
+    import datetime
+
+    cpu = platform.processor() or ""
+    try:
+        with open("/proc/cpuinfo") as fh:
+            cpu = next((line.split(":", 1)[1].strip() for line in fh if line.startswith("model name")), cpu)
+    except OSError:
+        pass
+    try:
+        memory = os.sysconf("SC_PAGE_SIZE") * os.sysconf("SC_PHYS_PAGES") / 2**30
+    except (ValueError, OSError, AttributeError):
+        memory = None
+    # the atticsim the commands run (PYTHONPATH may point at another checkout), and its commit
+    source = subprocess.run([sys.executable, "-c", "import atticsim, os; print(os.path.dirname(atticsim.__file__))"],
+                            capture_output=True, text=True).stdout.strip()
+    try:
+        commit = subprocess.run(["git", "-C", source, "describe", "--always", "--dirty"], capture_output=True,
+                                text=True, check=True).stdout.strip()
+    except (OSError, subprocess.CalledProcessError):
+        commit = "unknown (not a git checkout)"
+    return {"machine": f"{platform.machine()}, {os.cpu_count()} cores, Python {platform.python_version()}",
+            "platform": platform.platform(), "cpu": cpu, "memory_gb": round(memory, 1) if memory else None,
+            "load_average": [round(x, 2) for x in os.getloadavg()] if hasattr(os, "getloadavg") else None,
+            "atticsim": source, "commit": commit, "date": datetime.date.today().isoformat()}
+
+
+def fresh_process(args, env=None) -> tuple[float, float, float]:
+    """(wall time [s], peak resident memory [MB], processor time [s]: user + system) of ``python args...`` in a
+    fresh process; output discarded, its error output shown if it fails. On a machine busy with other work the
+    wall time stretches and the processor time much less: on an idle one the wall time comes close to it."""
+    with tempfile.TemporaryFile() as err:
+        t0 = time.perf_counter()
+        proc = subprocess.Popen([sys.executable, *args], stdout=subprocess.DEVNULL, stderr=err, env=env)
+        _, status, usage = os.wait4(proc.pid, 0)
+        wall = time.perf_counter() - t0
+        proc.returncode = os.waitstatus_to_exitcode(status)
+        if proc.returncode:
+            err.seek(0)
+            raise RuntimeError(f"{' '.join(args)}: exit {proc.returncode}: {err.read().decode()[-2000:]}")
+    return wall, usage.ru_maxrss / 1024.0, usage.ru_utime + usage.ru_stime  # ru_maxrss in kB on Linux
+
+
+def atticsim_command(*args, env=None) -> tuple[float, float, float]:
+    """:func:`fresh_process` of ``atticsim ARGS`` (through the interpreter running this script)."""
+    return fresh_process(["-m", "atticsim.cli.main", *args], env=env)
+
+
+def end_to_end(repeat: int, parquet: bool = True) -> dict:
+    """What the user waits for, in fresh processes: a year's run with all its files (CSV, then Parquet time
+    series), a one-day run (warm caches, interleaved, best of ``repeat``), the import baseline, and the first
+    one-day run with empty compile and unit caches."""
+    out = tempfile.mkdtemp(prefix="atticsim-bench-")
+    try:
+        day = ["run", "--start", "2025-07-01", "--end", "2025-07-01", "--force"]
+        atticsim_command(*day, "--out", os.path.join(out, "warm"))  # warm the caches first
+        kinds = {"year_csv": ["run", "--months", "year", "--force"],
+                 "year_parquet": ["run", "--months", "year", "--format", "parquet", "--force"],
+                 "day": day}
+        if not parquet:  # a checkout from before --format
+            kinds.pop("year_parquet")
+        runs = {k: [] for k in kinds}
+        for _ in range(max(1, repeat)):
+            for kind, args in kinds.items():
+                runs[kind].append(atticsim_command(*args, "--out", os.path.join(out, kind)))
+        baseline = [fresh_process(["-c", "import " + ", ".join(RUN_IMPORTS)])[1] for _ in range(max(1, repeat))]
+        fresh = {}
+        for name in ("ATTICSIM_CACHE_DIR", "NUMBA_CACHE_DIR"):
+            fresh[name] = os.path.join(out, "empty-" + name.lower())
+            os.mkdir(fresh[name])
+        first = atticsim_command(*day, "--out", os.path.join(out, "fresh"), env={**os.environ, **fresh})
+    finally:
+        shutil.rmtree(out, ignore_errors=True)
+    fastest = {k: min(w for w, _, _ in v) for k, v in runs.items()}  # the least disturbed run
+    lowest = {k: min(p for _, p, _ in v) for k, v in runs.items()}
+    cpu = {k: min(c for _, _, c in v) for k, v in runs.items()}
+    return {"run_year_end_to_end_s": fastest["year_csv"], "run_year_parquet_s": fastest.get("year_parquet"),
+            "run_day_warm_s": fastest["day"], "run_year_peak_mb": lowest["year_csv"],
+            "run_year_parquet_peak_mb": lowest.get("year_parquet"), "run_day_peak_mb": lowest["day"],
+            "import_baseline_mb": min(baseline), "first_run_fresh_s": first[0],
+            "run_year_cpu_s": cpu["year_csv"], "run_year_parquet_cpu_s": cpu.get("year_parquet"),
+            "run_day_cpu_s": cpu["day"], "first_run_fresh_cpu_s": first[2],
+            "end_to_end_runs": {k: [[round(w, 2), round(p, 1), round(c, 2)] for w, p, c in v]
+                                for k, v in runs.items()}}
 
 
 def timed_simulate(solver: str, start: str, end: str) -> dict:
@@ -41,32 +149,27 @@ def timed_simulate(solver: str, start: str, end: str) -> dict:
     import atticsim.pipeline as pipeline
 
     spent = {"solver": 0.0, "with_fan": 0.0}
-    original = pipeline.integrator
+    original = pipeline.integrate
 
-    def timing_integrator(sim):
-        step = original(sim)
+    def timed(*args):
+        t0 = time.perf_counter()
+        try:
+            return original(*args)
+        finally:
+            dt = time.perf_counter() - t0
+            spent["solver"] += dt
+            controller, t_start, t_end = args[2], args[3], args[4]
+            if controller is not None and t_end - t_start > 86400.0 + 1.0:  # the period, not a spin-up day
+                spent["with_fan"] += dt
 
-        def timed(*args):
-            t0 = time.perf_counter()
-            try:
-                return step(*args)
-            finally:
-                dt = time.perf_counter() - t0
-                spent["solver"] += dt
-                controller, t_start, t_end = args[2], args[3], args[4]
-                if controller is not None and t_end - t_start > 86400.0 + 1.0:  # the period, not a spin-up day
-                    spent["with_fan"] += dt
-
-        return timed
-
-    pipeline.integrator = timing_integrator
+    pipeline.integrate = timed
     try:
         sc = atticsim.demo_scenario([f'simulation.solver="{solver}"'])
         t0 = time.perf_counter()
         result = atticsim.simulate(sc, start=start, end=end)
         wall = time.perf_counter() - t0
     finally:
-        pipeline.integrator = original
+        pipeline.integrate = original
     return {"wall_s": wall, "solver_s": spent["solver"], "with_fan_s": spent["with_fan"],
             "fan_starts": result.summary["fan_starts"],
             "energy_balance_error_pct": result.summary["energy_balance_error_pct"]}
@@ -136,13 +239,21 @@ def main():
     ap.add_argument("--sweep-days", type=int, default=None)
     ap.add_argument("--skip-reference", action="store_true", help="skip the (slow) reference annual run")
     ap.add_argument("--repeat", type=int, default=3,
-                    help="runs of the fast year and of the summer run; the best is reported (default 3)")
+                    help="runs of the fast year, the summer run and each end-to-end command; the best is reported "
+                         "(default 3)")
+    ap.add_argument("--end-to-end", action="store_true", help="only the end-to-end figures (fresh processes)")
+    ap.add_argument("--no-parquet", action="store_true",
+                    help="leave out the Parquet run (a checkout from before --format, run through PYTHONPATH)")
     args = ap.parse_args()
     points = args.sweep_points or (20 if args.quick else 1000)
     days = args.sweep_days or (7 if args.quick else 92)
     workers = os.cpu_count() or 1
 
-    fig = {"machine": f"{platform.machine()}, {workers} cores, Python {platform.python_version()}"}
+    fig = machine()
+    fig.update(end_to_end(args.repeat, parquet=not args.no_parquet))
+    if args.end_to_end:
+        _print(fig, args.json)
+        return
     t0 = time.perf_counter()
     timed_simulate("fast", "2025-01-02", "2025-01-02")
     fig["first_use_s"] = time.perf_counter() - t0
@@ -164,7 +275,11 @@ def main():
     fig.update(sweep(points, days, workers))
     fig["help_s"] = help_time()
     fig["peak_mb"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
-    if args.json:
+    _print(fig, args.json)
+
+
+def _print(fig: dict, as_json: bool) -> None:
+    if as_json:
         print(json.dumps(fig, indent=2))
     else:
         for k, v in fig.items():

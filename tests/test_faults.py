@@ -231,8 +231,8 @@ def test_no_space_left_on_the_device_in_one_line(tmp_path, monkeypatch):
 
     real = export.result_writers
 
-    def full_disk(result, units="si"):
-        writers = real(result, units)
+    def full_disk(result, units="si", series_format="csv"):
+        writers = real(result, units, series_format)
 
         def no_space(path):
             Path(path).write_text("partial")

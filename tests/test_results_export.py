@@ -74,3 +74,174 @@ def test_run_with_ip_units_writes_ip_columns_in_every_file(tmp_path):
                                  "--set", "simulation.spinup_days=1"])
     assert r.exit_code == 0
     assert not any(c.endswith("_f") for c in pd.read_csv(out2 / "timeseries.csv", nrows=1).columns)
+
+
+# --- how tables are written: numbers to their decimals, ISO times with offsets, CSV as RFC 4180 -------------
+
+import csv  # noqa: E402
+
+import numpy as np  # noqa: E402
+
+from atticsim.results.export import (decimals, round_significant, write_csv,  # noqa: E402
+                                     write_parquet)
+
+
+def _cells(path):
+    with open(path, newline="") as fh:
+        return list(csv.reader(fh))
+
+
+def _printf(value, places):
+    """C's printf("%.*f") as Python's format gives it (the exact binary value correctly rounded, ties to even
+    on the exact value: C99 7.19.6.1 and IEEE 754), with -0 written 0 and no value written empty."""
+    if not np.isfinite(value):
+        return ""
+    text = format(value, f".{places}f")
+    return text.lstrip("-") if not text.strip("-0.") else text
+
+
+def test_csv_numbers_are_printf_text_to_each_columns_decimals(tmp_path):
+    rng = np.random.default_rng(7)
+    # random values, values on an exact half of the last decimal in decimal text but not in binary (0.0005 is
+    # 0.000500000000000000010...: printf rounds it up), exact binary halves (0.125 to 2 places: to even),
+    # negative zero, small negatives that round to zero, missing values and large heat rates
+    base = np.concatenate([rng.normal(0.0, 40.0, 5000), np.round(rng.normal(0.0, 40.0, 2000), 3) + 0.0005,
+                           [0.0005, -0.0005, 0.0015, 1.0005, 0.125, 2.675, -0.0, -0.0004, np.nan, np.inf,
+                            123456.789]])
+    frame = pd.DataFrame({"attic_air_c": base, "poa_south_w_m2": base * 10.0, "ceiling_heat_gain_w": base * 100.0,
+                          "fan_flow_m3_s": base / 100.0, "attic_pressure_pa": base / 10.0, "wind_speed_m_s": base,
+                          "fan_energy_kwh": base, "fan_on": (base > 0).astype(int)})
+    path = tmp_path / "t.csv"
+    write_csv(frame, path)
+    rows = _cells(path)
+    assert rows[0] == list(frame.columns)
+    for j, name in enumerate(frame.columns):
+        got = [r[j] for r in rows[1:]]
+        if name == "fan_on":
+            assert got == [str(v) for v in frame[name]]
+            continue
+        want = [_printf(v, decimals(name)) for v in frame[name]]
+        assert got == want, name
+
+
+def test_decimals_follow_the_unit_endings():
+    assert [decimals(n) for n in ("attic_air_c", "attic_air_f", "hysteresis_k", "poa_south_w_m2",
+                                  "ceiling_heat_gain_w", "ceiling_heat_gain_btu_h", "fan_flow_m3_s", "fan_flow_cfm",
+                                  "attic_pressure_pa", "attic_pressure_in_wc", "wind_speed_m_s", "fan_energy_kwh",
+                                  "fan_run_hours")] == [3, 3, 3, 1, 1, 1, 4, 1, 3, 5, 2, 4, 4]
+
+
+def test_readme_states_the_decimals_the_files_are_written_with():
+    import re
+    from pathlib import Path
+
+    readme = (Path(__file__).resolve().parent.parent / "README.md").read_text()
+    table = readme.split("| column ending | what | written to |", 1)[1].split("\n\n", 1)[0]
+    rows = [r.split("|")[1:4] for r in table.strip().splitlines()[1:]]
+    assert len(rows) == 7
+    checked = 0
+    for endings, _, written in rows:
+        groups = [re.findall(r"`(_[a-z0-9_]+)`", g) for g in endings.split(" / ")]
+        places = [int(re.match(r"\s*(\d+)", part).group(1)) for part in written.split(" / ")]
+        if endings.strip().startswith("anything else"):
+            groups, places = [groups[0]], [places[0]]
+        assert len(groups) == len(places), endings
+        for names, want in zip(groups, places):
+            for ending in names:
+                assert decimals("x" + ending) == want, ending
+                checked += 1
+    assert checked == 15
+
+
+def test_round_significant_gives_the_double_of_the_decimal_text():
+    got = round_significant([3.14159e-12, -2.71828e-9, 0.0, 987654.0, np.nan, 1.05e-3], 2)
+    assert got[0] == 3.1e-12 and got[1] == -2.7e-9 and got[2] == 0.0 and got[3] == 990000.0
+    assert np.isnan(got[4]) and got[5] in (1.0e-3, 1.1e-3)  # 1.05e-3 lies on a half: either neighbour
+
+
+@pytest.mark.parametrize("tz", ["Etc/GMT+6", "America/Chicago"])
+def test_times_are_iso_8601_with_their_utc_offset(tmp_path, tz):
+    # across a change of daylight saving time too (2025-03-09 02:00 in Chicago): each row in its own offset.
+    # The reference is the same text through pandas' strftime, with the offset as +hh:mm (ISO 8601 extended
+    # format; from memory)
+    idx = pd.date_range("2025-03-09 06:00", periods=300, freq="37s", tz="UTC").tz_convert(tz)
+    idx = (idx + pd.to_timedelta(np.arange(300) * 1234, unit="us")).rename("time")
+    assert len(set(idx.map(lambda t: t.utcoffset()))) == (2 if tz == "America/Chicago" else 1)
+    frame = pd.DataFrame({"attic_air_c": np.arange(300.0)}, index=idx)
+    for unit, fmt in (("s", "%Y-%m-%dT%H:%M:%S"), ("us", "%Y-%m-%dT%H:%M:%S.%f")):
+        path = tmp_path / f"{unit}.csv"
+        write_csv(frame, path, index=True, time_unit=unit)
+        rows = _cells(path)
+        assert rows[0] == ["time", "attic_air_c"]
+        text = idx.strftime(fmt + "%z")
+        want = [t[:-2] + ":" + t[-2:] for t in text]
+        assert [r[0] for r in rows[1:]] == want
+    # and a column of times (the events' time)
+    write_csv(frame.reset_index(), tmp_path / "col.csv", time_unit="us")
+    assert _cells(tmp_path / "col.csv")[1][0] == want[0]
+
+
+def test_strings_are_quoted_only_where_they_must_be(tmp_path):
+    plain = pd.DataFrame({"date": ["2025-07-01", "2025-07-02"], "season": ["cooling", "neither"],
+                          "fan_starts": [3, 0]})
+    write_csv(plain, tmp_path / "plain.csv")
+    assert (tmp_path / "plain.csv").read_text() == "date,season,fan_starts\n2025-07-01,cooling,3\n2025-07-02,neither,0\n"
+    # a vent named with a comma and a quote: RFC 4180 quoting, read back as written
+    odd = pd.DataFrame({'flow_ridge,"north"_m3_s': [0.1], "cause": ['run-on, then "off"']})
+    write_csv(odd, tmp_path / "odd.csv")
+    assert _cells(tmp_path / "odd.csv") == [list(odd.columns), ["0.1000", 'run-on, then "off"']]
+
+
+def test_parquet_holds_the_csv_numbers_with_types_and_zone(tmp_path):
+    import pyarrow.parquet as pq
+
+    rng = np.random.default_rng(3)
+    idx = pd.date_range("2025-07-01", periods=2000, freq="60s", tz="Etc/GMT+6", name="time")
+    frame = pd.DataFrame({"attic_air_c": rng.normal(40.0, 8.0, 2000), "fan_on": (rng.random(2000) > 0.5).astype(int),
+                          "ceiling_heat_gain_w": rng.normal(0.0, 300.0, 2000)}, index=idx)
+    write_parquet(frame, tmp_path / "t.parquet")
+    write_csv(frame, tmp_path / "t.csv", index=True)
+    table = pq.read_table(tmp_path / "t.parquet")
+    assert str(table.schema.field("time").type.tz) == "Etc/GMT+6"
+    assert str(table.schema.field("fan_on").type) == "int64"
+    back = table.to_pandas().set_index("time")
+    assert (back.index == idx).all()
+    rows = _cells(tmp_path / "t.csv")
+    for j, name in enumerate(frame.columns, start=1):
+        assert [float(r[j]) for r in rows[1:]] == back[name].tolist(), name
+
+
+def test_run_writes_parquet_on_request_and_the_csv_matches_the_result(tmp_path):
+    args = ["--start", "2025-07-01", "--end", "2025-07-01", "--set", "simulation.spinup_days=1"]
+    r = CliRunner().invoke(cli, ["run", "--out", str(tmp_path / "pq"), "--format", "parquet", *args])
+    assert r.exit_code == 0, r.output
+    assert (tmp_path / "pq" / "timeseries.parquet").is_file() and not (tmp_path / "pq" / "timeseries.csv").exists()
+    parquet = pd.read_parquet(tmp_path / "pq" / "timeseries.parquet")
+    r = CliRunner().invoke(cli, ["run", "--out", str(tmp_path / "csv"), *args])
+    assert r.exit_code == 0, r.output
+    text = pd.read_csv(tmp_path / "csv" / "timeseries.csv")
+    assert list(text.columns) == list(parquet.columns) and len(text) == len(parquet) == 1441
+    assert str(parquet["time"].dt.tz) == "Etc/GMT+6"  # the site's standard time, kept as a zone
+    assert (pd.to_datetime(text["time"], format="ISO8601") == parquet["time"]).all()
+    for name in text.columns[1:]:
+        assert text[name].to_numpy() == pytest.approx(parquet[name].to_numpy(), abs=1e-9), name
+    # and compare reads either
+    from atticsim.results.compare import read_run_folder
+
+    assert read_run_folder(tmp_path / "pq").series_file == "timeseries.parquet"
+
+
+def test_every_chunk_of_a_column_has_one_type(tmp_path):
+    # a column whose only huge value (a model gone wrong) sits in its last chunk, a text column missing in its
+    # first chunk: both written whole, in one type throughout (chunks of 8192 rows)
+    n = 20000
+    huge = np.full(n, 1.5)
+    huge[-1] = 1e300
+    words = pd.Series([None] * 10000 + ["on"] * (n - 10000), dtype=object)
+    frame = pd.DataFrame({"ceiling_heat_gain_w": huge, "fan": words})
+    write_csv(frame, tmp_path / "t.csv")
+    write_parquet(frame, tmp_path / "t.parquet", index=False)
+    rows = _cells(tmp_path / "t.csv")
+    assert len(rows) == n + 1 and rows[1] == ["1.5", ""] and rows[-1] == ["1e+300", "on"]
+    back = pd.read_parquet(tmp_path / "t.parquet")
+    assert back["ceiling_heat_gain_w"].iloc[-1] == 1e300 and back["fan"].iloc[-1] == "on"

@@ -3,6 +3,7 @@
 from dataclasses import replace
 
 import numpy as np
+import pandas as pd
 import pytest
 
 from atticsim.forcing.synthetic import DEMO_CLIMATES, synthetic_weather
@@ -213,6 +214,60 @@ def test_held_flows_of_a_stopped_fan_do_not_remember_when_it_stopped():
     i = int(np.flatnonzero(~run.fan)[-1])  # a row with the fan off, after its last switch
     net = raw.network
     x, u = run.y[:net.n_nodes, i], raw.forcing.at(run.t[i])
+    # the no-fan run's state held at the same instant (its output grid is coarser: its last update before then)
+    held = [state for t, state in nofan.air_updates if t <= run.t[i]][-1]
     with_fan_rates = net.rate(x, u, False, net.air_vector(run.air[i]))
-    no_fan_rates = net.rate(x, u, False, net.air_vector(nofan.air[i]))
+    no_fan_rates = net.rate(x, u, False, net.air_vector(held))
     np.testing.assert_array_equal(with_fan_rates, no_fan_rates)
+
+
+@pytest.mark.parametrize("scenario,output_step", [("heron_lane_bungalow", 60), ("starved_intakes", 60),
+                                                  ("heron_lane_bungalow", 300)])
+def test_no_fan_run_on_its_coarse_grid_is_the_full_grid_run(monkeypatch, scenario, output_step):
+    # The no-fan run keeps only what the metrics read (its books at the days' first instants and at the end),
+    # on every m-th output instant; the compiled solver's segments and check steps are the same as on the
+    # full grid, so the run is the same to the last bit (identity of the two runs, no outside reference needed)
+    from pathlib import Path
+
+    import atticsim.pipeline as pipeline
+    from atticsim.scenario import load_scenario
+
+    path = Path(__file__).resolve().parent.parent / "scenarios" / f"{scenario}.toml"
+    sc = load_scenario(path, ["simulation.spinup_days=1", f"simulation.output_step={output_step}"])
+    period = dict(start="2025-07-01", end="2025-07-03")
+    coarse = pipeline.run_raw(sc, **period)
+    monkeypatch.setattr(pipeline, "no_fan_output_times", lambda times, *args: times)
+    full = pipeline.run_raw(sc, **period)
+    c, f = coarse.without_fan, full.without_fan
+    assert f.t.size == coarse.with_fan.t.size == 3 * 86400 // output_step + 1
+    assert c.t.size == 3 * 86400 // 1200 + 1  # every 20 minutes
+    rows = np.searchsorted(f.t, c.t)
+    assert np.array_equal(f.t[rows], c.t)
+    np.testing.assert_array_equal(c.y, f.y[:, rows])
+    np.testing.assert_array_equal(c.y_end, f.y_end)
+    # and so the results are the same
+    from atticsim.results.metrics import build_result
+
+    a, b = (build_result(sc, raw) for raw in (coarse, full))
+    assert a.summary == b.summary
+    pd.testing.assert_frame_equal(a.daily, b.daily)
+
+
+def test_no_fan_grid_is_coarse_only_where_the_run_stays_the_same():
+    # midnight must stay on the coarse grid (a period from 00:10 allows 10 minutes, not 20); an output step of
+    # 15 min already gives the longest segment (no coarser grid keeps it); the reference solver keeps its grid
+    import atticsim.pipeline as pipeline
+
+    for overrides, start, want in ((["simulation.output_step=60"], "2025-07-01", 1200.0),
+                                   (["simulation.output_step=60"], "2025-07-01T00:10", 600.0),
+                                   (["simulation.output_step=900"], "2025-07-01", 900.0)):
+        sc = demo_scenario(["simulation.spinup_days=0"] + overrides)
+        raw = run_raw(sc, start=start, end="2025-07-02", include_no_fan=False)
+        times = pipeline.no_fan_output_times(raw.output_times, raw.period, raw.forcing, sc.simulation)
+        assert times[1] - times[0] == want, (overrides, start)
+        assert times[0] == raw.output_times[0] and times[-1] == raw.output_times[-1]
+    sc = demo_scenario(["simulation.spinup_days=0", 'simulation.solver="reference"'])
+    raw = run_raw(demo_scenario(["simulation.spinup_days=0"]), start="2025-07-01", end="2025-07-01",
+                  include_no_fan=False)
+    assert pipeline.no_fan_output_times(raw.output_times, raw.period, raw.forcing, sc.simulation) \
+        is raw.output_times

@@ -281,11 +281,11 @@ class FitProgress:
         self.stage, self.n_runs, self.rms, self.first_rms = "start", 0, None, None
 
     def line(self) -> str:
-        from atticsim.study.runner import _hms
+        from atticsim.progress import hms
 
         rms = "" if self.rms is None else f", misfit {self.rms:.3f} K RMS (start {self.first_rms:.3f} K)"
         where = f"{self.workers} processes" if self.workers > 1 else "this process"
-        return f"fit: {self.stage}, {self.n_runs} runs on {where}{rms}, elapsed {_hms(time.perf_counter() - self.t0)}"
+        return f"fit: {self.stage}, {self.n_runs} runs on {where}{rms}, elapsed {hms(time.perf_counter() - self.t0)}"
 
     def _emit(self):
         if self.stream is None:

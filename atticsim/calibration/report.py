@@ -139,13 +139,12 @@ def write_calibrated(result, scenario_path, overrides, path) -> Path:
 def series_csv(result, path, units: str = "si") -> None:
     """``series.csv``: at every stamp the readings, the model at the start and fitted values, the fan and whether
     the stamp counts in the fit."""
-    from atticsim.results.export import ip_table, iso_times
+    from atticsim.results.export import ip_table, write_csv
 
     s = ip_table(result.series, units).copy()
     s["in_fit"] = s["in_fit"].astype(int)
-    s.index = iso_times(s.index.to_series(), "%Y-%m-%dT%H:%M:%S").to_numpy()
     s.index.name = "time"
-    s.to_csv(path, float_format="%.4f")
+    write_csv(s, path, index=True)
 
 
 def fingerprint(result, scenario_path) -> dict:

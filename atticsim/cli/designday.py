@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import click
 
-from atticsim.cli.options import (ISO_DATE, Quantity, claim_out, force_option, out_option, scenario_argument,
-                                  set_option, units_option)
+from atticsim.cli.options import (ISO_DATE, TYPED, Quantity, claim_out, force_option, format_option, out_option,
+                                  scenario_argument, set_option, stages, units_option)
 
 
 @click.command()
@@ -22,8 +22,9 @@ from atticsim.cli.options import (ISO_DATE, Quantity, claim_out, force_option, o
               help="Wind speed, m/s or with a unit.")
 @set_option
 @units_option
+@format_option
 @force_option
-def designday(scenario, out, date, tmax, daily_range, dew, wind, overrides, units, force):
+def designday(scenario, out, date, tmax, daily_range, dew, wind, overrides, units, series_format, force):
     """Run SCENARIO's house on a clear design day at its site (ASHRAE daily temperature profile,
     clear-sky sun), repeated until the attic's response is periodic; writes the same files as run,
     report.html included."""
@@ -35,21 +36,26 @@ def designday(scenario, out, date, tmax, daily_range, dew, wind, overrides, unit
 
     claim = claim_out(out, force)  # fail before the run, not after
     sc = load_scenario(scenario, list(overrides))
-    result = design_day(sc, date, to_si(tmax, "temperature"), to_si(daily_range, "temperature_difference"),
-                        dew_point=to_si(dew, "temperature") if dew is not None else None,
-                        wind_speed=to_si(wind, "velocity"))
     from atticsim.cli.options import command_line, given_options
+    from atticsim.progress import announced
     from atticsim.report.html import report_writer, run_page
     from atticsim.report.inputs import scenario_inputs
 
-    ctx = click.get_current_context()
-    design = {"date": date, "maximum": tmax, "daily range": daily_range, "dew point": dew or "the day's minimum",
-              "wind": wind}
-    inputs = scenario_inputs(scenario, overrides, sc)
-    writers = result_writers(result, units)
-    writers["report.html"] = report_writer(lambda folder: run_page(
-        result, units, inputs, given_options(ctx), command_line(ctx), folder, kind="design day", design=design))
-    files = claim.write(writers)
+    with stages() as stage:
+        result = design_day(sc, date, to_si(tmax, "temperature"), to_si(daily_range, "temperature_difference"),
+                            dew_point=to_si(dew, "temperature") if dew is not None else None,
+                            wind_speed=to_si(wind, "velocity"), progress=stage)
+        ctx = click.get_current_context()
+        typed = ctx.meta.get(TYPED, {})  # the design values as the user wrote them
+        design = {"date": date, "maximum": typed.get("tmax", tmax), "daily range": typed.get("daily_range", daily_range),
+                  "dew point": typed.get("dew", dew) if dew is not None else "the day's minimum",
+                  "wind": typed.get("wind", wind)}
+        inputs = scenario_inputs(scenario, overrides, sc)
+        writers = result_writers(result, units, series_format)
+        writers["report.html"] = report_writer(lambda folder: run_page(
+            result, units, inputs, given_options(ctx), command_line(ctx), folder, kind="design day",
+            design=design))
+        files = claim.write(announced(writers, stage))
     click.echo(summary_text(result, units))
     click.echo(f"periodic to {result.summary['periodic_residual_k']:.2e} K after "
                f"{result.summary['spinup_days_used']} repeated days; wrote {len(files)} files to {out}", err=True)

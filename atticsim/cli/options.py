@@ -13,6 +13,10 @@ units_option = click.option("--units", type=click.Choice(["si", "ip"]), default=
                             help="Units of the terminal summary and the figures; ip also adds IP columns and keys (degF, Btu/h, cfm, kBtu...) beside the SI ones in the files.")
 weather_option = click.option("--weather", type=click.Path(dir_okay=False),
                               help="Weather file to use instead of the scenario's (or pvlib:FILE, demo:NAME).")
+format_option = click.option("--format", "series_format", type=click.Choice(["csv", "parquet"]), default="csv",
+                             show_default=True,
+                             help="File format of the time series: csv (any spreadsheet) or parquet (smaller, "
+                                  "faster, keeps the number types and the time zone; pandas, R, DuckDB read it).")
 period_options = [
     click.option("--start", help="First day (ISO date, local standard time)."),
     click.option("--end", help="Last day, inclusive (ISO date), or an end instant."),
@@ -145,3 +149,12 @@ def command_line(ctx) -> str:
     for name, value in given_options(ctx):
         parts += [value] if not name.startswith("-") else ([name] + ([value] if value else []))
     return " ".join(shlex.quote(p) if p != ctx.command_path else p for p in parts)
+
+
+def stages():
+    """The stages of a command, shown on stderr when it is a terminal (:class:`atticsim.progress.Stages`)."""
+    import sys
+
+    from atticsim.progress import Stages
+
+    return Stages(sys.stderr)

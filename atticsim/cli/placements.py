@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import sys
+
 import click
 
 from atticsim.cli.options import (claim_out, force_option, load_checked_weather, out_option, period_options,
@@ -36,19 +38,25 @@ def placements(scenario, out, only, start, end, months, weather, workers, overri
     names = [p.strip() for p in only.split(",")] if only else None
     load_checked_weather(sc, scenario or "<built-in demo house>", start, end, months)
     click.echo("running one simulation per placement ...", err=True)
-    results = run_placements(sc, names, start=start, end=end, months=months, workers=workers)
+    from atticsim.progress import Progress, is_terminal
+
+    bar = Progress(len(names or PLACEMENTS), 0, sys.stderr if is_terminal(sys.stderr) else None,
+                   label="placements", unit="runs")
+    bar.start()
+    results = run_placements(sc, names, start=start, end=end, months=months, workers=workers, on_done=bar.update)
+    bar.close()
     table = placement_table(results)
     findings = placement_findings(table, sc.simulation.short_cycle / 60.0)
     from atticsim.cli.options import command_line, given_options
     from atticsim.report.html import report_writer
     from atticsim.report.inputs import scenario_inputs
-    from atticsim.results.export import ip_table
+    from atticsim.results.export import ip_table, write_csv
     from atticsim.study.pages import placements_page
 
     ctx = click.get_current_context()
     inputs = scenario_inputs(scenario, overrides, sc)
     files = claim.write({
-        "placements.csv": lambda p: ip_table(table, units).to_csv(p, index=False, float_format="%.4f"),
+        "placements.csv": lambda p: write_csv(ip_table(table, units), p),
         "placements.json": lambda p: write_json(p, {"placements": ip_table(table, units).to_dict(orient="records"),
                                                     "findings": findings}),
         "placements.png": lambda p: plot_placements(results, p, units),

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 import click
 
-from atticsim.cli.options import (YEARS, claim_out, force_option, out_option, period_options, scenario_argument,
-                                  load_checked_weather, set_option, units_option, weather_option,
-                                  weather_override)
+from atticsim.cli.options import (YEARS, claim_out, force_option, format_option, load_checked_weather, out_option,
+                                  period_options, scenario_argument, set_option, stages, units_option,
+                                  weather_option, weather_override)
 
 
 @click.command()
@@ -21,12 +21,14 @@ from atticsim.cli.options import (YEARS, claim_out, force_option, out_option, pe
               help="fast: exact discretisation (default); reference: scipy LSODA with event functions.")
 @set_option
 @units_option
+@format_option
 @force_option
-def run(scenario, out, weather, start, end, months, year, solver, overrides, units, force):
+def run(scenario, out, weather, start, end, months, year, solver, overrides, units, series_format, force):
     """Simulate SCENARIO (a TOML file; the built-in demo house if omitted) and write results to --out.
 
-    Writes summary.json, daily.csv, monthly.csv, timeseries.csv, events.csv, temperatures.png,
-    monthly.png and report.html (one page to hand a client). --weather takes a file, pvlib:FILE (a typical-year file shipped with pvlib) or demo:NAME.
+    Writes summary.json, daily.csv, monthly.csv, timeseries.csv (or .parquet with --format parquet), events.csv,
+    temperatures.png, monthly.png and report.html (one page to hand a client). --weather takes a file, pvlib:FILE
+    (a typical-year file shipped with pvlib) or demo:NAME. On a terminal each stage is shown with its time.
     """
     from atticsim.scenario import load_scenario
 
@@ -47,16 +49,18 @@ def run(scenario, out, weather, start, end, months, year, solver, overrides, uni
     from atticsim.report.text import summary_text
     from atticsim.results.export import result_writers
     from atticsim.pipeline import simulate
+    from atticsim.progress import announced
 
     for w in sc.input_warnings:  # said before a long run too; the summary repeats them
         click.echo(f"atticsim: warning: {w}", err=True)
     click.echo(f"simulating {sc.house.name} ...", err=True)
-    result = simulate(sc, weather=weather_data, start=start, end=end, months=months, year=year)
-    ctx = click.get_current_context()
-    inputs = scenario_inputs(scenario, overrides, sc)
-    writers = result_writers(result, units)
-    writers["report.html"] = report_writer(lambda folder: run_page(
-        result, units, inputs, given_options(ctx), command_line(ctx), folder))
-    files = claim.write(writers)
+    with stages() as stage:
+        result = simulate(sc, weather=weather_data, start=start, end=end, months=months, year=year, progress=stage)
+        ctx = click.get_current_context()
+        inputs = scenario_inputs(scenario, overrides, sc)
+        writers = result_writers(result, units, series_format)
+        writers["report.html"] = report_writer(lambda folder: run_page(
+            result, units, inputs, given_options(ctx), command_line(ctx), folder))
+        files = claim.write(announced(writers, stage))
     click.echo(summary_text(result, units))
     click.echo(f"wrote {len(files)} files to {out}", err=True)

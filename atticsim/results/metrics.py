@@ -170,9 +170,8 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         ts = pd.DataFrame({"attic_air_c": attic_air, "fan_on": run.fan.astype(int)},
                           index=pd.DatetimeIndex(times, name="time"))
     else:
-        f = forcing.sample(run.t)
-        air = stack_states(run.air_runs, run.t.size)
-        ts = _timeseries(net, run, f, air, attic_air, times)
+        air = held_columns(run, FRAME_AIR)
+        ts = _timeseries(net, run, forcing, air, attic_air, times)
         sensor_local_air = ts["sensor_local_air_c"].to_numpy()
 
     # (as one float array: a list of floats is converted element by element)
@@ -202,8 +201,9 @@ def build_result(scenario, raw, summary_only=False) -> SimulationResult:
         "attic_air_max_c": float(np.max(attic_air)),
         "attic_air_mean_c": float(np.mean(attic_air)),
         "attic_upper_air_max_c": float(np.max(temps[net.i_upper])),
-        "outdoor_air_max_c": float(np.max(f[0])),
-        "deck_max_c": net.deck_underside_max(temps, f, run.fan, SimpleNamespace(**air)),
+        "outdoor_air_max_c": float(np.max(f[0] if summary_only else ts["outdoor_air_c"].to_numpy())),
+        "deck_max_c": (net.deck_underside_max(temps, f, run.fan, SimpleNamespace(**air)) if summary_only else
+                       float(max(np.max(ts[f"deck_underside_{p}_c"].to_numpy()) for p in net.plane_names))),
         "sensor_max_c": float(np.max(temps[idx["sensor"]])),
         "ceiling_heat_gain_kwh": books["ceiling_gain"] / J_PER_KWH,
         "ceiling_heat_gain_no_fan_kwh": books_nf["ceiling_gain"] / J_PER_KWH if books_nf else None,
@@ -248,22 +248,80 @@ def _start_figures(run, scenario, period) -> dict:
             "fan_start_energy_kwh": starts * each / J_PER_KWH}
 
 
-def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
-    """The full time-series frame of a run (states, forcing, air flows, heat rates at each output step)."""
+#: Held airflow quantities the full time series shows (and the airflow figures read) [m3/s, Pa, -].
+FRAME_AIR = ("outdoor_flow", "fan_flow", "ceiling_flow", "pressure_attic", "pressure_house", "residual")
+#: Output rows whose heat flows are formed at a time: the network's flow rows (26, and 4 per plane) for a
+#: year at once would be 140 MB, of which the time series shows twelve.
+FLOW_ROWS = 8192
+#: The network's flows the time series shows (by :data:`atticsim.network.kernel.FLOWS` name), and per plane.
+SERIES_FLOWS = ("solar", "sky", "ground", "exterior_convection", "ventilation", "ceiling_gain", "fan_electric",
+                "house_air_sensible", "house_air_latent", "sensor_local_air")
+SERIES_PLANE_FLOWS = ("roof_surface", "deck_underside")
+
+
+def _held_rows(run):
+    """(index of the held airflow state at each output row, the states) of a run."""
+    starts, states = run.air_runs
+    lengths = np.diff(np.append(np.asarray(starts, dtype=np.int64), run.t.size))
+    return np.repeat(np.arange(len(states), dtype=np.int64), lengths), states
+
+
+def held_columns(run, names) -> dict:
+    """The held airflow quantities ``names`` at each output row of a run (as
+    :func:`atticsim.airflow.model.stack_states` gives them), and ``path_flows`` (paths, rows) when the states
+    carry per-path flows."""
+    which, states = _held_rows(run)
+    out = {name: np.array([getattr(s, name) for s in states], dtype=float)[which] for name in names}
+    if states and states[0].path_flows:
+        out["path_flows"] = np.array([s.path_flows for s in states], dtype=float).T[:, which]
+    return out
+
+
+def series_flows(net, run, forcing, rows: int = FLOW_ROWS):
+    """The heat flows of :data:`SERIES_FLOWS` [W] (the sensor's local air [degC]) and of
+    :data:`SERIES_PLANE_FLOWS` per plane [degC] at each output row, formed ``rows`` rows at a time by
+    :meth:`atticsim.network.model.AtticNetwork.flows` (column by column, so the same numbers as at once)."""
+    which, states = _held_rows(run)
+    per_state = {name: np.array([getattr(s, name) for s in states], dtype=float) for name in AIR_ORDER}
+    temps, m = run.y[:net.n_nodes], run.t.size
+    out = {name: np.empty(m) for name in SERIES_FLOWS}
+    planes = {name: np.empty((net.n_planes, m)) for name in SERIES_PLANE_FLOWS}
+    for a in range(0, m, rows):
+        b = min(m, a + rows)
+        air = SimpleNamespace(**{name: v[which[a:b]] for name, v in per_state.items()})
+        q = net.flows(temps[:, a:b], forcing.sample(run.t[a:b]), run.fan[a:b], air)
+        for name, column in out.items():
+            column[a:b] = q[name]
+        for name, block in planes.items():
+            block[:, a:b] = q[name]
+    return out, planes
+
+
+def _timeseries(net, run, forcing, air, attic_air, times) -> pd.DataFrame:
+    """The full time-series frame of a run (states, forcing, air flows, heat rates at each output step).
+
+    Each column is built once and the frame holds it as it is (the node temperatures are rows of the run's
+    own states): a year of 1-minute rows is 4.2 MB a column, and no column is copied."""
     temps = run.y[:net.n_nodes]
     idx = net.index
-    q = net.flows(temps, f, run.fan, SimpleNamespace(**air))
+    q, qp = series_flows(net, run, forcing)
+    grid = forcing.seconds()
 
-    cols = {"outdoor_air_c": f[0], "sky_c": f[1] - KELVIN, "wind_speed_m_s": f[2]}
+    def channel(i):  # one forcing channel at the output instants (as Forcing.sample gives it)
+        return np.interp(run.t, grid, forcing.values[i])
+
+    sky = channel(1)
+    sky -= KELVIN
+    cols = {"outdoor_air_c": channel(0), "sky_c": sky, "wind_speed_m_s": channel(2)}
     for i, p in enumerate(net.plane_names):
-        cols[f"poa_{p}_w_m2"] = f[len(FORCING_BASE) + i]
+        cols[f"poa_{p}_w_m2"] = channel(len(FORCING_BASE) + i)
     cols["attic_air_c"] = attic_air
     for name, i in idx.items():
         if name != "air":
             cols[name + "_c"] = temps[i]
     for i, p in enumerate(net.plane_names):
-        cols[f"roof_surface_{p}_c"] = q["roof_surface"][i]
-        cols[f"deck_underside_{p}_c"] = q["deck_underside"][i]
+        cols[f"roof_surface_{p}_c"] = qp["roof_surface"][i]
+        cols[f"deck_underside_{p}_c"] = qp["deck_underside"][i]
     cols["sensor_local_air_c"] = q["sensor_local_air"]
     cols["fan_on"] = run.fan.astype(int)
     cols["outdoor_air_flow_m3_s"] = air["outdoor_flow"]
@@ -272,16 +330,21 @@ def _timeseries(net, run, f, air, attic_air, times) -> pd.DataFrame:
     cols["attic_pressure_pa"] = air["pressure_attic"]
     cols["house_pressure_pa"] = air["pressure_house"]
     for j, name in enumerate(net.airflow.path_names):
-        cols[f"flow_{name.replace(' ', '_')}_m3_s"] = air["path_flows"][:, j]
+        cols[f"flow_{name.replace(' ', '_')}_m3_s"] = air["path_flows"][j]
     cols["airflow_mass_residual"] = air["residual"]
     cols["solar_absorbed_w"] = q["solar"]
-    cols["roof_longwave_w"] = q["sky"] + q["ground"]
+    longwave = q["sky"]
+    longwave += q["ground"]
+    cols["roof_longwave_w"] = longwave
     cols["roof_convection_w"] = q["exterior_convection"]
     cols["ventilation_heat_w"] = q["ventilation"]
     cols["ceiling_heat_gain_w"] = q["ceiling_gain"]
     cols["fan_power_w"] = q["fan_electric"]
-    cols["house_air_load_w"] = q["house_air_sensible"] + q["house_air_latent"]
-    return pd.DataFrame(cols, index=pd.DatetimeIndex(times, name="time"))
+    load = q["house_air_sensible"]
+    load += q["house_air_latent"]
+    cols["house_air_load_w"] = load
+    # the columns as they are (rows of the run's states, of the flows and forcing sampled once): no copy
+    return pd.DataFrame(cols, index=pd.DatetimeIndex(times, name="time"), copy=False)
 
 
 def monthly_figures(daily: pd.DataFrame) -> pd.DataFrame:
@@ -399,15 +462,21 @@ def season_days(raw, scenario, times) -> pd.DataFrame | None:
     seasons = forcing.seasons if getattr(forcing, "seasons", None) is not None else \
         day_seasons(forcing.times, forcing.values[0], scenario.house)
 
-    def inc(run, book):
-        return np.diff(run.y[n + BOOKS.index(book)]) / J_PER_KWH
+    # a day's net flow is its book's change from the day's first output instant to the next day's (the last
+    # day's: to the period's end): the sum of the steps' increments, without forming them
+    days = pd.DatetimeIndex(times[:-1]).normalize()
+    first = np.flatnonzero(np.r_[True, days[1:] != days[:-1]])
+    t_edges = raw.with_fan.t[np.append(first, raw.with_fan.t.size - 1)]
 
-    start = pd.DatetimeIndex(times[:-1])
-    flows = pd.DataFrame({
-        "cf": inc(raw.with_fan, "ceiling_gain"), "cn": inc(nofan, "ceiling_gain"),
-        "sf": inc(raw.with_fan, "house_air_sensible"), "sn": inc(nofan, "house_air_sensible"),
-        "lf": inc(raw.with_fan, "house_air_latent"), "ln": inc(nofan, "house_air_latent")}, index=start)
-    d = flows.groupby(start.normalize()).sum()
+    def net(run, book):
+        # the no-fan run's output grid is coarser but holds these instants (pipeline.no_fan_output_times)
+        at = np.interp(t_edges, run.t, run.y[n + BOOKS.index(book)])
+        return np.diff(at) / J_PER_KWH
+
+    d = pd.DataFrame({
+        "cf": net(raw.with_fan, "ceiling_gain"), "cn": net(nofan, "ceiling_gain"),
+        "sf": net(raw.with_fan, "house_air_sensible"), "sn": net(nofan, "house_air_sensible"),
+        "lf": net(raw.with_fan, "house_air_latent"), "ln": net(nofan, "house_air_latent")}, index=days[first])
     code = seasons_at(d.index, seasons)
     cool, heat = code == COOLING, code == HEATING
     af, an = d["sf"] + d["lf"], d["sn"] + d["ln"]

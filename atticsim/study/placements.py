@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from concurrent.futures import as_completed
+
 import numpy as np
 import pandas as pd
 
@@ -21,8 +23,11 @@ def _one(args):
     return placement, build_result(sc, raw)
 
 
-def run_placements(scenario, placements=None, start=None, end=None, months=None, year=None, workers=1):
+def run_placements(scenario, placements=None, start=None, end=None, months=None, year=None, workers=1,
+                   on_done=None):
     """Run the scenario once per placement (fan under thermostat control; no no-fan run needed).
+
+    ``on_done()``, when given, is called as each placement's run finishes (a progress bar's ``update``).
 
     Returns
     -------
@@ -34,18 +39,27 @@ def run_placements(scenario, placements=None, start=None, end=None, months=None,
     if unknown:
         raise ValueError(f"--only: unknown placement(s) {', '.join(unknown)}; known: {', '.join(PLACEMENTS)}")
     jobs = [(scenario, p, start, end, months, year) for p in placements]
+    done = {}
     if workers > 1 and len(jobs) > 1:
         from atticsim.processes import process_pool
 
         pool = process_pool(min(workers, len(jobs)))  # workers end with this process
         try:
-            done = dict(pool.map(_one, jobs))
+            for fut in as_completed([pool.submit(_one, job) for job in jobs]):
+                name, result = fut.result()
+                done[name] = result
+                if on_done is not None:
+                    on_done()
         except BaseException:  # Ctrl-C, SIGTERM, a failed run: do not wait for the other placements
             pool.shutdown(wait=False, cancel_futures=True)
             raise
         pool.shutdown()
     else:
-        done = dict(map(_one, jobs))
+        for job in jobs:
+            name, result = _one(job)
+            done[name] = result
+            if on_done is not None:
+                on_done()
     return {p: done[p] for p in placements}
 
 

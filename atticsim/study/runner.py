@@ -331,57 +331,6 @@ class Journal:
             pass
 
 
-# --- progress -----------------------------------------------------------------------------------------
-
-def _hms(seconds: float) -> str:
-    seconds = max(0, int(round(seconds)))
-    return f"{seconds // 3600}:{seconds // 60 % 60:02d}:{seconds % 60:02d}"
-
-
-class Progress:
-    """Progress with an ETA on a text stream (stderr): updated in place on a terminal, else a line every ~5 %."""
-
-    def __init__(self, total: int, reused: int, stream=None, label: str = "sweep"):
-        self.total, self.reused, self.done, self.failed = total, reused, reused, 0
-        self.stream, self.label = stream, label
-        self.t0 = time.perf_counter()
-        self.tty = bool(stream is not None and getattr(stream, "isatty", lambda: False)())
-        self.every = max(1, (total - reused) // 20)
-
-    def line(self) -> str:
-        computed = self.done - self.reused
-        elapsed = time.perf_counter() - self.t0
-        left = self.total - self.done
-        eta = _hms(elapsed / computed * left) if computed else "?"
-        pct = 100.0 * self.done / self.total if self.total else 100.0
-        extra = f" ({self.reused} reused{f', {self.failed} failed' if self.failed else ''})" \
-            if self.reused or self.failed else ""
-        return f"{self.label}: {self.done}/{self.total} points{extra} {pct:3.0f}%  elapsed {_hms(elapsed)}  ETA {eta}"
-
-    def start(self) -> None:
-        if self.stream is not None:
-            self._emit()
-
-    def update(self, record: dict) -> None:
-        self.done += 1
-        self.failed += record.get("status") != "ok"
-        if self.stream is not None and (self.tty or (self.done - self.reused) % self.every == 0
-                                        or self.done == self.total):
-            self._emit()
-
-    def _emit(self) -> None:
-        if self.tty:
-            self.stream.write("\r" + self.line().ljust(79))
-        else:
-            self.stream.write(self.line() + "\n")
-        self.stream.flush()
-
-    def close(self) -> None:
-        if self.stream is not None and self.tty:
-            self.stream.write("\n")
-            self.stream.flush()
-
-
 # --- execution ----------------------------------------------------------------------------------------
 
 def versions() -> dict:
@@ -697,6 +646,8 @@ def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, for
         if close is not None:
             close()
         raise
+
+    from atticsim.progress import Progress
 
     bar = Progress(len(plan.points), reused, progress)
     bar.start()
