@@ -115,3 +115,13 @@ def check() -> None:
     except OSError:
         # a read-only place: numba then caches in its own user folder (or not at all); nothing to do
         pass
+
+
+def cold() -> bool:
+    """True when this install's compiled solver is not in the cache yet: its first use will compile it (a
+    command says so before it starts)."""
+    check()
+    where = folder()
+    roots = [where] if where is not None else [Path(os.environ["NUMBA_CACHE_DIR"])] if os.environ.get(
+        "NUMBA_CACHE_DIR") else [_ROOT / "hybrid" / "__pycache__"]
+    return not any(any(r.rglob("compiled.advance-*.nbi")) for r in roots if r.is_dir())

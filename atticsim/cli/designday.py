@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import click
 
-from atticsim.cli.options import (ISO_DATE, TYPED, Quantity, claim_out, force_option, format_option, out_option,
-                                  scenario_argument, set_option, stages, units_option)
+from atticsim.cli.options import (claim_out, force_option, format_option, ISO_DATE, out_option, Quantity,
+                                  say_if_compiling, scenario_argument, set_option, stages, TYPED, units_option)
 
 
 @click.command()
@@ -41,6 +41,7 @@ def designday(scenario, out, date, tmax, daily_range, dew, wind, overrides, unit
     from atticsim.report.html import report_writer, run_page
     from atticsim.report.inputs import scenario_inputs
 
+    say_if_compiling()
     with stages() as stage:
         result = design_day(sc, date, to_si(tmax, "temperature"), to_si(daily_range, "temperature_difference"),
                             dew_point=to_si(dew, "temperature") if dew is not None else None,

@@ -6,7 +6,7 @@ import sys
 
 import click
 
-from atticsim.cli.options import force_option, out_option, scenario_argument, set_option, units_option
+from atticsim.cli.options import force_option, out_option, say_if_compiling, scenario_argument, set_option, units_option
 
 
 def _duration_days(text):
@@ -70,6 +70,7 @@ def fit(scenario, measured, keys, bounds, weather, utc_offset, spinup, deck_plan
     from atticsim.cli.options import claim_out
 
     claim = claim_out(out, force)  # fail before the fit, not after
+    say_if_compiling()
     result = fit_measured(scenario, list(overrides), measured, [k.strip() for k in keys.split(",") if k.strip()],
                           bounds=list(bounds), weather=weather, utc_offset=utc_offset,
                           spinup_days=_duration_days(spinup), deck_plane=deck_plane, max_gap_s=_seconds(max_gap),

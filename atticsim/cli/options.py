@@ -81,6 +81,20 @@ class Quantity(click.ParamType):
         return x
 
 
+#: Measured first compile of the solver on the 2-core development machine [s] (benchmarks/RESULTS.md).
+COMPILE_SECONDS = 20
+
+
+def say_if_compiling() -> None:
+    """Say once, before a command's first simulation, that the solver is being compiled for this machine when
+    its cache is empty (after an install or an upgrade): the one slow run explained."""
+    from atticsim import jitcache
+
+    if jitcache.cold():
+        click.echo(f"atticsim: compiling the solver for this machine, once: about {COMPILE_SECONDS} s on a 2-core "
+                   f"machine (later runs load it from the cache)", err=True)
+
+
 def claim_out(out: str, force: bool, **kwargs):
     """Claim the --out folder before anything runs (atticsim.results.output.claim_output), released when the
     command ends: on failure or interruption what it created is removed."""

@@ -7,8 +7,8 @@ import sys
 import click
 
 from atticsim.cli.options import (claim_out, force_option, load_checked_weather, out_option, period_options,
-                                  scenario_argument, set_option, units_option, weather_option, weather_override,
-                                  workers_type)
+                                  say_if_compiling, scenario_argument, set_option, units_option, weather_option,
+                                  weather_override, workers_type)
 from atticsim.network.placement import PLACEMENTS
 
 
@@ -37,6 +37,7 @@ def placements(scenario, out, only, start, end, months, weather, workers, overri
     sc = load_scenario(scenario, list(overrides) + ([weather_override(weather)] if weather else []))
     names = [p.strip() for p in only.split(",")] if only else None
     load_checked_weather(sc, scenario or "<built-in demo house>", start, end, months)
+    say_if_compiling()
     click.echo("running one simulation per placement ...", err=True)
     from atticsim.progress import Progress, is_terminal
 

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 import click
 
-from atticsim.cli.options import (YEARS, claim_out, force_option, format_option, load_checked_weather, out_option,
-                                  period_options, scenario_argument, set_option, stages, units_option,
-                                  weather_option, weather_override)
+from atticsim.cli.options import (claim_out, force_option, format_option, load_checked_weather, out_option,
+                                  period_options, say_if_compiling, scenario_argument, set_option, stages, units_option,
+                                  weather_option, weather_override, YEARS)
 
 
 @click.command()
@@ -53,6 +53,7 @@ def run(scenario, out, weather, start, end, months, year, solver, overrides, uni
 
     for w in sc.input_warnings:  # said before a long run too; the summary repeats them
         click.echo(f"atticsim: warning: {w}", err=True)
+    say_if_compiling()
     click.echo(f"simulating {sc.house.name} ...", err=True)
     with stages() as stage:
         result = simulate(sc, weather=weather_data, start=start, end=end, months=months, year=year, progress=stage)

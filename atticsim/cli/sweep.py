@@ -7,8 +7,8 @@ from pathlib import Path
 
 import click
 
-from atticsim.cli.options import (force_option, out_option, period_options, scenario_argument, set_option,
-                                  weather_option, weather_override, workers_type)
+from atticsim.cli.options import (force_option, out_option, period_options, say_if_compiling, scenario_argument,
+                                  set_option, weather_option, weather_override, workers_type)
 
 
 @click.command()
@@ -88,6 +88,7 @@ def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, wea
     from atticsim.study.analysis import recommendation_text
     from atticsim.study.runner import run_study
 
+    say_if_compiling()
     outcome = run_study(study, out, workers=workers, scheduler=scheduler, resume=resume, force=force,
                         progress=sys.stderr, command={"sweep": click.get_current_context().params})
     from atticsim.cli.options import command_line, given_options

@@ -24,7 +24,7 @@ def validate(out, page, force):
     status 1 when a case comes out other than the page states (a new miss or an error), after writing."""
     import time
 
-    from atticsim.cli.options import claim_out, command_line
+    from atticsim.cli.options import claim_out, command_line, say_if_compiling
 
     if out is None and page is None:
         out = DEFAULT_OUT
@@ -45,6 +45,7 @@ def validate(out, page, force):
             click.echo(f"\r\033[K[{i}/{n}] {r.case.case_id} {r.case.name[:60]}", err=True, nl=False)
 
     start = time.perf_counter()
+    say_if_compiling()
     results = run_cases(progress=progress)
     seconds = time.perf_counter() - start
     if tty:
