@@ -151,10 +151,10 @@ def timed_simulate(solver: str, start: str, end: str) -> dict:
     spent = {"solver": 0.0, "with_fan": 0.0}
     original = pipeline.integrate
 
-    def timed(*args):
+    def timed(*args, **kwargs):
         t0 = time.perf_counter()
         try:
-            return original(*args)
+            return original(*args, **kwargs)
         finally:
             dt = time.perf_counter() - t0
             spent["solver"] += dt
