@@ -91,3 +91,19 @@ def test_a_heat_pump_puts_the_penalty_on_the_meter():
     assert s["heating_penalty_carrier"] == "electricity"
     assert s["net_benefit_kwh"] == pytest.approx(s["cooling_savings_kwh"] - s["cooling_air_cost_kwh"]
                                                  - s["fan_energy_kwh"] - s["heating_penalty_kwh"])
+
+
+def test_heating_warning_only_from_a_penalty_worth_acting_on():
+    """The winter warning is advice (switch the fan off for the winter), so it needs a penalty above the runs'
+    rounding-level differences: none at 0.14 kWh (this typical year's figure with the demo setpoints), one at
+    12 kWh; the words name the carrier. Threshold: HEATING_PENALTY_WARN_KWH (common practice, no source)."""
+    from atticsim.results.metrics import HEATING_PENALTY_WARN_KWH, season_warnings
+
+    sc = demo_scenario()
+    base = {"net_benefit_kwh": 5.0, "heating_penalty_carrier": "fuel", "days_heating": 40}
+    assert season_warnings({**base, "heating_penalty_kwh": 0.14}, sc) == []
+    assert season_warnings({**base, "heating_penalty_kwh": HEATING_PENALTY_WARN_KWH * 0.99}, sc) == []
+    (warning,) = season_warnings({**base, "heating_penalty_kwh": 12.0}, sc)
+    assert "adds 12.00 kWh of fuel" in warning and "winter" in warning
+    # no heated day in the period: nothing to switch off
+    assert season_warnings({**base, "heating_penalty_kwh": 12.0, "days_heating": 0}, sc) == []

@@ -554,8 +554,15 @@ def season_summary(parts, scenario, fan_energy_kwh: float) -> dict:
     return out
 
 
+#: The heating penalty [kWh of its carrier over the period] from which the run warns that the fan adds heating:
+#: below it the figure is the two runs' rounding-level differences on days the fan hardly runs, not advice
+#: (a threshold of practice, no source).
+HEATING_PENALTY_WARN_KWH = 1.0
+
+
 def season_warnings(summary: dict, scenario) -> list[str]:
-    """Warnings from the season books: the fan costs more electricity than it saves; it adds heating."""
+    """Warnings from the season books: the fan costs more electricity than it saves; it adds heating (from
+    :data:`HEATING_PENALTY_WARN_KWH`)."""
     out = []
     if not scenario.fan.enabled or summary.get("net_benefit_kwh") is None:
         return out
@@ -566,7 +573,7 @@ def season_warnings(summary: dict, scenario) -> list[str]:
         out.append(f"The fan costs more electricity than it saves over this period (net benefit {net:.2f} kWh at "
                    f"the meter, cooling COP {scenario.house.cooling_cop:g}{extra}); a lower-flow fan, a higher "
                    f"switch-on temperature or more ceiling insulation changes the balance.")
-    if pen >= 0.005 and summary.get("days_heating"):
+    if pen >= HEATING_PENALTY_WARN_KWH and summary.get("days_heating"):
         out.append(f"In the heating season the fan adds {pen:.2f} kWh of {summary['heating_penalty_carrier']} for "
                    f"heating (heat drawn out through the ceiling and with the air it pulls from the house): "
                    f"switch it off for the winter.")
