@@ -191,3 +191,15 @@ def test_a_bug_is_one_line_saying_so_and_exit_1(tmp_path, monkeypatch):
         "atticsim: internal error: KeyError: 'a key this test removed' (a bug in atticsim, not in your input; "
         "please report it with the command you ran; ATTICSIM_DEBUG=1 shows the traceback)")
     assert "Traceback" not in r.output and not (tmp_path / "o").exists()
+
+
+def test_placements_says_what_in_the_input_looks_wrong(tmp_path):
+    """A bare 0.5 for the indoor humidity is read as 0.5 %: placements warns as run does, before its runs, and
+    keeps the warning in placements.json."""
+    r = invoke("placements", "--only", "ridge", "--workers", "1", "--out", tmp_path / "p", *ONE_DAY,
+               "--set", "house.indoor_relative_humidity=0.5")
+    assert r.exit_code == 0, r.output
+    said = [line for line in r.output.splitlines() if line.startswith("atticsim: warning:")]
+    assert len(said) == 1 and "read as 0.5 % relative humidity" in said[0]
+    kept = json.loads((tmp_path / "p" / "placements.json").read_text())["warnings"]
+    assert len(kept) == 1 and "0.5 % relative humidity" in kept[0]

@@ -37,6 +37,8 @@ def placements(scenario, out, only, start, end, months, weather, workers, overri
     sc = load_scenario(scenario, list(overrides) + ([weather_override(weather)] if weather else []))
     names = [p.strip() for p in only.split(",")] if only else None
     load_checked_weather(sc, scenario or "<built-in demo house>", start, end, months)
+    for w in sc.input_warnings:  # the same words as run: what in the input looks wrong, before the runs
+        click.echo(f"atticsim: warning: {w}", err=True)
     say_if_compiling()
     click.echo("running one simulation per placement ...", err=True)
     from atticsim.progress import Progress, is_terminal
@@ -59,7 +61,8 @@ def placements(scenario, out, only, start, end, months, weather, workers, overri
     files = claim.write({
         "placements.csv": lambda p: write_csv(ip_table(table, units), p),
         "placements.json": lambda p: write_json(p, {"placements": ip_table(table, units).to_dict(orient="records"),
-                                                    "findings": findings}),
+                                                    "findings": findings,
+                                                    "warnings": list(sc.input_warnings)}),
         "placements.png": lambda p: plot_placements(results, p, units),
         "report.html": report_writer(lambda folder: placements_page(
             sc, results, table, findings, units, inputs, given_options(ctx), command_line(ctx), folder)),
