@@ -167,3 +167,20 @@ def test_a_study_whose_every_point_fails_stops_in_one_line_leaving_nothing(tmp_p
     assert r.exit_code == code, r.output
     assert r.stderr.strip().splitlines()[-1].startswith(line), r.stderr
     assert not out.exists()  # no journal, no study.json, no folder: nothing of value was made
+
+
+def test_months_choose_the_period_in_the_weathers_year(tmp_path):
+    """sweep --months feb runs February of the weather's first year (the demo weather's 2025, invented), as
+    run --months does; study.json records the month range and the dates it became."""
+    from click.testing import CliRunner
+
+    from atticsim.cli.main import cli
+
+    out = tmp_path / "s"
+    r = CliRunner().invoke(cli, ["sweep", "--vary", "thermostat.on=38,40degC", "--months", "feb", "--workers", "1",
+                                 "--out", str(out)])
+    assert r.exit_code == 0, r.output
+    period = json.loads((out / "study.json").read_text())["study"]["period"]
+    assert period == {"start": "2025-02-01", "end": "2025-02-28", "months": "feb"}
+    points = pd.read_csv(out / "points.csv")
+    assert (points["days"] == 28).all()

@@ -252,3 +252,14 @@ def test_study_file_errors_name_file_and_key(tmp_path, body, where):
     with pytest.raises(StudyError) as err:
         load_study_file(p)
     assert str(p) in str(err.value) and where in str(err.value) and "\n" not in str(err.value)
+
+
+def test_a_study_file_takes_months_or_dates_not_both(tmp_path):
+    p = tmp_path / "summer.toml"
+    p.write_text('[period]\nmonths = "jun-aug"\n[[vary]]\nkey = "thermostat.on"\nvalues = [38, 40]\nunit = "degC"\n')
+    st = load_study_file(p)
+    assert (st.months, st.start, st.end) == ("jun-aug", None, None)
+    p.write_text('[period]\nmonths = "jun-aug"\nstart = "2025-06-01"\n[[vary]]\nkey = "thermostat.on"\n'
+                 'values = [38, 40]\nunit = "degC"\n')
+    with pytest.raises(StudyError, match="summer.toml: period.months: give either months or start/end"):
+        load_study_file(p)

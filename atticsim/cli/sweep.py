@@ -24,6 +24,8 @@ from atticsim.cli.options import (force_option, out_option, period_options, say_
 @click.option("--seed", type=int, help="Seed of the Latin-hypercube sample (recorded in study.json).")
 @period_options[0]
 @period_options[1]
+@click.option("--months", help="Month range or season instead of dates: jun-aug, 7, summer, cooling, year (in the "
+                               "weather's first year).")
 @weather_option
 @set_option
 @click.option("--workers", type=workers_type(), help="Local worker processes [default: all cores].")
@@ -39,7 +41,7 @@ from atticsim.cli.options import (force_option, out_option, period_options, say_
               help="Heat figure the recommendation minimises [default: degree-hours].")
 @click.option("--heat-tolerance", metavar="PCT",
               help="Heat figures within this share of the lowest tie, and the gentler setting wins [default: 1%].")
-def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, weather, overrides, workers,
+def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, months, weather, overrides, workers,
           scheduler, resume, force, starts_limit, short_cycles_allowed, comfort_limit, heat_metric, heat_tolerance):
     """Run SCENARIO (the built-in demo house if omitted) at every point of a study and write the results to --out.
 
@@ -69,10 +71,16 @@ def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, wea
         study.points = points
     if seed is not None:
         study.seed = seed
+    if start or end:  # dates given here win over a study file's months
+        study.months = None
     if start:
         study.start = start
     if end:
         study.end = end
+    if months:  # and months given here over its dates
+        if start or end:
+            raise click.UsageError("--months: give either --months or --start/--end, not both")
+        study.months, study.start, study.end = months, None, None
     if starts_limit is not None:
         study.starts_limit = parse_starts_limit(starts_limit)
     if short_cycles_allowed is not None:

@@ -241,6 +241,10 @@ def plan_study(study: Study) -> Plan:
         base = load_scenario(study.scenario, base_overrides)
     except ScenarioError as exc:
         raise StudyError(str(exc)) from None
+    if study.months is not None and study.start is None:  # the month range in the base weather's first year
+        from atticsim.study.spec import resolve_months
+
+        resolve_months(study, _weather(base.weather.file)[0])
     points = []
     for i, p in enumerate(study.sample_points()):
         label = ", ".join(f"{k}={v.display}" for k, v in p.items())

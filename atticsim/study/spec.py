@@ -490,6 +490,9 @@ class Study:
         Seed of the Latin-hypercube sample (drawn and recorded when not given).
     start, end : str or None
         Period (ISO dates, local standard time); None: the scenario's own.
+    months : str or None
+        A month range or season instead of dates (``jun-aug``, ``7``, ``summer``...; as ``run --months``),
+        in the weather's first year; :func:`resolve_months` turns it into ``start`` and ``end``.
     starts_limit : float
         Starts per hour a motor may make [1/h].
     short_cycles_allowed : int
@@ -514,6 +517,7 @@ class Study:
     seed: int | None = None
     start: str | None = None
     end: str | None = None
+    months: str | None = None
     starts_limit: float = DEFAULT_STARTS_PER_HOUR
     short_cycles_allowed: int = DEFAULT_SHORT_CYCLES_ALLOWED
     comfort_limit_c: float = DEFAULT_COMFORT_LIMIT_C
@@ -556,6 +560,13 @@ class Study:
                 raise StudyError(f"--vary: the grid makes {sizes} = {total:,} points, more than the "
                                  f"{MAX_STUDY_POINTS:,} a study may hold; use fewer values (a coarser STEP) or "
                                  f"--sample lhs --points N")
+        if self.months is not None:  # (given with dates: refused where both were read, the CLI and the file)
+            from atticsim.forcing.build import months_period
+
+            try:
+                months_period(str(self.months), 2001)
+            except ValueError as exc:
+                raise StudyError(str(exc)) from None
         if self.seed is not None and (isinstance(self.seed, bool) or not 0 <= self.seed < 2**32):
             raise StudyError(f"--seed: must be a whole number from 0 to {2**32 - 1} (got {short_repr(self.seed)})")
         if not (math.isfinite(self.starts_limit) and self.starts_limit > 0):
@@ -585,7 +596,7 @@ class Study:
         return {
             "source": self.source, "scenario": self.scenario, "set": list(self.base_overrides),
             "sample": self.sample, "points": self.points, "seed": self.seed,
-            "period": {"start": self.start, "end": self.end},
+            "period": {"start": self.start, "end": self.end, "months": self.months},
             "limits": {"starts_per_hour": self.starts_limit, "short_cycles": self.short_cycles_allowed,
                        "comfort_c": self.comfort_limit_c},
             "heat_metric": self.heat_metric, "heat_tolerance": self.heat_tolerance,
@@ -658,7 +669,7 @@ def load_study_file(path: str | Path) -> Study:
 
         scenario = "../scenarios/house.toml"   # optional, relative to this file; omitted: demo house
         set = ["simulation.spinup_days=1"]      # optional overrides applied to every point
-        [period]    start = "2025-07-01"  end = "2025-07-07"
+        [period]    start = "2025-07-01"  end = "2025-07-07"   (or months = "jun-aug")
         [sampling]  method = "grid" | "lhs"  points = 50  seed = 1
         [limits]    starts_per_hour = 6  short_cycles = 0  comfort = "38 degC"
         [recommend] heat = "degree-hours" | "ceiling-gain"  heat_tolerance = "1 %"
@@ -698,11 +709,17 @@ def load_study_file(path: str | Path) -> Study:
     if not isinstance(overrides, list) or not all(isinstance(s, str) for s in overrides):
         raise StudyError(f"{path}: set: must be a list of \"dotted.key=value\" texts")
     study.base_overrides = list(overrides)
-    period = table("period", {"start", "end"})
+    period = table("period", {"start", "end", "months"})
     for name in ("start", "end"):
         v = period.get(name)
         if v is not None:
             setattr(study, name, v.isoformat() if hasattr(v, "isoformat") else str(v))
+    if "months" in period:
+        if not isinstance(period["months"], (str, int)) or isinstance(period["months"], bool):
+            raise StudyError(f'{path}: period.months: a month range or season such as "jun-aug" or "summer"')
+        if "start" in period or "end" in period:
+            raise StudyError(f"{path}: period.months: give either months or start/end, not both")
+        study.months = str(period["months"])
     sampling = table("sampling", {"method", "points", "seed"})
     study.sample = sampling.get("method", "grid")
     for name in ("points", "seed"):
@@ -727,3 +744,16 @@ def load_study_file(path: str | Path) -> Study:
     study.axes = [axis_from_table(t if isinstance(t, dict) else {}, f"{path}: vary.{i}")
                   for i, t in enumerate(vary)]
     return study
+
+
+def resolve_months(study: Study, weather_frame) -> None:
+    """Turn ``study.months`` into ``study.start`` and ``study.end`` in the weather's first year (as ``run``
+    does with ``--months``); a study without months is left as it is."""
+    if study.months is None:
+        return
+    from atticsim.forcing.build import months_period
+
+    try:
+        study.start, study.end = months_period(study.months, int(weather_frame.index[0].year))
+    except ValueError as exc:
+        raise StudyError(str(exc)) from None
