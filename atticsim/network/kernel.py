@@ -88,7 +88,7 @@ N_FLOWS = len(FLOWS)
 #: surface and of the deck's underside [degC].
 PLANE_FLOWS = ("cover_net", "deck_net", "roof_surface", "deck_underside")
 #: Newton steps for the massless surface temperatures, from the layer's own temperature (three leave an error
-#: below 1e-4 K from calm night to hot noon, two up to 0.006 K: tests/test_network_surfaces.py).
+#: below 1e-4 K from calm night to hot noon, two up to 0.006 K: tests/network/test_network_surfaces.py).
 SURFACE_STEPS = 3
 
 # --- layout of the packed parameters ----------------------------------------------------------------------

@@ -10,7 +10,7 @@ temperatures the sum itself gives (iterated, as a design calculation iterates it
 constant sun on the roof the outer surface balance is the sol-air form (ASHRAE Handbook Fundamentals,
 sol-air temperature) with the inward path as one more resistance.
 
-Used by the validation cases (``atticsim validate``) and by ``tests/test_network_steady.py``.
+Used by the validation cases (``atticsim validate``) and by ``tests/network/test_network_steady.py``.
 """
 
 from __future__ import annotations

@@ -105,7 +105,7 @@ def render_markdown(results) -> str:
              "for the fast solver) and field studies. Each row is one case: atticsim's figure, the reference "
              "figure, their difference (atticsim minus reference; for a published range, how far outside it), "
              "the tolerance allowed and where the reference comes from. The same cases run as tests "
-             "(`pytest tests/test_validation.py`). Houses, sites and weather marked fictional or invented are "
+             "(`pytest tests/validation/test_validation.py`). Houses, sites and weather marked fictional or invented are "
              "ours, for the checks; the typical-year files are pvlib's (real climates).", "",
              f"**{headline(results)}**", "", SCOPE, "", *HEADER]
     group = None

@@ -10,7 +10,7 @@ from atticsim.study.spec import (Study, StudyError, grid_points, latin_hypercube
                                  parse_comfort_limit, parse_heat_tolerance, parse_short_cycles_allowed,
                                  parse_starts_limit, parse_vary, point_overrides)
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 
 
 def strata_hit_once(u):
@@ -193,7 +193,7 @@ def test_speed_ratio_of_a_fan_without_a_curve_follows_the_fan_laws():
     assert sc.fan.power == pytest.approx(92.16, rel=1e-12)
     assert sc.input_warnings == ()  # derived values carry their units: nothing to question
     # a fan described by its curve takes the ratio itself (the airflow model applies the laws on the curve)
-    curved = Path(__file__).resolve().parent.parent / "scenarios" / "starved_intakes.toml"
+    curved = Path(__file__).resolve().parents[2] / "scenarios" / "starved_intakes.toml"
     from atticsim.scenario import load_scenario
 
     assert point_overrides({"fan.speed_ratio": ratio}, load_scenario(curved)) == ["fan.speed_ratio=0.8"]

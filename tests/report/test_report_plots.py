@@ -111,7 +111,7 @@ def test_hip_roof_design_day_colours():
 
     from atticsim.pipeline import design_day
 
-    sc = atticsim.load_scenario(Path(__file__).resolve().parent.parent / "scenarios" / "mesa_ranch.toml")
+    sc = atticsim.load_scenario(Path(__file__).resolve().parents[2] / "scenarios" / "mesa_ranch.toml")
     r = design_day(sc, "2025-07-21", 43.0, 14.0)
     fig = temperature_figure(r.timeseries, r.summary, r.daily, "ranch", "si")
     decks = [line for line in fig.axes[0].lines if line.get_label().startswith("deck underside")]
@@ -145,7 +145,7 @@ def test_daily_net_benefit_adds_up_with_the_conditioned_air_term():
     # conditioned-air term; the days add up to the summary (the same books, cut at midnight)
     from pathlib import Path
 
-    sc = atticsim.load_scenario(Path(__file__).resolve().parent.parent / "scenarios" / "starved_intakes.toml",
+    sc = atticsim.load_scenario(Path(__file__).resolve().parents[2] / "scenarios" / "starved_intakes.toml",
                                 ["simulation.spinup_days=1"])
     r = atticsim.simulate(sc, start="2025-07-01", end="2025-07-02")
     s = r.summary

@@ -5,7 +5,7 @@ from pathlib import Path
 
 from atticsim.scenario import demo_scenario, load_scenario
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 
 
 def test_demo_weather_files_are_reproducible(tmp_path):

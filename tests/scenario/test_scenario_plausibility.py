@@ -10,7 +10,7 @@ from click.testing import CliRunner
 from atticsim.cli.main import cli
 from atticsim.scenario import ScenarioError, demo_scenario, load_scenario
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 CFM = 0.3048**3 / 60.0  # m3/s per cfm (NIST SP 811 appendix B: 1 ft = 0.3048 m)
 
 

@@ -17,7 +17,7 @@ from atticsim.circuit import thermistor_power
 from atticsim.cli.main import cli
 from atticsim.scenario import load_scenario
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 BUNGALOW = ROOT / "scenarios" / "heron_lane_bungalow.toml"
 CIRCUIT = ROOT / "scenarios" / "heron_lane_circuit.toml"
 

@@ -10,7 +10,7 @@ from atticsim.validation import ERROR, GROUPS, NOT_RUN, OUTSIDE, WITHIN, Case, C
 from atticsim.validation.page import line_matches, page_differences, render_markdown
 from atticsim.validation.registry import compare
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 PAGE = ROOT / "docs" / "validation.md"
 REGENERATE = "atticsim validate --page docs/validation.md --force"
 CASES = all_cases()

@@ -26,7 +26,7 @@ from atticsim.units import KINDS, UnitError, to_si
 
 DEMO = tomllib.loads(resources.files("atticsim.data").joinpath("demo_house.toml").read_text())
 # the fictional bungalow with a home-built circuit thermostat (invented part values)
-CIRCUIT = tomllib.loads((Path(__file__).resolve().parent.parent / "scenarios" / "heron_lane_circuit.toml").read_text())
+CIRCUIT = tomllib.loads((Path(__file__).resolve().parents[2] / "scenarios" / "heron_lane_circuit.toml").read_text())
 KEYS = all_keys(Scenario)
 FUZZ = settings(max_examples=150, deadline=None, database=None,
                 suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
@@ -129,7 +129,7 @@ def _demo_csv(folder: Path) -> bytes:
 
 
 def _epw_bytes() -> bytes:
-    # an invented two-day EPW (the field order of tests/test_io_typical_year.py's writer)
+    # an invented two-day EPW (the field order of tests/io/test_io_typical_year.py's writer)
     lines = ["LOCATION,Invented Mesa,AZ,USA,invented for atticsim tests,999999,33.450,-112.070,-7.0,340.0",
              "DESIGN CONDITIONS,0", "TYPICAL/EXTREME PERIODS,0", "GROUND TEMPERATURES,0",
              "HOLIDAYS/DAYLIGHT SAVINGS,No,0,0,0", "COMMENTS 1,Invented weather; not a real climate", "COMMENTS 2,",

@@ -23,7 +23,7 @@ from atticsim.scenario import load_scenario
 from atticsim.scenario.load import ScenarioError
 from atticsim.scenario.thermostat import TimeRules, time_rules
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 CIRCUIT = ROOT / "scenarios" / "heron_lane_circuit.toml"
 
 

@@ -16,7 +16,7 @@ from atticsim.calibration.synthetic import synthetic_log, write_log
 from atticsim.scenario import load_scenario
 from atticsim.units import R_IP_TO_SI
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 BUNGALOW = ROOT / "scenarios" / "heron_lane_bungalow.toml"
 TRUTH = {"vents.passive_ach": 2.5, "roof.absorptance": 0.85, "ceiling.insulation": 22.0 * R_IP_TO_SI}
 TRUTH_SET = ["vents.passive_ach=2.5", "roof.absorptance=0.85", 'ceiling.insulation="R-22"']

@@ -8,7 +8,7 @@ from click.testing import CliRunner
 
 from atticsim.cli.main import cli
 
-DEMO = Path(__file__).resolve().parent.parent / "atticsim" / "data" / "demo_house.toml"
+DEMO = Path(__file__).resolve().parents[2] / "atticsim" / "data" / "demo_house.toml"
 
 
 def invoke(*args):

@@ -11,7 +11,7 @@ from atticsim.hybrid.controller import LoggedFan
 from atticsim.pipeline import run_raw
 from atticsim.scenario import demo_scenario, load_scenario
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 
 
 def held_volume(motor, t0, t1):

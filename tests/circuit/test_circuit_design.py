@@ -165,7 +165,7 @@ def test_design_for_the_air_on_the_demo_circuit():
 
     from atticsim.scenario import load_scenario
 
-    sc = load_scenario(Path(__file__).resolve().parent.parent / "scenarios" / "heron_lane_circuit.toml")
+    sc = load_scenario(Path(__file__).resolve().parents[2] / "scenarios" / "heron_lane_circuit.toml")
     delta = sc.sensor.dissipation_constant
     d = design_circuit(sc.thermostat.circuit_params(), 40.0, 35.0, self_heating=delta, basis="air")
     assert d.air_on_c == pytest.approx(40.0, abs=1e-6)

@@ -16,7 +16,7 @@ from click.testing import CliRunner
 
 from atticsim.cli.main import cli
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
 pytestmark = pytest.mark.skipif(CHROMIUM is None, reason="Chromium is not installed (CI installs it)")
 

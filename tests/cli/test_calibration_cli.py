@@ -15,7 +15,7 @@ from matplotlib.colors import to_rgb
 from atticsim.cli.main import cli
 from atticsim.scenario import load_scenario
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 BUNGALOW = ROOT / "scenarios" / "heron_lane_bungalow.toml"
 DEMO_LOG = ROOT / "weather_demo" / "heron_lane_logger_2025.csv"
 KEYS = "vents.passive_ach,roof.absorptance,ceiling.insulation,sensor.time_constant"

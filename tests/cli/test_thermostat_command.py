@@ -13,7 +13,7 @@ from atticsim.forcing.weather import load_weather
 from atticsim.pipeline import simulate
 from atticsim.scenario import load_scenario
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 CIRCUIT = ROOT / "scenarios" / "heron_lane_circuit.toml"
 
 
@@ -101,7 +101,7 @@ def test_setpoint_scenario_is_refused_by_thermostat_command():
     r = CliRunner().invoke(cli, ["thermostat"])
     assert r.exit_code == 2 and "circuit" in r.output
     assert "<built-in demo house>: thermostat.kind:" in r.output
-    setpoints = Path(__file__).resolve().parent.parent / "scenarios" / "heron_lane_bungalow.toml"
+    setpoints = Path(__file__).resolve().parents[2] / "scenarios" / "heron_lane_bungalow.toml"
     r = CliRunner().invoke(cli, ["thermostat", str(setpoints)])
     assert r.exit_code == 2
     assert f"{setpoints}: thermostat.kind: is 'setpoints'" in r.output.strip().splitlines()[-1]

@@ -135,7 +135,7 @@ def test_readme_states_the_decimals_the_files_are_written_with():
     import re
     from pathlib import Path
 
-    readme = (Path(__file__).resolve().parent.parent / "README.md").read_text()
+    readme = (Path(__file__).resolve().parents[2] / "README.md").read_text()
     table = readme.split("| column ending | what | written to |", 1)[1].split("\n\n", 1)[0]
     rows = [r.split("|")[1:4] for r in table.strip().splitlines()[1:]]
     assert len(rows) == 7

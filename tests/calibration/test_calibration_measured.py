@@ -11,7 +11,7 @@ import pytest
 from atticsim.calibration import CalibrationError
 from atticsim.calibration.measured import read_measured
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 DEMO_LOG = ROOT / "weather_demo" / "heron_lane_logger_2025.csv"
 
 

@@ -15,7 +15,7 @@ from click.testing import CliRunner
 
 from atticsim.cli.main import cli
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 DEMO = (ROOT / "atticsim" / "data" / "demo_house.toml").read_text()
 CIRCUIT = (ROOT / "scenarios" / "heron_lane_circuit.toml").read_text().replace(
     'file = "../weather_demo/saltmarsh_point_2025.csv"', 'file = "demo:saltmarsh-point"')

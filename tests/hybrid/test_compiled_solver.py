@@ -11,7 +11,7 @@ from atticsim.hybrid.solve import integrate
 from atticsim.pipeline import run_raw
 from atticsim.scenario import load_scenario
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 BUNGALOW = ROOT / "scenarios" / "heron_lane_bungalow.toml"
 # a narrow band (0.5 K) on the demo house: 78 switches in the day compared (measured; the test asks for more than 50)
 NARROW = ["simulation.spinup_days=1", "thermostat.on=38 degC", "thermostat.off=37.5 degC"]

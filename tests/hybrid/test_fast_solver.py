@@ -1,5 +1,5 @@
 """The fast solver against the reference solver on every demo scenario (the agreement the project promises:
-0.05 K, 5 s, same starts, books to 0.1 %); its blocks against matrix exponentials in tests/test_blocks.py."""
+0.05 K, 5 s, same starts, books to 0.1 %); its blocks against matrix exponentials in tests/hybrid/test_blocks.py."""
 
 from pathlib import Path
 
@@ -9,7 +9,7 @@ import pytest
 from atticsim.pipeline import run_raw
 from atticsim.scenario import load_scenario
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 
 
 DEMOS = ["heron_lane_bungalow", "heron_lane_circuit", "mesa_ranch", "starved_intakes", "generous_intakes"]

@@ -68,7 +68,7 @@ def test_circuit_study_recommends_standard_value_parts(tmp_path):
     # (design by the exact node equations; IEC 60063 E24 values).
     from atticsim.circuit import E24
 
-    scenario = Path(__file__).resolve().parent.parent / "scenarios" / "heron_lane_circuit.toml"
+    scenario = Path(__file__).resolve().parents[2] / "scenarios" / "heron_lane_circuit.toml"
     out = tmp_path / "c"
     r = invoke(scenario, "--vary", "thermostat.circuit.feedback=39,47kohm", "--out", out, "--workers", "1",
                "--start", "2025-07-01", "--end", "2025-07-01", "--set", "simulation.spinup_days=0")

@@ -16,7 +16,7 @@ from atticsim.network.placement import PLACEMENTS
 from atticsim.scenario import demo_scenario, load_scenario
 from atticsim.sensor.body import BODY_SHAPES, PRESETS
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 SCENARIO_FILES = sorted(p.stem for p in (ROOT / "scenarios").glob("*.toml"))
 BODIES = [None] + sorted(PRESETS)
 N_STATES = 50

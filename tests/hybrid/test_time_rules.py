@@ -15,7 +15,7 @@ from atticsim.network.kernel import BOOKS
 from atticsim.pipeline import run_raw
 from atticsim.scenario import load_scenario
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 SLOPE = 0.01  # K/s
 
 

@@ -10,7 +10,7 @@ from atticsim.air import air_density
 from atticsim.pipeline import run_raw, simulate
 from atticsim.scenario import load_scenario
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 FAST = ["weather.start=2025-07-01", "weather.end=2025-07-01", "simulation.spinup_days=0"]
 
 
