@@ -41,8 +41,12 @@ from atticsim.cli.options import (force_option, out_option, period_options, say_
               help="Heat figure the recommendation minimises [default: degree-hours].")
 @click.option("--heat-tolerance", metavar="PCT",
               help="Heat figures within this share of the lowest tie, and the gentler setting wins [default: 1%].")
+@click.option("--keep-point", "keep_points", multiple=True, metavar="N|recommended|runner-up",
+              help="Also run this point in full and write every file run writes to DIR/point-N (for atticsim "
+                   "compare); repeatable. With --resume the finished study is reused and only the point runs.")
 def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, months, weather, overrides, workers,
-          scheduler, resume, force, starts_limit, short_cycles_allowed, comfort_limit, heat_metric, heat_tolerance):
+          scheduler, resume, force, starts_limit, short_cycles_allowed, comfort_limit, heat_metric, heat_tolerance,
+          keep_points):
     """Run SCENARIO (the built-in demo house if omitted) at every point of a study and write the results to --out.
 
     Writes points.csv/points.parquet (every varied value and figure per point), study.json (versions, seed,
@@ -92,6 +96,10 @@ def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, mon
     if heat_metric:
         study.heat_metric = heat_metric
     study.check()
+    from atticsim.study.keep import check_keeps, parse_keep
+
+    keeps = [parse_keep(k) for k in keep_points]
+    check_keeps(study, keeps)
 
     from atticsim.study.analysis import recommendation_text
     from atticsim.study.runner import run_study
@@ -114,3 +122,36 @@ def sweep(scenario, vary, out, study_file, sample, points, seed, start, end, mon
     click.echo(recommendation_text(outcome.recommendation, outcome.table, [a.key for a in study.axes]))
     click.echo(f"{len(outcome.table)} points ({outcome.computed} computed, {outcome.reused} reused) on "
                f"{outcome.backend} in {outcome.wall_s:.1f} s; wrote {len(outcome.files)} files to {out}", err=True)
+    if keeps:
+        _keep(study, outcome, keeps, out, ctx)
+
+
+def _keep(study, outcome, keeps, out, ctx):
+    """Run the kept points in full, each into DIR/point-N (the study's own folder: rewritten when kept again)."""
+    from atticsim.cli.options import claim_out, command_line, given_options
+    from atticsim.pipeline import simulate
+    from atticsim.report.html import report_writer, run_page
+    from atticsim.report.inputs import scenario_inputs
+    from atticsim.results.export import result_writers
+    from atticsim.study.keep import planned_points, point_number
+
+    numbers = {}
+    for k in keeps:
+        n = point_number(k, outcome.recommendation)
+        if n is None:
+            click.echo(f"note: --keep-point {k}: the study's rule chose no {k} point; nothing kept for it", err=True)
+        else:
+            numbers.setdefault(n, k)
+    planned = planned_points(study, sorted(numbers))
+    scenario_path = Path(study.scenario) if study.scenario else None
+    for n, point in planned.items():
+        folder = Path(out) / f"point-{n}"
+        claim = claim_out(str(folder), True)
+        result = simulate(point.scenario, start=study.start, end=study.end)
+        inputs = scenario_inputs(scenario_path, list(study.base_overrides) + list(point.overrides), point.scenario)
+        writers = result_writers(result, "si", "csv")
+        writers["report.html"] = report_writer(lambda f, r=result, i=inputs: run_page(
+            r, "si", i, given_options(ctx), command_line(ctx), f))
+        files = claim.write(writers)
+        values = ", ".join(f"{key} = {v}" for key, v in point.given.items())
+        click.echo(f"point {n} ({numbers[n]}: {values}): wrote {len(files)} files to {folder}", err=True)

@@ -431,6 +431,24 @@ def _prepare_dir(out: Path, resume: bool) -> None:
     if not resume:
         for name in STUDY_FILES:
             (out / name).unlink(missing_ok=True)
+        for folder in out.glob("point-*"):  # an earlier study's kept points (see atticsim.study.keep)
+            _remove_kept_point(folder)
+
+
+#: The files a kept point's folder may hold (what ``atticsim run`` writes): only such a folder is removed.
+_RUN_FILES = {"summary.json", "daily.csv", "monthly.csv", "timeseries.csv", "timeseries.parquet", "events.csv",
+              "temperatures.png", "monthly.png", "report.html"}
+
+
+def _remove_kept_point(folder: Path) -> None:
+    """Remove DIR/point-N when it holds nothing but a run's files (anything else there is the user's: kept)."""
+    import shutil
+
+    if not (folder.is_dir() and folder.name[len("point-"):].isdigit()):
+        return
+    entries = list(folder.iterdir())
+    if all(e.is_file() and e.name in _RUN_FILES for e in entries):
+        shutil.rmtree(folder)
 
 
 def _write_atomic(path: Path, write) -> None:

@@ -133,3 +133,39 @@ def test_pareto_front_holds_only_non_dominated_qualifying_points(tmp_path):
                 if not any((o <= row).all() and (o < row).any() for _, o in q.set_index("point")[cols].iterrows())]
     assert expected and sorted(front["point"]) == sorted(expected)
     assert sorted(rec["pareto_points"]) == sorted(expected) and len(front) < len(pts)
+
+
+def test_kept_points_are_the_studys_points_run_in_full(tmp_path):
+    """--keep-point writes the recommended point, the runner-up and a numbered point as run folders whose
+    figures are the study's own for those points (the same scenario and period run again: the same starts and
+    run hours); kept again with --resume, the study is reused and only the points run; a fresh study removes
+    the earlier study's kept points, never a folder holding anything else."""
+    out = tmp_path / "s"
+    grid = ["--vary", "thermostat.on=38,40degC", "--vary", "thermostat.hysteresis=1,4K", "--workers", "1"]
+    r = invoke(*grid, *FAST, "--out", out, "--keep-point", "recommended", "--keep-point", "runner-up",
+               "--keep-point", "0")
+    assert r.exit_code == 0, r.output
+    rec = json.loads((out / "recommendation.json").read_text())
+    points = {int(p["point"]): p for p in __import__("pandas").read_csv(out / "points.csv").to_dict("records")}
+    kept = {rec["point"], rec["runner_up"]["point"], 0}
+    assert {p.name for p in out.glob("point-*")} == {f"point-{n}" for n in kept}
+    for n in kept:
+        summary = json.loads((out / f"point-{n}" / "summary.json").read_text())
+        assert summary["fan_starts"] == points[n]["fan_starts"]
+        assert summary["fan_run_hours"] == pytest.approx(points[n]["fan_run_hours"], abs=1e-6)
+        assert (out / f"point-{n}" / "report.html").stat().st_size > 0
+    r = invoke(*grid, *FAST, "--out", out, "--resume", "--keep-point", "3")
+    assert r.exit_code == 0, r.output
+    assert "0 computed, 4 reused" in r.output and (out / "point-3" / "summary.json").exists()
+    (out / "point-0" / "my_notes.txt").write_text("the user's own file")
+    r = invoke(*grid, *FAST, "--out", out, "--force")
+    assert r.exit_code == 0, r.output
+    assert [p.name for p in out.glob("point-*")] == ["point-0"]  # kept: it holds the user's file
+
+
+@pytest.mark.parametrize("keep,reason", [("4", "point 4 is not in the study (its points are 0 to 3)"),
+                                         ("best", "'best' is not a point number")])
+def test_a_point_the_study_does_not_have_is_refused_before_it_runs(tmp_path, keep, reason):
+    r = invoke("--vary", "thermostat.on=38,40degC", "--vary", "thermostat.hysteresis=1,4K", *FAST,
+               "--out", tmp_path / "s", "--keep-point", keep)
+    assert r.exit_code == 2 and reason in r.output and not (tmp_path / "s").exists()
