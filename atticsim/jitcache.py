@@ -125,3 +125,67 @@ def cold() -> bool:
     roots = [where] if where is not None else [Path(os.environ["NUMBA_CACHE_DIR"])] if os.environ.get(
         "NUMBA_CACHE_DIR") else [_ROOT / "hybrid" / "__pycache__"]
     return not any(any(r.rglob("compiled.advance-*.nbi")) for r in roots if r.is_dir())
+
+
+#: The marker a background compile holds in the cache folder while it runs (its process id inside).
+_BUSY = ".compiling"
+
+
+def _roots() -> list[Path]:
+    where = folder()
+    if where is not None:
+        return [where]
+    return [Path(os.environ["NUMBA_CACHE_DIR"])] if os.environ.get("NUMBA_CACHE_DIR") else []
+
+
+def _alive(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except OSError:  # another user's process: it exists
+        return True
+    return True
+
+
+def compiling() -> bool:
+    """True while a background compile started by :func:`compile_in_background` is still running."""
+    for root in _roots():
+        try:
+            pid = int((root / _BUSY).read_text().strip() or 0)
+        except (OSError, ValueError):
+            continue
+        if pid > 0 and _alive(pid):
+            return True
+    return False
+
+
+def compile_in_background(command: list[str]) -> bool:
+    """Start ``command`` (a process that compiles the solver into this cache and then ends) in a session of its
+    own, unless one is already running; the command gets the marker's path as its last argument and should
+    remove it when done (a marker whose process has ended counts as none). Returns False when there is no
+    cache folder to compile into (numba's own location or none writable)."""
+    import subprocess
+
+    roots = _roots()
+    if not roots:
+        return False
+    if compiling():
+        return True
+    marker = roots[0] / _BUSY
+    try:
+        roots[0].mkdir(parents=True, exist_ok=True)
+        marker.unlink(missing_ok=True)  # an ended compile's marker
+        fd = os.open(marker, os.O_CREAT | os.O_EXCL | os.O_WRONLY)
+    except OSError:  # another command took it this instant, or the folder is read-only
+        return compiling()
+    try:
+        proc = subprocess.Popen([*command, str(marker)], stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL,
+                                stderr=subprocess.DEVNULL, start_new_session=True, close_fds=True)
+        os.write(fd, str(proc.pid).encode())
+    except OSError:
+        os.close(fd)
+        marker.unlink(missing_ok=True)
+        return False
+    os.close(fd)
+    return True

@@ -166,6 +166,8 @@ def model_notes(scenario) -> list[str]:
     if scenario.attic.air_layers == 2:
         notes.append(f"air layers: the upper holds {g.upper_volume_share:.0%} of the air and faces "
                      f"{g.upper_deck_share:.0%} of the deck (interface {g.interface_height:.2f} m up)")
+    if scenario.simulation.solver == "reference":
+        notes.append(f"solver: reference (scipy's LSODA, rtol {scenario.simulation.rtol:g})")
     return notes + scenario.roof.optics()[1]
 
 

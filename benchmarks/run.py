@@ -8,8 +8,9 @@ Figures:
 - what the user waits for, each in a fresh process (subprocess) so that start-up, imports and first-touch
   memory count: ``atticsim run --months year`` on the demo house with all its files (CSV time series), the
   same with ``--format parquet``, a one-day ``run``, each with warm caches; the first one-day run with empty
-  compile and unit caches (``ATTICSIM_CACHE_DIR`` and ``NUMBA_CACHE_DIR`` pointing at empty folders); the
-  peak resident memory of the year's run and of a process that only imports what a run imports;
+  compile and unit caches (``ATTICSIM_CACHE_DIR`` and ``NUMBA_CACHE_DIR`` pointing at empty folders: it runs
+  with the reference solver while the fast one compiles in the background), how long after its start the
+  fast solver is in the cache, and the same one-day run then; the peak resident memory of the year's run and of a process that only imports what a run imports;
 - the compiled solver's first use in a fresh process (compiling on a new checkout, loading numba's
   on-disk cache after that), measured on a one-day run before anything else is timed;
 - a full-year run of the demo house at 1-minute output with exact events, fast and reference solver
@@ -27,7 +28,7 @@ once; the end-to-end commands run --repeat times each, interleaved, best reporte
 end_to_end_runs as [wall s, peak MB, processor s]). JSON keys: run_year_end_to_end_s, run_year_parquet_s,
 run_day_warm_s, run_year_peak_mb, run_year_parquet_peak_mb, run_day_peak_mb, import_baseline_mb,
 first_run_fresh_s, their processor times run_year_cpu_s, run_year_parquet_cpu_s, run_day_cpu_s,
-first_run_fresh_cpu_s, end_to_end_runs,
+first_run_fresh_cpu_s, fast_solver_ready_s, run_after_first_s, end_to_end_runs,
 annual_fast_s, annual_reference_s, speedup, annual_fast_solver_s, annual_fast_with_fan_s, annual_fast_runs_s,
 annual_reference_solver_s, first_use_s, summer_92d_s, vented_summer_92d_s, sweep_points, sweep_days,
 sweep_points_per_s, help_s, peak_mb, plus the machine (machine, cpu, memory_gb, load_average, commit,
@@ -105,6 +106,21 @@ def atticsim_command(*args, env=None) -> tuple[float, float, float]:
     return fresh_process(["-m", "atticsim.cli.main", *args], env=env)
 
 
+def _compiled_after(env, t0: float, limit: float = 900.0) -> float | None:
+    """Seconds from t0 until the background compile a first run started has ended and left the fast solver in
+    the cache (None: a checkout without it, or not within ``limit``)."""
+    probe = [sys.executable, "-c", "from atticsim import jitcache; print(jitcache.compiling(), jitcache.cold())"]
+    while time.perf_counter() - t0 < limit:
+        try:
+            state = subprocess.run(probe, env=env, capture_output=True, text=True, check=True).stdout.split()
+        except subprocess.CalledProcessError:  # an older checkout: no such functions
+            return None
+        if state == ["False", "False"]:
+            return time.perf_counter() - t0
+        time.sleep(0.5)
+    return None
+
+
 def end_to_end(repeat: int, parquet: bool = True) -> dict:
     """What the user waits for, in fresh processes: a year's run with all its files (CSV, then Parquet time
     series), a one-day run (warm caches, interleaved, best of ``repeat``), the import baseline, and the first
@@ -127,7 +143,11 @@ def end_to_end(repeat: int, parquet: bool = True) -> dict:
         for name in ("ATTICSIM_CACHE_DIR", "NUMBA_CACHE_DIR"):
             fresh[name] = os.path.join(out, "empty-" + name.lower())
             os.mkdir(fresh[name])
-        first = atticsim_command(*day, "--out", os.path.join(out, "fresh"), env={**os.environ, **fresh})
+        env = {**os.environ, **fresh}
+        t_first = time.perf_counter()
+        first = atticsim_command(*day, "--out", os.path.join(out, "fresh"), env=env)
+        ready = _compiled_after(env, t_first)  # a first short run compiles the fast solver in the background
+        after = atticsim_command(*day, "--out", os.path.join(out, "after"), env=env)
     finally:
         shutil.rmtree(out, ignore_errors=True)
     fastest = {k: min(w for w, _, _ in v) for k, v in runs.items()}  # the least disturbed run
@@ -139,6 +159,7 @@ def end_to_end(repeat: int, parquet: bool = True) -> dict:
             "import_baseline_mb": min(baseline), "first_run_fresh_s": first[0],
             "run_year_cpu_s": cpu["year_csv"], "run_year_parquet_cpu_s": cpu.get("year_parquet"),
             "run_day_cpu_s": cpu["day"], "first_run_fresh_cpu_s": first[2],
+            "fast_solver_ready_s": ready, "run_after_first_s": after[0],
             "end_to_end_runs": {k: [[round(w, 2), round(p, 1), round(c, 2)] for w, p, c in v]
                                 for k, v in runs.items()}}
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from atticsim.cli.options import (claim_out, force_option, format_option, ISO_DATE, out_option, Quantity,
-                                  say_if_compiling, scenario_argument, set_option, stages, TYPED, units_option)
+                                  first_run_override, scenario_argument, set_option, stages, TYPED, units_option)
 
 
 @click.command()
@@ -36,12 +36,15 @@ def designday(scenario, out, date, tmax, daily_range, dew, wind, overrides, unit
 
     claim = claim_out(out, force)  # fail before the run, not after
     sc = load_scenario(scenario, list(overrides))
+    first = first_run_override(sc, 1.0, False)  # one day, repeated until periodic
+    if first:  # the fast solver compiles in the background meanwhile
+        overrides = [*overrides, first]
+        sc = load_scenario(scenario, overrides)
     from atticsim.cli.options import command_line, given_options
     from atticsim.progress import announced
     from atticsim.report.html import report_writer, run_page
     from atticsim.report.inputs import scenario_inputs
 
-    say_if_compiling()
     with stages() as stage:
         result = design_day(sc, date, to_si(tmax, "temperature"), to_si(daily_range, "temperature_difference"),
                             dew_point=to_si(dew, "temperature") if dew is not None else None,

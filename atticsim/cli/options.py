@@ -85,6 +85,34 @@ class Quantity(click.ParamType):
 COMPILE_SECONDS = 20
 
 
+#: The longest period [days] a first run takes with the reference solver while the fast one compiles in the
+#: background: LSODA took about 0.3 s a day on the demo house (a week with and without the fan: 2.0 s), and up
+#: to 6 s a day where the thermostat chatters; beyond a week compiling first is the shorter wait.
+FIRST_RUN_DAYS = 7
+
+
+def first_run_override(scenario, days: float, solver_given: bool) -> str | None:
+    """For a command's one simulation on an install whose fast solver is not compiled yet: when the period is
+    at most :data:`FIRST_RUN_DAYS` and no solver was asked for, start compiling the fast solver in the
+    background and return the ``--set`` override that runs this one with the reference solver (and say so);
+    else say that the solver compiles now and return None. Nothing is said on a compiled install."""
+    import sys
+
+    from atticsim import jitcache
+    from atticsim.scenario.load import override_text
+
+    if not jitcache.cold():
+        return None
+    if (solver_given or scenario.simulation.solver != "fast" or days > FIRST_RUN_DAYS
+            or not jitcache.compile_in_background([sys.executable, "-m", "atticsim.cli.warm"])):
+        say_if_compiling()
+        return None
+    click.echo(f"atticsim: first run on this machine: the fast solver is being compiled in the background (once, "
+               f"about {COMPILE_SECONDS} s); this run uses the reference solver (scipy's LSODA; the two agree "
+               f"within the tolerances of the validation page), later runs the fast one", err=True)
+    return override_text("simulation.solver", "reference")
+
+
 def say_if_compiling() -> None:
     """Say once, before a command's first simulation, that the solver is being compiled for this machine when
     its cache is empty (after an install or an upgrade): the one slow run explained."""
@@ -120,11 +148,12 @@ def weather_override(weather: str) -> str:
     return override_text("weather.file", w)
 
 
-def load_checked_weather(sc, source: str, start=None, end=None, months=None, year=None):
+def load_checked_weather(sc, source: str, start=None, end=None, months=None, year=None, span=False):
     """The scenario's weather, loaded once before the run, with the period checked against it and the run's
     size (output rows) against atticsim.scenario.limits: both fail here, before any simulation.
 
-    Returns the (frame, meta) pair to hand to ``simulate(weather=...)``.
+    Returns the (frame, meta) pair to hand to ``simulate(weather=...)``; with ``span``, that and the period's
+    length in days.
     """
     from atticsim.forcing.build import period_bounds
     from atticsim.forcing.weather import load_weather
@@ -138,7 +167,7 @@ def load_checked_weather(sc, source: str, start=None, end=None, months=None, yea
     first, last = resolve_period(frame, sc, start, end, months, year)
     t0, t1 = period_bounds(frame, first, last, str(getattr(meta, "path", None) or sc.weather.file), meta)
     check_output_rows(sc, (t1 - t0).total_seconds(), source)
-    return weather
+    return (weather, (t1 - t0).total_seconds() / 86400.0) if span else weather
 
 
 def given_options(ctx) -> list[tuple[str, str]]:

@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from atticsim.cli.options import (claim_out, force_option, format_option, load_checked_weather, out_option,
-                                  period_options, say_if_compiling, scenario_argument, set_option, stages, units_option,
+                                  first_run_override, period_options, scenario_argument, set_option, stages, units_option,
                                   weather_option, weather_override, YEARS)
 
 
@@ -41,7 +41,12 @@ def run(scenario, out, weather, start, end, months, year, solver, overrides, uni
     if weather:
         overrides.append(weather_override(weather))
     sc = load_scenario(scenario, overrides)
-    weather_data = load_checked_weather(sc, scenario or "<built-in demo house>", start, end, months, year)
+    weather_data, days = load_checked_weather(sc, scenario or "<built-in demo house>", start, end, months, year,
+                                              span=True)
+    first = first_run_override(sc, days, solver is not None)
+    if first:  # the fast solver compiles in the background meanwhile
+        overrides.append(first)
+        sc = load_scenario(scenario, overrides)
 
     from atticsim.cli.options import command_line, given_options
     from atticsim.report.html import report_writer, run_page
@@ -53,7 +58,6 @@ def run(scenario, out, weather, start, end, months, year, solver, overrides, uni
 
     for w in sc.input_warnings:  # said before a long run too; the summary repeats them
         click.echo(f"atticsim: warning: {w}", err=True)
-    say_if_compiling()
     click.echo(f"simulating {sc.house.name} ...", err=True)
     with stages() as stage:
         result = simulate(sc, weather=weather_data, start=start, end=end, months=months, year=year, progress=stage)
