@@ -406,7 +406,7 @@ def _rates(x, u, s, out):
     kernel.rhs(x, u, s.fan, s.air, s.prm, s.planes, s.ints, s.heat, out)
 
 
-@nb.njit(cache=True, inline="always")
+@nb.njit(cache=True, _nrt=False)
 def _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta):
     """One try of the segment [t, t + h]: the fixed point for the remainder's slope b and curvature c (its
     true values at the segment's middle and end), from the previous segment's.
@@ -415,7 +415,8 @@ def _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta):
     or the error left that the contraction rate implies, is below tol_iter (the stopping rule of simplified
     Newton iterations and its carried rate, Hairer & Wanner, Solving ODEs II, sect. IV.8; from memory), or
     early when the segment is already far outside ``tol`` (rejection is sure: a segment too long also
-    converges slowly).
+    converges slowly). Compiled on its own without reference counting (it allocates nothing): inlined, each
+    array it takes from the scratch and system tuples cost an atomic reference count at every try.
     """
     w_b, w_b_prev, w_c, w_c_prev, w_a, w_g0a = w.b, w.b_prev, w.c, w.c_prev, w.a, w.g0a
     w_g0a_m, w_z1, w_zm, w_u1, w_um, w_xe = w.g0a_m, w.z1, w.zm, w.u1, w.um, w.xe
@@ -599,8 +600,11 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
             for i in range(nb_):
                 w_ybt[i] += w_yb[i] + w_r0[i] + sigma * w_r1b[i] + s2 * w_r2[i]
         else:
-            _check_step(w, blk, blk_q, store, lens, cnt, jac, jac_b, k_q, s0, chain_, sigma, step, last,
-                        expanded and abs(step - q_step) < 1e-9, n, nb_)
+            on_grid = expanded and abs(step - q_step) < 1e-9
+            # the first step to the grid takes its own blocks (from the cache, or computed: an allocation, so
+            # here and not in _check_step, which is compiled without reference counting)
+            blk_f = blk_q if on_grid or last else store[_lookup(step, lens, store, cnt, jac, s0, chain_)]
+            _check_step(w, blk, blk_q, blk_f, jac_b, k_q, sigma, step, last, on_grid, n, nb_)
         s_new = sigma + step
         if direction != 0:
             g_new = (x[i_sensor] + w_zt[i_sensor] - level) * direction
@@ -623,12 +627,13 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
     return DONE, False, sigma, step, k
 
 
-@nb.njit(cache=True, inline="always")
-def _check_step(w, blk, blk_q, store, lens, cnt, jac, jac_b, k_q, s0, chain_, sigma, step, last, on_grid, n,
-                nb_):
+@nb.njit(cache=True, _nrt=False)
+def _check_step(w, blk, blk_q, blk_f, jac_b, k_q, sigma, step, last, on_grid, n, nb_):
     """The state w.zt and the books' increment w.ybt after a check step of length ``step`` from sigma (from
     w.zs, w.yb): by the expansion for a full check step on the grid (:func:`_checks`), straight from the
-    segment's blocks at its end, or from the step's own blocks for the first step to the grid."""
+    segment's blocks at its end, or from the step's own blocks ``blk_f`` for the first step to the grid.
+    Compiled on its own without reference counting (it allocates nothing): inlined, each array it takes from
+    the scratch tuple cost an atomic reference count, twice a segment."""
     w_zt, w_p0, w_ybt, w_yb, w_r0, w_z1 = w.zt, w.p0, w.ybt, w.yb, w.r0, w.z1
     w_zs, w_p1, w_p2, w_r1b, w_r2, w_a = w.zs, w.p1, w.p2, w.r1b, w.r2, w.a
     w_it_, w_b, w_c = w.it_, w.b, w.c
@@ -658,7 +663,6 @@ def _check_step(w, blk, blk_q, store, lens, cnt, jac, jac_b, k_q, s0, chain_, si
         matvec(jac_b, w_it_, w_ybt)
     else:
         # the first step (to the check grid) from z = 0: G0 a + G1 b + 2 G2 c, int G1 a + G2 b + 2 G3 c
-        blk_f = store[_lookup(step, lens, store, cnt, jac, s0, chain_)]
         _from_start(blk_f, w_a, w_b, w_c, w_zt)
         block_mv(blk_f, 2, w_a, w_it_)
         block_mv_add(blk_f, 3, w_b, 1.0, w_it_)
