@@ -533,7 +533,7 @@ def _segment(w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta
             j_pref += 1
 
 
-@nb.njit(cache=True, inline="always")
+@nb.njit(cache=True, _nrt=False)
 def _book_remainder(w, jac_b, h, n):
     """The books' rates f_b(x0) + J_b z + r_b(s): the same quadratic remainder r_b = f0 + bb s + cb s^2
     through their true values at the segment's start, middle and end."""
@@ -556,16 +556,12 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
     sigma P1 + sigma^2 P2 and J_b int z grows by K z + R0 + sigma R1 + sigma^2 R2 (the remainder
     r(sigma) = a + b sigma + c sigma^2 expanded; P, R per segment, K = J_b G0(q) per linearisation).
 
-    Returns (status, crossed, sigma, step, k): status OFF_GRID when an output instant is off the check grid;
-    when the sensor reached its level within the check step from sigma, crossed is True (w.zs and w.yb hold
-    the state and the books' increment at sigma); else the outputs up to t + h are written.
+    Here the blocks the steps need are found (or computed: allocations), the steps themselves run in
+    :func:`_check_loop`. Returns (status, crossed, sigma, step, k): status OFF_GRID when an output instant is
+    off the check grid; when the sensor reached its level within the check step from sigma, crossed is True
+    (w.zs and w.yb hold the state and the books' increment at sigma); else the outputs up to t + h are written.
     """
-    w_a, w_b, w_c, w_p0, w_p1, w_p2 = w.a, w.b, w.c, w.p0, w.p1, w.p2
-    w_q0, w_q1, w_q2, w_r0, w_r1b, w_r2 = w.q0, w.q1, w.q2, w.r0, w.r1b, w.r2
-    w_zs, w_yb, w_zt, w_f0, w_bb, w_cb = w.zs, w.yb, w.zt, w.f0, w.bb, w.cb
-    w_ybt = w.ybt
-    jac, jac_b, _, store, lens, _, cnt, _, _, k_q = lin
-    n, nb_ = x.size, books.size
+    jac, jac_b, store, lens, cnt, k_q = lin[0], lin[1], lin[3], lin[4], lin[6], lin[9]
     first = origin + (math.floor((t - origin) / q_step + 1e-9) + 1.0) * q_step - t
     i_q = _lookup(q_step, lens, store, cnt, jac, s0, chain_)
     blk_q = store[i_q]
@@ -573,6 +569,24 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
         matmul(jac_b, blk_q[1], k_q)  # K = J_b G0(q)
         cnt[1] = i_q
     expanded = first + q_step < h - 1e-6
+    # the first step takes blocks of its own unless it is a full check step on the grid or the segment's last
+    own = not (first >= h - 1e-6 or (expanded and abs(first - q_step) < 1e-9))
+    blk_f = store[_lookup(first, lens, store, cnt, jac, s0, chain_)] if own else blk_q
+    return _check_loop(w, x, books, t, h, q_step, first, expanded, blk, blk_q, blk_f, jac_b, k_q, out_t, k, out_y,
+                       i_sensor, level, direction)
+
+
+@nb.njit(cache=True, _nrt=False)
+def _check_loop(w, x, books, t, h, q_step, first, expanded, blk, blk_q, blk_f, jac_b, k_q, out_t, k, out_y,
+                i_sensor, level, direction):
+    """The check steps of :func:`_checks` (its arguments and returns; ``first`` the first step's length,
+    ``blk_f`` its blocks). Compiled on its own without reference counting (it allocates nothing): inlined,
+    each array it takes from the scratch tuple cost an atomic reference count at every segment."""
+    w_a, w_b, w_c, w_p0, w_p1, w_p2 = w.a, w.b, w.c, w.p0, w.p1, w.p2
+    w_q0, w_q1, w_q2, w_r0, w_r1b, w_r2 = w.q0, w.q1, w.q2, w.r0, w.r1b, w.r2
+    w_zs, w_yb, w_zt, w_f0, w_bb, w_cb = w.zs, w.yb, w.zt, w.f0, w.bb, w.cb
+    w_ybt = w.ybt
+    n, nb_ = x.size, books.size
     if expanded:
         _expanded(blk_q, w_a, w_b, w_c, w_p0, w_p1, w_p2, w_q0, w_q1, w_q2)
         matvec(jac_b, w_q0, w_r0)
@@ -601,9 +615,6 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
                 w_ybt[i] += w_yb[i] + w_r0[i] + sigma * w_r1b[i] + s2 * w_r2[i]
         else:
             on_grid = expanded and abs(step - q_step) < 1e-9
-            # the first step to the grid takes its own blocks (from the cache, or computed: an allocation, so
-            # here and not in _check_step, which is compiled without reference counting)
-            blk_f = blk_q if on_grid or last else store[_lookup(step, lens, store, cnt, jac, s0, chain_)]
             _check_step(w, blk, blk_q, blk_f, jac_b, k_q, sigma, step, last, on_grid, n, nb_)
         s_new = sigma + step
         if direction != 0:
@@ -848,8 +859,8 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
 @nb.njit(cache=True, inline="always")
 def _blocks_over(lin, h, s0, chain_):
     """The blocks over h from the linearisation's cache (computed when missing)."""
-    jac, _, _, store, lens, _, cnt, _, _, _ = lin
-    return store[_lookup(h, lens, store, cnt, jac, s0, chain_)]
+    store = lin[3]
+    return store[_lookup(h, lin[4], store, lin[6], lin[0], s0, chain_)]
 
 
 @nb.njit(cache=True, inline="always")
