@@ -400,12 +400,6 @@ class _System(NamedTuple):
     f_step: float
 
 
-@nb.njit(cache=True, inline="always")
-def _rates(x, u, s, out):
-    """The network's rates (nodes, then books) at x under forcing u: :func:`atticsim.network.kernel.rhs`."""
-    kernel.rhs(x, u, s.fan, s.air, s.prm, s.planes, s.ints, s.heat, out)
-
-
 @nb.njit(cache=True, _nrt=False)
 def _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta):
     """One try of the segment [t, t + h]: the fixed point for the remainder's slope b and curvature c (its
@@ -489,48 +483,42 @@ def _largest(c):
     return err
 
 
-@nb.njit(cache=True, inline="always")
-def _segment(w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta, first_after_switch):
-    """The segment from t: tried at length h and halved until its fixed point converges within the error
-    check (:func:`_fixed_point`, :func:`_largest`).
+#: What :func:`_verdict` makes of a try of a segment.
+_ACCEPT, _RETRY, _GIVE_UP = 0, 1, 2
 
-    Returns (accepted, h, iterations, eta, j_pref, first_after_switch, rejected tries, right-hand sides):
-    accepted False when even half a second would not converge. ``j_pref`` indexes the preferred length
-    segment / 2^j: twice as long next when well inside the tolerance (error ~ h^3), halved with each rejection.
-    """
-    w_c = w.c
-    jac, jac_b, _, store, lens, meta, cnt, _, _, _ = lin
-    n_rej, n_rhs, iters = 0, 0, 0
-    while True:
-        blk = store[_lookup(h, lens, store, cnt, jac, s0, chain_)]
-        blk_m = store[_lookup(0.5 * h, lens, store, cnt, jac, s0, chain_)]
-        converged, iters, eta, nr = _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta)
-        n_rhs += nr
-        if not converged and h < 0.5:
-            return False, h, iters, eta, j_pref, first_after_switch, n_rej, n_rhs
-        if converged:
-            err = _largest(w_c)
-            err *= h * h * h / 6.0
-            if err <= tol or h <= 1.0:
-                # the error this curvature gives over the preferred length: a segment cut short (by the grid
-                # after a switch, a weather sample or the end) errs less by (h / h_pref)^3 and on its own
-                # would let the next segment double too soon
-                h_pref = segment / 2.0**j_pref
-                err_pref = err * (h_pref / h) ** 3 if h < h_pref else err
-                if first_after_switch:
-                    # where the next switch into this state starts: this spacing, twice it when it was the
-                    # first try and far inside the tolerance (a start that is too long costs rejected segments,
-                    # one too short a few more segments)
-                    grow = n_rej == 0 and err_pref < tol / 512.0
-                    meta[4] = h_pref * (2.0 if grow else 1.0)
-                    first_after_switch = False
-                if err_pref < 0.125 * tol and j_pref > 0:
-                    j_pref -= 1
-                return True, h, iters, eta, j_pref, first_after_switch, n_rej, n_rhs
-        n_rej += 1
-        h = 0.5 * h
-        while segment / 2.0**j_pref > h + 1e-9 and j_pref < 40:
-            j_pref += 1
+
+@nb.njit(cache=True, _nrt=False)
+def _verdict(converged, c, h, segment, j_pref, tol, first_after_switch, n_rej, meta):
+    """What a try of the segment [t, t + h] (its fixed point, :func:`_fixed_point`) comes to: accepted when it
+    converged within the error check (:func:`_largest`), else tried again at half the length, or given up when
+    even half a second would not converge. ``j_pref`` indexes the preferred length segment / 2^j: twice as long
+    next when well inside the tolerance (error ~ h^3), halved with each rejection. Returns (verdict, h, j_pref,
+    first_after_switch). Compiled without reference counting: the caller looks up the try's blocks."""
+    if not converged and h < 0.5:
+        return _GIVE_UP, h, j_pref, first_after_switch
+    if converged:
+        err = _largest(c)
+        err *= h * h * h / 6.0
+        if err <= tol or h <= 1.0:
+            # the error this curvature gives over the preferred length: a segment cut short (by the grid
+            # after a switch, a weather sample or the end) errs less by (h / h_pref)^3 and on its own
+            # would let the next segment double too soon
+            h_pref = segment / 2.0**j_pref
+            err_pref = err * (h_pref / h) ** 3 if h < h_pref else err
+            if first_after_switch:
+                # where the next switch into this state starts: this spacing, twice it when it was the
+                # first try and far inside the tolerance (a start that is too long costs rejected segments,
+                # one too short a few more segments)
+                grow = n_rej == 0 and err_pref < tol / 512.0
+                meta[4] = h_pref * (2.0 if grow else 1.0)
+                first_after_switch = False
+            if err_pref < 0.125 * tol and j_pref > 0:
+                j_pref -= 1
+            return _ACCEPT, h, j_pref, first_after_switch
+    h = 0.5 * h
+    while segment / 2.0**j_pref > h + 1e-9 and j_pref < 40:
+        j_pref += 1
+    return _RETRY, h, j_pref, first_after_switch
 
 
 @nb.njit(cache=True, _nrt=False)
@@ -549,19 +537,11 @@ def _book_remainder(w, jac_b, h, n):
 
 
 @nb.njit(cache=True, inline="always")
-def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, out_y, i_sensor, level,
-            direction):
-    """The outputs and the sensor checks on the check grid inside (t, t + h], from the segment's exact
-    solution. A check step from sigma by q_step costs two matrix-vector products: z(sigma + q) = Phi z + P0 +
-    sigma P1 + sigma^2 P2 and J_b int z grows by K z + R0 + sigma R1 + sigma^2 R2 (the remainder
-    r(sigma) = a + b sigma + c sigma^2 expanded; P, R per segment, K = J_b G0(q) per linearisation).
-
-    Here the blocks the steps need are found (or computed: allocations), the steps themselves run in
-    :func:`_check_loop`. Returns (status, crossed, sigma, step, k): status OFF_GRID when an output instant is
-    off the check grid; when the sensor reached its level within the check step from sigma, crossed is True
-    (w.zs and w.yb hold the state and the books' increment at sigma); else the outputs up to t + h are written.
-    """
-    jac, jac_b, store, lens, cnt, k_q = lin[0], lin[1], lin[3], lin[4], lin[6], lin[9]
+def _check_blocks(t, h, origin, q_step, store, lens, cnt, jac, jac_b, k_q, s0, chain_):
+    """The blocks the outputs and sensor checks on the check grid inside (t, t + h] need (found in the cache
+    or computed: allocations, so here and not in :func:`_check_loop`): the first step's length to the grid,
+    whether the full steps are expanded, the blocks of a full check step (and K = J_b G0(q), per block) and
+    the first step's own blocks (unless it is a full check step on the grid or the segment's last)."""
     first = origin + (math.floor((t - origin) / q_step + 1e-9) + 1.0) * q_step - t
     i_q = _lookup(q_step, lens, store, cnt, jac, s0, chain_)
     blk_q = store[i_q]
@@ -569,19 +549,24 @@ def _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t, k, o
         matmul(jac_b, blk_q[1], k_q)  # K = J_b G0(q)
         cnt[1] = i_q
     expanded = first + q_step < h - 1e-6
-    # the first step takes blocks of its own unless it is a full check step on the grid or the segment's last
     own = not (first >= h - 1e-6 or (expanded and abs(first - q_step) < 1e-9))
     blk_f = store[_lookup(first, lens, store, cnt, jac, s0, chain_)] if own else blk_q
-    return _check_loop(w, x, books, t, h, q_step, first, expanded, blk, blk_q, blk_f, jac_b, k_q, out_t, k, out_y,
-                       i_sensor, level, direction)
+    return first, expanded, blk_q, blk_f
 
 
 @nb.njit(cache=True, _nrt=False)
 def _check_loop(w, x, books, t, h, q_step, first, expanded, blk, blk_q, blk_f, jac_b, k_q, out_t, k, out_y,
                 i_sensor, level, direction):
-    """The check steps of :func:`_checks` (its arguments and returns; ``first`` the first step's length,
-    ``blk_f`` its blocks). Compiled on its own without reference counting (it allocates nothing): inlined,
-    each array it takes from the scratch tuple cost an atomic reference count at every segment."""
+    """The outputs and the sensor checks on the check grid inside (t, t + h], from the segment's exact
+    solution (blocks from :func:`_check_blocks`). A check step from sigma by q_step costs two matrix-vector
+    products: z(sigma + q) = Phi z + P0 + sigma P1 + sigma^2 P2 and J_b int z grows by K z + R0 + sigma R1 +
+    sigma^2 R2 (the remainder r(sigma) = a + b sigma + c sigma^2 expanded; P, R per segment).
+
+    Returns (status, crossed, sigma, step, k): status OFF_GRID when an output instant is off the check grid;
+    when the sensor reached its level within the check step from sigma, crossed is True (w.zs and w.yb hold
+    the state and the books' increment at sigma); else the outputs up to t + h are written. Compiled without
+    reference counting (it allocates nothing): every array handed to an inlined helper, and every array of a
+    tuple so handed, costs an atomic reference count and its release."""
     w_a, w_b, w_c, w_p0, w_p1, w_p2 = w.a, w.b, w.c, w.p0, w.p1, w.p2
     w_q0, w_q1, w_q2, w_r0, w_r1b, w_r2 = w.q0, w.q1, w.q2, w.r0, w.r1b, w.r2
     w_zs, w_yb, w_zt, w_f0, w_bb, w_cb = w.zs, w.yb, w.zt, w.f0, w.bb, w.cb
@@ -641,7 +626,7 @@ def _check_loop(w, x, books, t, h, q_step, first, expanded, blk, blk_q, blk_f, j
 @nb.njit(cache=True, _nrt=False)
 def _check_step(w, blk, blk_q, blk_f, jac_b, k_q, sigma, step, last, on_grid, n, nb_):
     """The state w.zt and the books' increment w.ybt after a check step of length ``step`` from sigma (from
-    w.zs, w.yb): by the expansion for a full check step on the grid (:func:`_checks`), straight from the
+    w.zs, w.yb): by the expansion for a full check step on the grid (:func:`_check_loop`), straight from the
     segment's blocks at its end, or from the step's own blocks ``blk_f`` for the first step to the grid.
     Compiled on its own without reference counting (it allocates nothing): inlined, each array it takes from
     the scratch tuple cost an atomic reference count, twice a segment."""
@@ -772,7 +757,11 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
     w_u0, w_f0, w_a, w_um, w_fm, w_b_prev = w.u0, w.f0, w.a, w.um, w.fm, w.b_prev
     w_bb, w_cb, w_ybt, w_z1, w_f1, w_u1 = w.bb, w.cb, w.ybt, w.z1, w.f1, w.u1
     w_b, w_c, w_c_prev, w_zi, w_yb, w_zt = w.b, w.c, w.c_prev, w.zi, w.yb, w.zt
-    jac, jac_b, links, _, _, meta, cnt, x_lin, air_lin, _ = lin
+    # every array once, here: each array handed to an inlined helper (or held in a tuple so handed) costs an
+    # atomic reference count and its release, so the helpers called per segment take plain arrays, or are
+    # compiled without reference counting
+    jac, jac_b, links, store, lens, meta, cnt, x_lin, air_lin, k_q = lin
+    w_c = w.c
     n_rhs, n_jac, n_rej, n_seg = 0, 0, 0, 0
     if k < out_t.size and abs(out_t[k] - t) < 1e-6:
         for i in range(n):
@@ -781,7 +770,7 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             out_y[n + i, k] = books[i]
         k += 1
     _forcing_at(f_values, f_step, t, w_u0)
-    _rates(x, w_u0, s, w_f0)
+    kernel.rhs(x, w_u0, fan, air, prm, planes, ints, heat, w_f0)
     n_rhs += 1
     if not (meta[0] > 0.0 and _max_change(x, x_lin) <= drift and t - meta[3] <= age and _air_close(air, air_lin)):
         _relinearise(x, w_u0, t, fan, air, prm, planes, ints, heat, w_f0, lin, q_step, unit_halvings, segment)
@@ -813,21 +802,31 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             # at a weather sample the forcing's slope changes, and the remainder's slope with it by
             # df/du (u'_after - u'_before): one directional difference over KINK_SPAN carries the prediction
             # across the kink (a prediction only: the fixed point still matches the true rates)
-            _rates(x, w_um, s, w_fm)
+            kernel.rhs(x, w_um, fan, air, prm, planes, ints, heat, w_fm)
             n_rhs += 1
             for i in range(n):
                 w_b_prev[i] += (w_fm[i] - w_f0[i]) / KINK_SPAN
-        ok, h, iters, eta, j_pref, first_after_switch, rejected, nr = _segment(
-            w, s, x, t, h, lin, s0, chain_, segment, j_pref, tol, tol_iter, eta, first_after_switch)
-        n_rhs += nr
-        n_rej += rejected
-        if not ok:
+        # the segment: tried at length h and halved until its fixed point converges within the error check
+        tries = 0
+        while True:
+            blk = store[_lookup(h, lens, store, cnt, jac, s0, chain_)]
+            blk_m = store[_lookup(0.5 * h, lens, store, cnt, jac, s0, chain_)]
+            converged, iters, eta, nr = _fixed_point(w, s, x, t, h, jac, jac_b, blk, blk_m, tol, tol_iter, eta)
+            n_rhs += nr
+            verdict, h, j_pref, first_after_switch = _verdict(converged, w_c, h, segment, j_pref, tol,
+                                                              first_after_switch, tries, meta)
+            if verdict != _RETRY:
+                break
+            tries += 1
+        n_rej += tries
+        if verdict == _GIVE_UP:
             return FAILED, t, k, n_rhs, n_jac, n_rej, n_seg
         n_seg += 1
-        blk = _blocks_over(lin, h, s0, chain_)
         _book_remainder(w, jac_b, h, n)
-        status, crossed, sigma, step, k = _checks(w, x, books, t, h, origin, q_step, lin, s0, chain_, blk, out_t,
-                                                  k, out_y, i_sensor, level, direction)
+        first, expanded, blk_q, blk_f = _check_blocks(t, h, origin, q_step, store, lens, cnt, jac, jac_b, k_q, s0,
+                                                      chain_)
+        status, crossed, sigma, step, k = _check_loop(w, x, books, t, h, q_step, first, expanded, blk, blk_q, blk_f,
+                                                      jac_b, k_q, out_t, k, out_y, i_sensor, level, direction)
         if status == OFF_GRID:
             return OFF_GRID, t, k, n_rhs, n_jac, n_rej, n_seg
         if not crossed:
@@ -854,13 +853,6 @@ def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, 
             x[i] += w_zt[i]
         return SWITCH, t + sigma, k, n_rhs, n_jac, n_rej, n_seg
     return DONE, t, k, n_rhs, n_jac, n_rej, n_seg
-
-
-@nb.njit(cache=True, inline="always")
-def _blocks_over(lin, h, s0, chain_):
-    """The blocks over h from the linearisation's cache (computed when missing)."""
-    store = lin[3]
-    return store[_lookup(h, lin[4], store, lin[6], lin[0], s0, chain_)]
 
 
 @nb.njit(cache=True, inline="always")
