@@ -624,7 +624,35 @@ def _check_runs(plan: Plan) -> None:
 
 def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, force, progress, on_point, command,
                  plots) -> StudyOutcome:
-    """run_study's work, in a folder this process has claimed."""
+    """run_study's work, in a folder this process has claimed: plan and check, run the points not done yet,
+    write the tables, the recommendation and the figures, then the study's record."""
+    plan, previous, done, todo = _planned(study, out, resume, force, progress)
+    reused = len(plan.points) - len(todo)
+    executor, close, backend = _backend(executor, scheduler, workers, len(todo))
+    try:
+        _prepare_dir(out, resume)
+        record = _study_record(plan, previous, command)
+        _write_atomic(out / STUDY_JSON, lambda p: p.write_text(json.dumps(record, indent=2, default=str) + "\n"))
+    except BaseException:
+        if close is not None:
+            close()
+        raise
+    run = _run_points(plan, todo, done, reused, out, executor, close, scheduler, progress, on_point)
+    computed, failed, wall, started = run
+    if todo and not any(done.get(p.key, {}).get("status") == "ok" for p in plan.points):
+        _every_point_failed(plan, done, out, resume, previous)
+    table, rec, files, notes = _write_results(plan, done, out, plots, failed)
+    record["runs"].append({"started": started, "backend": backend, "computed": computed, "reused": reused,
+                           "failed": failed, "wall_s": round(wall, 3)})
+    _write_atomic(out / STUDY_JSON, lambda p: p.write_text(json.dumps(record, indent=2, default=str) + "\n"))
+    files.insert(0, out / STUDY_JSON)
+    files.insert(1, out / JOURNAL)
+    return StudyOutcome(out, table, rec, files, computed, reused, failed, wall, backend, notes)
+
+
+def _planned(study, out, resume, force, progress):
+    """The study's checked plan, the earlier record (on resume), the points already done (from the journal)
+    and those still to run."""
     if resume and study.seed is None and study.sample == "lhs" and (out / STUDY_JSON).exists():
         try:  # an interrupted Latin-hypercube study resumes with the seed it drew
             study.seed = json.loads((out / STUDY_JSON).read_text())["study"]["seed"]
@@ -643,32 +671,28 @@ def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, for
         for rec in read_journal(out / JOURNAL):
             if rec.get("key") in wanted and rec.get("status") == "ok":
                 done[rec["key"]] = rec
-    todo = [p for p in plan.points if p.key not in done]
-    reused = len(plan.points) - len(todo)
+    return plan, previous, done, [p for p in plan.points if p.key not in done]
 
-    close = None
+
+def _backend(executor, scheduler, workers, n_todo):
+    """(executor or None, its closing function or None, its name): the caller's executor, a Dask scheduler's,
+    a pool of local processes, or this process alone."""
     if executor is not None:
-        backend = f"executor {type(executor).__name__}"
-    elif scheduler:
+        return executor, None, f"executor {type(executor).__name__}"
+    if scheduler:
         executor, close = dask_executor(scheduler)
-        backend = f"dask {scheduler}"
-    else:
-        n = min(workers or os.cpu_count() or 1, max(1, len(todo)))
-        if n > 1:
-            executor = process_executor(n)
-            close = lambda: executor.shutdown(wait=True)  # noqa: E731
-            backend = f"local processes x{n}"
-        else:
-            backend = "this process"
-    try:
-        _prepare_dir(out, resume)
-        record = _study_record(plan, previous, command)
-        _write_atomic(out / STUDY_JSON, lambda p: p.write_text(json.dumps(record, indent=2, default=str) + "\n"))
-    except BaseException:
-        if close is not None:
-            close()
-        raise
+        return executor, close, f"dask {scheduler}"
+    n = min(workers or os.cpu_count() or 1, max(1, n_todo))
+    if n > 1:
+        executor = process_executor(n)
+        return executor, lambda: executor.shutdown(wait=True), f"local processes x{n}"
+    return None, None, "this process"
 
+
+def _run_points(plan, todo, done, reused, out, executor, close, scheduler, progress, on_point):
+    """Run the points still to do, each appended to the journal and to ``done`` as it finishes. Returns
+    (computed, failed, wall seconds, start time). Interrupted, it cancels what is queued, ends the local
+    workers and says what is kept."""
     from atticsim.progress import Progress
 
     bar = Progress(len(plan.points), reused, progress)
@@ -677,15 +701,14 @@ def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, for
     t_start = time.perf_counter()
     started = _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds")
     by_key = {p.key: p for p in plan.points}
-    computed = failed = 0
+    counts = {"computed": 0, "failed": 0}
 
     def finish(rec):
-        nonlocal computed, failed
         p = by_key[rec["key"]]
         rec = {**rec, "point": p.index, "given": p.given, "overrides": p.overrides}
         journal.append(rec)
-        computed += 1
-        failed += rec["status"] != "ok"
+        counts["computed"] += 1
+        counts["failed"] += rec["status"] != "ok"
         done[rec["key"]] = rec
         bar.update(rec)
         if on_point is not None:
@@ -695,15 +718,15 @@ def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, for
     try:
         if executor is None:
             for p in todo:
-                finish(run_point(p.task(study)))
+                finish(run_point(p.task(plan.study)))
         else:
-            futures = [executor.submit(run_point, p.task(study)) for p in todo]
+            futures = [executor.submit(run_point, p.task(plan.study)) for p in todo]
             for fut in cf.as_completed(futures):
                 try:
                     result = fut.result()
                 except cf.process.BrokenProcessPool:
-                    raise StudyError(f"a worker process died; the {computed + reused} finished points are kept "
-                                     f"in {out / JOURNAL}: rerun with --resume") from None
+                    raise StudyError(f"a worker process died; the {counts['computed'] + reused} finished points "
+                                     f"are kept in {out / JOURNAL}: rerun with --resume") from None
                 finish(result)
     except BaseException as exc:
         for fut in futures:
@@ -712,7 +735,7 @@ def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, for
             executor.shutdown(wait=False, cancel_futures=True)
             close = None
         if isinstance(exc, KeyboardInterrupt) and progress is not None:
-            kept = computed - failed + reused
+            kept = counts["computed"] - counts["failed"] + reused
             progress.write(f"\nsweep: stopped; {kept} finished point{'s' if kept != 1 else ''} kept in "
                            f"{out / JOURNAL}: rerun with --resume to continue\n")
         raise
@@ -721,13 +744,13 @@ def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, for
         bar.close()
         if close is not None:
             close()
-    wall = time.perf_counter() - t_start
-    if todo and not any(done.get(p.key, {}).get("status") == "ok" for p in plan.points):
-        _every_point_failed(plan, done, out, resume, previous)
+    return counts["computed"], counts["failed"], time.perf_counter() - t_start, started
 
-    from atticsim.study.analysis import (OBJECTIVE_NAMES, circuit_parts, edges, pareto_columns, pareto_mask,
-                                         qualifying, recommend)
 
+def _write_results(plan, done, out, plots, failed):
+    """points.csv/.parquet, pareto.csv, recommendation.json and the figures. Returns (table, recommendation,
+    files written, notes)."""
+    study = plan.study
     table = build_table(plan, done)
     files = []
 
@@ -737,46 +760,8 @@ def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, for
 
     put("points.csv", lambda p: table.to_csv(p, index=False))
     put("points.parquet", lambda p: table.to_parquet(p, index=False))
-    heat_col = HEAT_METRICS[study.heat_metric]
-    rec = recommend(table, study.starts_limit, heat_col, study.short_cycles_allowed, study.heat_tolerance)
-    # the Pareto front over the qualifying points (the trade-off left once the fan does not short-cycle)
-    cols = pareto_columns(heat_col)
-    eligible = qualifying(table, study.starts_limit, study.short_cycles_allowed, heat_col)
-    mask = np.zeros(len(table), bool)
-    if eligible.any() and all(c in table for c in cols):
-        mask[eligible] = pareto_mask(table.loc[eligible, cols].to_numpy(dtype=float))
-    front = table[mask].sort_values("fan_energy_kwh", kind="mergesort")
+    rec, front, eligible, mask, cols = _recommendation(plan, table, done)
     put("pareto.csv", lambda p: front.to_csv(p, index=False))
-    rec["pareto_points"] = [int(i) for i in front["point"]]
-    rec["pareto_objectives"] = [{"column": c, "meaning": OBJECTIVE_NAMES.get(c, c), "goal": "minimise"}
-                                for c in cols]
-    rec["pareto_among"] = "qualifying points (step 1 of the rule)"
-
-    def describe(point):
-        row = table[table["point"] == point].iloc[0]
-        return {"point": int(point),
-                "values": {k: _plain(row[k]) for k in plan.points[0].given},
-                "given": {k: row[f"{k}_given"] for k in plan.points[0].given},
-                "figures": {k: _plain(row[k]) for k in (
-                    "starts_per_day", "fan_starts", "max_starts_per_hour", "short_cycles", "cycle_minutes_median",
-                    "fan_run_hours", "fan_energy_kwh", "attic_air_max_c", "degree_hours_above_limit",
-                    "ceiling_heat_gain_kwh", "net_benefit_kwh", "hysteresis_k") if k in row},
-                "overrides": plan.points[point].overrides}
-
-    rec["on_edge"], rec["edges"] = [], []
-    point_warnings = []
-    if rec.get("point") is not None:
-        rec.update({k: v for k, v in describe(rec["point"]).items() if k != "point"})
-        if rec.get("runner_up") is not None:
-            rec["runner_up"] = describe(rec["runner_up"])
-        rec["edges"] = edges(table, rec["point"], study.axes, sampled=study.sample == "lhs")
-        rec["on_edge"] = [e["key"] for e in rec["edges"]]
-        parts = circuit_parts(plan.points[rec["point"]].scenario)
-        if parts is not None:
-            rec["circuit_parts"] = parts
-        point_warnings = list(done.get(plan.points[rec["point"]].key, {}).get("warnings") or [])
-    rec["warnings"] = list(dict.fromkeys(plan.warnings + point_warnings))
-    rec["comfort_limit_c"] = study.comfort_limit_c
     put("recommendation.json", lambda p: p.write_text(json.dumps(rec, indent=2, default=_plain) + "\n"))
     notes = list(plan.notes)
     if plots:
@@ -793,10 +778,55 @@ def _run_claimed(study, out, claim, *, workers, scheduler, executor, resume, for
         bad = table[table["status"] != "ok"]
         notes.append(f"{len(bad)} point(s) failed, e.g. point {int(bad['point'].iloc[0])}: {bad['error'].iloc[0]}"
                      " (rerun with --resume to retry them)")
+    return table, rec, files, notes
 
-    record["runs"].append({"started": started, "backend": backend, "computed": computed, "reused": reused,
-                           "failed": failed, "wall_s": round(wall, 3)})
-    _write_atomic(out / STUDY_JSON, lambda p: p.write_text(json.dumps(record, indent=2, default=str) + "\n"))
-    files.insert(0, out / STUDY_JSON)
-    files.insert(1, out / JOURNAL)
-    return StudyOutcome(out, table, rec, files, computed, reused, failed, wall, backend, notes)
+
+def _recommendation(plan, table, done):
+    """The rule's recommendation (with its runner-up, edges, circuit parts and warnings) and the Pareto front
+    over the qualifying points (the trade-off left once the fan does not short-cycle). Returns
+    (recommendation, front, qualifying mask, front mask, objective columns)."""
+    from atticsim.study.analysis import (OBJECTIVE_NAMES, circuit_parts, edges, pareto_columns, pareto_mask,
+                                         qualifying, recommend)
+
+    study = plan.study
+    heat_col = HEAT_METRICS[study.heat_metric]
+    rec = recommend(table, study.starts_limit, heat_col, study.short_cycles_allowed, study.heat_tolerance)
+    cols = pareto_columns(heat_col)
+    eligible = qualifying(table, study.starts_limit, study.short_cycles_allowed, heat_col)
+    mask = np.zeros(len(table), bool)
+    if eligible.any() and all(c in table for c in cols):
+        mask[eligible] = pareto_mask(table.loc[eligible, cols].to_numpy(dtype=float))
+    front = table[mask].sort_values("fan_energy_kwh", kind="mergesort")
+    rec["pareto_points"] = [int(i) for i in front["point"]]
+    rec["pareto_objectives"] = [{"column": c, "meaning": OBJECTIVE_NAMES.get(c, c), "goal": "minimise"}
+                                for c in cols]
+    rec["pareto_among"] = "qualifying points (step 1 of the rule)"
+    rec["on_edge"], rec["edges"] = [], []
+    point_warnings = []
+    if rec.get("point") is not None:
+        rec.update({k: v for k, v in _describe(plan, table, rec["point"]).items() if k != "point"})
+        if rec.get("runner_up") is not None:
+            rec["runner_up"] = _describe(plan, table, rec["runner_up"])
+        rec["edges"] = edges(table, rec["point"], study.axes, sampled=study.sample == "lhs")
+        rec["on_edge"] = [e["key"] for e in rec["edges"]]
+        parts = circuit_parts(plan.points[rec["point"]].scenario)
+        if parts is not None:
+            rec["circuit_parts"] = parts
+        point_warnings = list(done.get(plan.points[rec["point"]].key, {}).get("warnings") or [])
+    rec["warnings"] = list(dict.fromkeys(plan.warnings + point_warnings))
+    rec["comfort_limit_c"] = study.comfort_limit_c
+    return rec, front, eligible, mask, cols
+
+
+def _describe(plan, table, point) -> dict:
+    """A point as recommendation.json gives it: its number, varied values (SI and as given), figures and
+    overrides."""
+    row = table[table["point"] == point].iloc[0]
+    return {"point": int(point),
+            "values": {k: _plain(row[k]) for k in plan.points[0].given},
+            "given": {k: row[f"{k}_given"] for k in plan.points[0].given},
+            "figures": {k: _plain(row[k]) for k in (
+                "starts_per_day", "fan_starts", "max_starts_per_hour", "short_cycles", "cycle_minutes_median",
+                "fan_run_hours", "fan_energy_kwh", "attic_air_max_c", "degree_hours_above_limit",
+                "ceiling_heat_gain_kwh", "net_benefit_kwh", "hysteresis_k") if k in row},
+            "overrides": plan.points[point].overrides}
