@@ -84,13 +84,26 @@ def answer_cards(s: dict, units: str = "si") -> str:
         cards.append(("ceiling heat kept out of the rooms by the fan", _kwh(nofan - gain), False))
     for k, v in s.items():  # figures of the heating and cooling seasons, whatever they are called
         if (k.startswith(("cooling_", "heating_")) and k.endswith("_kwh") and isinstance(v, (int, float))
-                and not isinstance(v, bool)):
+                and not isinstance(v, bool) and _season_card(s, k, v)):
             cards.append((label(k), _kwh(v), False))
     net = s.get("net_benefit_kwh")
     add("net_benefit_kwh", f"{net:+.2f} kWh" if net is not None else "n/a", net is not None and net < 0)
     add("attic_air_max_c", _temp(s.get("attic_air_max_c"), units))
     add("deck_max_c", _temp(s.get("deck_max_c"), units))
     return answers(cards)
+
+
+#: The seasons' totals, shown whenever their season has days in the period; their parts only when not zero.
+SEASON_TOTALS = ("cooling_savings_kwh", "heating_penalty_kwh")
+
+
+def _season_card(s: dict, key: str, value: float) -> bool:
+    """Whether a season's figure earns a headline card: not for a season with no day in the period (a summer
+    week's heating penalty), nor for a part of a total that is zero (the total says it)."""
+    days = s.get("days_cooling" if key.startswith("cooling_") else "days_heating")
+    if days is not None and days == 0:
+        return False
+    return key in SEASON_TOTALS or abs(value) >= 0.005
 
 
 def net_benefit_parts(s: dict, cop: float) -> str:
