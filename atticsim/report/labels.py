@@ -16,7 +16,7 @@ UNITS = (
 LABELS = {
     "period_start": "period starts", "period_end": "period ends", "days": "days simulated",
     "fan_run_hours": "fan run time", "fan_starts": "fan starts", "fan_energy_kwh": "fan electricity",
-    "fan_starts_per_day": "fan starts per day", "fan_start_energy_kwh": "electricity of the starts (in the fan's)",
+    "fan_starts_per_day": "fan starts per day", "fan_start_energy_kwh": "electricity of the motor's starts (included in the fan electricity)",
     "short_cycles": "short cycles (runs shorter than the short-cycle time)",
     "cycle_minutes_median": "median run length [min]",
     "attic_air_max_c": "attic air, highest", "attic_air_mean_c": "attic air, mean",
