@@ -104,7 +104,8 @@ def board(t_up, t_lo, t_deck, t_floor, t_out, t_enc, fan_speed, fan_flow, fan_ar
 class Placement:
     """One sensor placement: its name (the scenario's word), its code in the compiled network, what the
     sensor sees (for the README and the CLI), why it behaves as it does (the placements comparison's words),
-    whether it needs the control-box node, and its local-conditions function."""
+    whether it needs the control-box node, its local-conditions function, and whether it reads the attic's
+    own air (the ridge and mid placements: the baseline the placements comparison measures the others by)."""
 
     name: str
     code: int
@@ -112,13 +113,14 @@ class Placement:
     why: str
     needs_enclosure: bool
     function: object
+    reads_attic_air: bool = False
 
 
 PLACEMENTS = {p.name: p for p in (
     Placement("ridge", 0, "upper air layer; 0.15 m/s with the fan off, 0.5 m/s on; faces the deck",
-              "it reads the hottest air near the ridge", False, ridge),
+              "it reads the hottest air near the ridge", False, ridge, reads_attic_air=True),
     Placement("mid", 1, "mean of upper and lower air; 0.15 / 0.3 m/s; faces deck and floor",
-              "it reads the mixed mid-attic air", False, mid),
+              "it reads the mixed mid-attic air", False, mid, reads_attic_air=True),
     Placement("exhaust", 2, "upper air in the fan's inlet stream; the fan's face velocity when running",
               "it sits in the fan's fast air stream, so it follows the attic air closely while the fan runs",
               False, exhaust),

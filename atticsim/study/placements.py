@@ -113,7 +113,8 @@ def placement_findings(table: pd.DataFrame, short_cycle_min: float) -> list[str]
         if row["short_cycles"] > 0:
             lines.append(f"{name}: SHORT-CYCLES ({row['short_cycles']} runs under {short_cycle_min:.0f} min, "
                          f"{row['starts_per_day']:.1f} starts a day) because {WHY[name]}.")
-    base = table.loc[table["placement"].isin(["ridge", "mid"]), "fan_run_hours"]
+    air = [name for name, p in PLACEMENTS.items() if p.reads_attic_air]
+    base = table.loc[table["placement"].isin(air), "fan_run_hours"]
     ref = float(base.mean()) if len(base) else float(table["fan_run_hours"].median())
     for _, row in table.iterrows():
         name = row["placement"]
