@@ -2,7 +2,7 @@
 
 pint can cache its parsed definitions on disk, and its entries hold paths into the environment that wrote
 them (its own default_en.txt). A cache shared by every environment with the same pint version (pint's
-``cache_folder=":auto:"``, one user-wide folder) breaks every other environment once the environment that
+automatic cache folder, one for the whole user) breaks every other environment once the environment that
 filled it is deleted: ``FileNotFoundError: .../pint/default_en.txt/constants_en.txt``. atticsim keys its pint
 cache by the location and version of the pint it runs with, inside its own cache folder, and falls back to
 no cache on any failure of it.
