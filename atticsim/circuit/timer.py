@@ -51,7 +51,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from atticsim.circuit.comparator import COMMON_MODE_HEADROOM
-from atticsim.circuit.tolerance import band, corner_deviations, extremes, random_deviations
+from atticsim.circuit.tolerance import band, corner_deviations, extremes, random_deviations, require_fractions
 
 #: The wirings and the time rules each one implements.
 TIMER_RULES = {
@@ -165,10 +165,7 @@ class TimerTolerances:
     threshold: float = 0.02
 
     def __post_init__(self):
-        for name in ("resistor", "capacitor", "threshold"):
-            v = getattr(self, name)
-            if not (isinstance(v, numbers.Real) and 0.0 <= v < 0.5):
-                raise ValueError(f"timer {name} tolerance must be a fraction between 0 and 0.5 (got {v!r})")
+        require_fractions(self, ("resistor", "capacitor", "threshold"), "timer ")
 
 
 @dataclass(frozen=True)

@@ -52,12 +52,17 @@ class Tolerances:
     offset: float = 0.005
 
     def __post_init__(self):
-        for name in ("resistor", "trim", "r25", "beta", "rail"):
-            v = getattr(self, name)
-            if not (isinstance(v, numbers.Real) and 0.0 <= v < 0.5):
-                raise ValueError(f"{name} tolerance must be a fraction between 0 and 0.5 (got {v!r})")
+        require_fractions(self, ("resistor", "trim", "r25", "beta", "rail"))
         if not (isinstance(self.offset, numbers.Real) and 0.0 <= self.offset < 1.0):
             raise ValueError(f"comparator offset tolerance must be between 0 and 1 V (got {self.offset!r})")
+
+
+def require_fractions(tolerances, names, what: str = "") -> None:
+    """Refuse a tolerance that is not a fraction from 0 to 0.5 (of its part's value), naming it."""
+    for name in names:
+        v = getattr(tolerances, name)
+        if not (isinstance(v, numbers.Real) and 0.0 <= v < 0.5):
+            raise ValueError(f"{what}{name} tolerance must be a fraction between 0 and 0.5 (got {v!r})")
 
 
 @dataclass(frozen=True)

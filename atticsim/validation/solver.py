@@ -151,9 +151,9 @@ def sensor_step():
                            + ("under 0.0001 K" if worst < 1e-4 else f"{worst:.4f} K"))
 
 
-class _DrivenRC:
+class DrivenRC:
     """One RC node driven through a conductance by forcing channel 0 (a minimal network for the hybrid
-    driver: ``rate`` at one state)."""
+    driver: ``rate`` at one state); the periodic-response case and its test use it."""
 
     n_nodes = 1
     index = {"sensor": 0}
@@ -189,7 +189,7 @@ def driven_rc():
     t_grid = np.arange(0.0, 8 * period + step, step)
     forcing = Forcing(times=None, step=step, values=(amp * np.sin(w * t_grid))[None, :], channels=["in"], notes=[])
     t_out = np.arange(6 * period, 8 * period + 1.0, 10.0)
-    run = run_reference(_DrivenRC(tau), forcing, 0.0, 8 * period, np.zeros(1 + len(BOOKS)), t_out, rtol=1e-9)
+    run = run_reference(DrivenRC(tau), forcing, 0.0, 8 * period, np.zeros(1 + len(BOOKS)), t_out, rtol=1e-9)
     basis = np.vstack([np.sin(w * t_out), np.cos(w * t_out)]).T
     a, b = np.linalg.lstsq(basis, run.y[0], rcond=None)[0]
     lag = -np.arctan2(b, a)

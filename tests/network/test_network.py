@@ -8,6 +8,7 @@ from atticsim.forcing.build import Forcing, build_forcing
 from atticsim.network.model import BOOKS
 from atticsim.assembly import build_network
 from atticsim.scenario import demo_scenario
+from atticsim.validation.solver import DrivenRC
 from atticsim.hybrid.driver import simulate_hybrid
 from atticsim.hybrid.reference import ReferenceStepper
 
@@ -45,20 +46,6 @@ def test_sensor_step_response_is_first_order():
     assert np.max(np.abs(run.y[net.index["sensor"]] - expected)) < 2e-3
 
 
-class _DrivenRC:
-    """One RC node driven through a conductance by forcing channel 0 (a minimal network for the loop)."""
-
-    n_nodes = 1
-    index = {"sensor": 0}
-    airflow = None
-
-    def __init__(self, tau):
-        self.tau = tau
-
-    def rate(self, x, u, fan_on, air):
-        return np.concatenate([[(u[0] - x[0]) / self.tau], np.zeros(len(BOOKS))])
-
-
 def test_driven_rc_periodic_amplitude_and_phase():
     # Driven first-order system T' = (T_in - T)/tau with T_in = A sin(w t): periodic solution has
     # amplitude A / sqrt(1 + (w tau)^2) and lags by atan(w tau) (standard linear-systems result,
@@ -71,7 +58,7 @@ def test_driven_rc_periodic_amplitude_and_phase():
                       notes=[])
     t_out = np.arange(6 * period, 8 * period + 1.0, 10.0)
     y0 = np.zeros(1 + len(BOOKS))
-    run = reference_run(_DrivenRC(tau), forcing, 0.0, 8 * period, y0, t_out, rtol=1e-9)
+    run = reference_run(DrivenRC(tau), forcing, 0.0, 8 * period, y0, t_out, rtol=1e-9)
     y = run.y[0]
     # Least-squares fit of a sin + b cos over the last two periods.
     basis = np.vstack([np.sin(w * t_out), np.cos(w * t_out)]).T

@@ -1,16 +1,6 @@
-"""The network at steady state under constant weather against the resistance network worked by hand
-(atticsim.validation.hand_network, shared with the validation cases).
-
-A house of our own (the demo bungalow with one well-mixed air node, no vents, the fan stopped) under constant
-weather with the sky at air temperature: heat flows from the outdoor air through the exterior film, the whole
-covering and sheathing, the attic's inside films (in parallel with the deck's radiation to the attic floor)
-and the whole ceiling to the rooms. The hand calculation is the handbook's series-parallel resistance sum
-(ASHRAE Handbook Fundamentals, heat transmission chapter: U = 1 / sum R, films and layers in series,
-parallel paths added as conductances), its film coefficients taken from the same correlations at the surface
-temperatures the sum itself gives (iterated, as a design calculation iterates its film temperatures); with
-constant sun on the roof the outer surface balance is the sol-air form (ASHRAE Handbook Fundamentals,
-sol-air temperature) with the inward path as one more resistance.
-"""
+"""The network at steady state under constant weather against the resistance network worked by hand: the
+house, the weather and the handbook's series-parallel sum (with its sources) are in
+atticsim.validation.hand_network, shared with the validation cases."""
 
 import pytest
 
