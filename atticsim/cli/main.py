@@ -23,6 +23,7 @@ from contextlib import contextmanager
 import click
 
 from atticsim.version import __version__
+from atticsim import stopping
 from atticsim.errors import InterruptedRun, is_input_error, one_line
 
 #: OSError numbers that mean a path the user gave is wrong (bad input) rather than a machine failing.
@@ -30,28 +31,19 @@ _PATH_ERRNOS = {errno.ENOENT, errno.EACCES, errno.EPERM, errno.EISDIR, errno.ENO
                 errno.ENAMETOOLONG, errno.ELOOP}
 #: Signals handled like Ctrl-C.
 STOP_SIGNALS = tuple(getattr(signal, name) for name in ("SIGTERM", "SIGHUP") if hasattr(signal, name))
-_stopping: list = []
-
-
-def _raise_on_signal(signum, frame):
-    """Stop the run the way Ctrl-C does (an exception every clean-up handles); later signals are ignored while
-    the clean-up runs."""
-    if _stopping:
-        return
-    _stopping.append(signum)
-    raise InterruptedRun(signum, signal.Signals(signum).name)
 
 
 @contextmanager
 def stop_signals():
-    """SIGTERM and SIGHUP raise :class:`InterruptedRun` while the block runs (main thread only)."""
+    """SIGTERM and SIGHUP raise :class:`InterruptedRun` while the block runs (main thread only; see
+    :mod:`atticsim.stopping`)."""
     saved = {}
+    stopping.reset()
     try:
         for sig in STOP_SIGNALS:
-            saved[sig] = signal.signal(sig, _raise_on_signal)
+            saved[sig] = signal.signal(sig, stopping.handler)
     except ValueError:  # not the main thread: leave the signals alone
         pass
-    _stopping.clear()
     try:
         yield
     finally:

@@ -30,6 +30,7 @@ import sys
 import time
 from pathlib import Path
 
+from atticsim import stopping
 from atticsim.errors import OutputError, WriteFailure
 
 LOCK = ".atticsim-lock"
@@ -184,8 +185,9 @@ class OutputClaim:
                         raise
                     raise WriteFailure(exc.errno, f"{self.out}: cannot write {name}: {_os_reason(exc)}; nothing "
                                                   f"was written") from None
-            for name in writers:
-                os.replace(tmp / name, self.out / name)
+            with stopping.held():  # a stop dropped by a finaliser is raised here; none cuts the moves in half
+                for name in writers:
+                    os.replace(tmp / name, self.out / name)
             tmp.rmdir()
         except WriteFailure:
             raise

@@ -1,9 +1,13 @@
 """Output folders: claimed by one run at a time, written all at once, nothing left by a failure, what a killed
 run left removed by the next claim."""
 
+import signal
+import sys
+
 import pytest
 
-from atticsim.errors import InputError, OutputError, WriteFailure
+from atticsim import stopping
+from atticsim.errors import InputError, InterruptedRun, OutputError, WriteFailure
 from atticsim.results.output import LOCK, claim_output, write_outputs
 
 
@@ -80,3 +84,47 @@ def test_hidden_folders_of_earlier_versions_beside_the_output_are_reported(tmp_p
     with claim_output(tmp_path / "out") as claim:
         assert len(claim.notes) == 1 and ".out.k3j2h9x_: looks like the unfinished files" in claim.notes[0]
     assert (tmp_path / ".out.k3j2h9x_").exists()  # said, not removed
+
+
+# --- a stop asked for by a signal (atticsim.stopping) -------------------------------------------------------
+
+@pytest.fixture
+def no_stop():
+    stopping.reset()
+    yield
+    stopping.reset()
+
+
+class _Finaliser:
+    """Runs the signal handler inside ``__del__``, where Python prints the exception it raises and drops it."""
+
+    def __del__(self):
+        stopping.handler(signal.SIGTERM, None)
+
+
+def test_a_stop_dropped_by_a_finaliser_is_raised_before_the_files_are_moved(tmp_path, no_stop, monkeypatch):
+    dropped = []
+    monkeypatch.setattr(sys, "unraisablehook", lambda what: dropped.append(what.exc_type))
+
+    def writer(path):
+        path.write_text("x")
+        _Finaliser()  # the stop raised in here is lost to the writer: the write goes on
+
+    with pytest.raises(InterruptedRun):
+        write_outputs(tmp_path / "o", {"a.txt": writer, "b.txt": lambda p: p.write_text("y")})
+    assert dropped == [InterruptedRun]  # it was dropped where it was raised
+    assert not (tmp_path / "o").exists()  # nothing claimed, nothing left behind
+
+
+def test_a_stop_during_a_held_block_waits_for_its_end(no_stop):
+    done = []
+    with pytest.raises(InterruptedRun) as caught:
+        with stopping.held():
+            stopping.handler(signal.SIGHUP, None)  # not raised here
+            done.append("rest of the block")
+    assert done == ["rest of the block"] and caught.value.name == "SIGHUP"
+
+
+def test_without_a_signal_nothing_is_raised(tmp_path, no_stop):
+    stopping.raise_if_stopped()
+    assert [p.name for p in write_outputs(tmp_path / "o", {"a.txt": lambda p: p.write_text("x")})] == ["a.txt"]
