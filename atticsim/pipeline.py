@@ -11,6 +11,7 @@ This is the Python API the CLI wraps::
 from __future__ import annotations
 
 import dataclasses
+import threading
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -171,6 +172,29 @@ def model_notes(scenario) -> list[str]:
     return notes + scenario.roof.optics()[1]
 
 
+class Beside:
+    """``work()`` run in a thread of its own while the caller goes on; :meth:`result` waits for it and
+    returns what it returned or raises what it raised. A daemon thread: a run stopped meanwhile does not
+    wait for it."""
+
+    def __init__(self, work):
+        self._value, self._error = None, None
+        self._thread = threading.Thread(target=self._run, args=(work,), name="atticsim-beside", daemon=True)
+        self._thread.start()
+
+    def _run(self, work):
+        try:
+            self._value = work()
+        except BaseException as exc:  # noqa: BLE001 - handed to the caller by result()
+            self._error = exc
+
+    def result(self):
+        self._thread.join()
+        if self._error is not None:
+            raise self._error
+        return self._value
+
+
 def _say(progress, stage: str) -> None:
     if progress is not None and stage:
         progress(stage)
@@ -249,25 +273,29 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
             report(1.0)
         return run, y_start
 
+    no_fan_outputs = no_fan_output_times(output_times, period, forcing, sim)
+    key = _no_fan_key(no_fan_scenario, frame, period, pressure) if include_no_fan and reuse_no_fan else None
+    # the no-fan run, when one is needed, goes on in a thread beside the fan's (the compiled solver lets go
+    # of the GIL, so on a machine with two cores the two take the time of the longer); it says nothing
+    beside = (Beside(lambda: one(False, no_fan_outputs))
+              if include_no_fan and (key is None or key not in _NO_FAN_RUNS) else None)
     with_fan, y_fan = one(scenario.fan.enabled, output_times,
                           f"simulating {words} " + ("with the fan" if scenario.fan.enabled else "(fan disabled)"))
-    no_fan_outputs = no_fan_output_times(output_times, period, forcing, sim)
-    if include_no_fan and reuse_no_fan:
-        key = _no_fan_key(no_fan_scenario, frame, period, pressure)
-        if key not in _NO_FAN_RUNS:
+    if beside is not None:
+        _say(progress, f"simulating {words} without the fan")  # (what is left of it)
+        without_fan, y_nofan = beside.result()
+    if key is not None:
+        if beside is not None:
             while len(_NO_FAN_RUNS) >= _NO_FAN_KEEP:
                 _NO_FAN_RUNS.pop(next(iter(_NO_FAN_RUNS)))
-            run, y_run = one(False, no_fan_outputs, f"simulating {words} without the fan")
-            for array in (run.t, run.y, run.fan, run.y_end, y_run):
+            for array in (without_fan.t, without_fan.y, without_fan.fan, without_fan.y_end, y_nofan):
                 array.setflags(write=False)  # shared with every caller: read-only, so none can change it
-            _NO_FAN_RUNS[key] = (run, y_run)
+            _NO_FAN_RUNS[key] = (without_fan, y_nofan)
         kept, y_nofan = _NO_FAN_RUNS[key]
         # the arrays are shared (read-only); fresh lists for this caller (the airflow states are frozen)
         without_fan = dataclasses.replace(kept, events=list(kept.events), air_updates=list(kept.air_updates),
                                           notes=list(kept.notes))
-    elif include_no_fan:
-        without_fan, y_nofan = one(False, no_fan_outputs, f"simulating {words} without the fan")
-    else:
+    elif not include_no_fan:
         without_fan, y_nofan = None, None
     notes = (list(getattr(meta, "notes", [])) + list(forcing.notes) + model_notes(scenario) + with_fan.notes
              + (without_fan.notes if without_fan is not None else []))

@@ -735,7 +735,7 @@ def _remainder_at(w, sigma, n):
         w_v1[i] = w_b[i] + 2.0 * w_c[i] * sigma
 
 
-@nb.njit(cache=True)
+@nb.njit(cache=True, nogil=True)  # lets go of the GIL: a second simulation or the caller's threads run beside it
 def advance(t, t_end, origin, segment, q_step, x, books, fan, air, prm, planes, ints, heat,
             f_values, f_step, out_t, k, out_y, i_sensor, level, direction, tol, tol_iter, drift, age,
             unit_halvings, lin, after_switch, slow_iters):

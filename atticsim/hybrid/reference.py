@@ -4,6 +4,9 @@ Between events the fan state and the held air flows are fixed and the network is
 integrated with ``solve_ivp`` (LSODA, tight tolerances) from the driver's present instant to its next stop; the
 switching condition is a terminal event function on the sensor temperature, whose root ``solve_ivp`` locates
 on its dense output. The hybrid driver (:mod:`atticsim.hybrid.driver`) owns everything else.
+
+Its steps are taken one at a time in the process (:func:`atticsim.hybrid.threads.one_blas_thread`), which also
+keeps scipy's LSODA, written for one caller at a time, from being entered by two threads.
 """
 
 from __future__ import annotations

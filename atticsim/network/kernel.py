@@ -704,7 +704,7 @@ def flows(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
         q[j] = values[j]
 
 
-@numba.njit(cache=True, **_JIT)
+@numba.njit(cache=True, nogil=True, **_JIT)  # lets go of the GIL: blocks of columns run in threads side by side
 def flows_columns(x, u, fan, air, prm, planes, ints, heat, q, q_planes):
     """:func:`flows` for each column j of x (n_nodes, m), u (n_u, m), fan (m,) and air (9, m), into q
     (N_FLOWS, m) and q_planes (4 P, m)."""
