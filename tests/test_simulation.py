@@ -117,6 +117,52 @@ def test_reused_no_fan_run_equals_a_fresh_one(clear_week):
     assert changed.summary["ceiling_heat_gain_no_fan_kwh"] != fresh.summary["ceiling_heat_gain_no_fan_kwh"]
 
 
+def test_the_no_fan_run_beside_the_fans_is_the_run_made_alone(clear_week, monkeypatch):
+    # run_raw integrates the no-fan run in a thread while the fan's runs: the same numbers as one after the
+    # other, to the last bit
+    import atticsim.pipeline as pipeline
+
+    sc = demo_scenario(["simulation.spinup_days=1"])
+    beside = run_raw(sc, weather=clear_week, start="2025-07-15", end="2025-07-16")
+
+    class InTurn:  # the work done at once, in the caller's thread
+        def __init__(self, work):
+            self.value = work()
+
+        def result(self):
+            return self.value
+
+    monkeypatch.setattr(pipeline, "Beside", InTurn)
+    alone = run_raw(sc, weather=clear_week, start="2025-07-15", end="2025-07-16")
+    for a, b in ((beside.with_fan, alone.with_fan), (beside.without_fan, alone.without_fan)):
+        assert np.array_equal(a.y, b.y) and np.array_equal(a.t, b.t) and a.events == b.events
+
+
+def test_heat_flows_formed_by_blocks_in_threads_are_those_formed_at_once(clear_week):
+    from atticsim.results.metrics import series_flows
+
+    raw = run_raw(demo_scenario(["simulation.spinup_days=1"]), weather=clear_week, start="2025-07-15",
+                  end="2025-07-15", include_no_fan=False)
+    m = raw.with_fan.t.size
+    whole = series_flows(raw.network, raw.with_fan, raw.forcing, rows=m)
+    blocks = series_flows(raw.network, raw.with_fan, raw.forcing, rows=97)  # 15 blocks, two threads
+    for a, b in zip(whole, blocks):
+        assert a.keys() == b.keys()
+        for name in a:
+            assert np.array_equal(a[name], b[name]), name
+
+
+def test_what_the_run_beside_raises_is_raised_to_the_caller():
+    from atticsim.pipeline import Beside
+
+    def fails():
+        raise ZeroDivisionError("no-fan run")
+
+    with pytest.raises(ZeroDivisionError, match="no-fan run"):
+        Beside(fails).result()
+    assert Beside(lambda: 42).result() == 42
+
+
 def test_reused_forcing_is_the_one_a_fresh_build_gives(clear_week):
     # Study points reuse the forcing built for an earlier point on the same weather frame, site, roof and
     # period; the reused channels must equal a fresh build, and another roof must not hit the cache.

@@ -6,6 +6,7 @@ the books integrated with the states; temperatures' maxima and means come from t
 
 from __future__ import annotations
 
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, field
 
 from types import SimpleNamespace
@@ -286,14 +287,24 @@ def series_flows(net, run, forcing, rows: int = FLOW_ROWS):
     temps, m = run.y[:net.n_nodes], run.t.size
     out = {name: np.empty(m) for name in SERIES_FLOWS}
     planes = {name: np.empty((net.n_planes, m)) for name in SERIES_PLANE_FLOWS}
-    for a in range(0, m, rows):
+
+    def block(a):
         b = min(m, a + rows)
         air = SimpleNamespace(**{name: v[which[a:b]] for name, v in per_state.items()})
         q = net.flows(temps[:, a:b], forcing.sample(run.t[a:b]), run.fan[a:b], air)
         for name, column in out.items():
             column[a:b] = q[name]
-        for name, block in planes.items():
-            block[:, a:b] = q[name]
+        for name, rows_p in planes.items():
+            rows_p[:, a:b] = q[name]
+
+    starts = range(0, m, rows)
+    net.packed  # noqa: B018 - built here once, not by two threads at once
+    if len(starts) > 1:  # blocks write apart; the compiled flows let go of the GIL, so two threads share them
+        with ThreadPoolExecutor(max_workers=2, thread_name_prefix="atticsim-flows") as pool:
+            list(pool.map(block, starts))
+    else:
+        for a in starts:
+            block(a)
     return out, planes
 
 
