@@ -110,6 +110,9 @@ def fan_shading(ax, index, fan_on, colour=COLOURS["fan_on"], label="fan running"
     on = np.asarray(fan_on) > 0
     if not on.any():
         return
+    # times as a plain datetime64 array: matplotlib converts that at once, a DatetimeIndex one time at a time
+    # (0.18 s for a week of minutes, measured)
+    index = index.to_numpy() if hasattr(index, "to_numpy") else index
     ax.fill_between(index, 0, 1, where=on, step="post", transform=ax.get_xaxis_transform(), color=colour,
                     alpha=0.28, lw=0, label=label)
 
@@ -276,7 +279,9 @@ def _long_figure(ts, summary, daily, title, units):
 
     d = daily if daily is not None and len(daily) else _daily_from_ts(ts)
     dd = pd.to_datetime(d["date"]) + pd.Timedelta("12h")
-    axd.bar(dd, d["fan_run_hours"], width=0.9, color=COLOURS["run_hours"], label="fan run hours per day")
+    # (as plain arrays: matplotlib converts a pandas column of times one time at a time)
+    axd.bar(dd.to_numpy(), d["fan_run_hours"].to_numpy(), width=0.9, color=COLOURS["run_hours"],
+            label="fan run hours per day")
     axd.set_ylabel("run [h/day]")
     axd.set_ylim(0, max(24.0 * 1.02, 0.0))
     axd.set_yticks([0, 6, 12, 18, 24])
