@@ -11,7 +11,6 @@ This is the Python API the CLI wraps::
 from __future__ import annotations
 
 import dataclasses
-import threading
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -23,6 +22,7 @@ from atticsim.assembly import build_network, controller_from_scenario
 from atticsim.network.model import BOOKS
 from atticsim.hybrid.driver import HybridRun
 from atticsim.hybrid.solve import integrate
+from atticsim.beside import Beside
 
 DAY = 86400.0
 
@@ -170,29 +170,6 @@ def model_notes(scenario) -> list[str]:
     if scenario.simulation.solver == "reference":
         notes.append(f"solver: reference (scipy's LSODA, rtol {scenario.simulation.rtol:g})")
     return notes + scenario.roof.optics()[1]
-
-
-class Beside:
-    """``work()`` run in a thread of its own while the caller goes on; :meth:`result` waits for it and
-    returns what it returned or raises what it raised. A daemon thread: a run stopped meanwhile does not
-    wait for it."""
-
-    def __init__(self, work):
-        self._value, self._error = None, None
-        self._thread = threading.Thread(target=self._run, args=(work,), name="atticsim-beside", daemon=True)
-        self._thread.start()
-
-    def _run(self, work):
-        try:
-            self._value = work()
-        except BaseException as exc:  # noqa: BLE001 - handed to the caller by result()
-            self._error = exc
-
-    def result(self):
-        self._thread.join()
-        if self._error is not None:
-            raise self._error
-        return self._value
 
 
 def _say(progress, stage: str) -> None:

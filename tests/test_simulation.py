@@ -152,17 +152,6 @@ def test_heat_flows_formed_by_blocks_in_threads_are_those_formed_at_once(clear_w
             assert np.array_equal(a[name], b[name]), name
 
 
-def test_what_the_run_beside_raises_is_raised_to_the_caller():
-    from atticsim.pipeline import Beside
-
-    def fails():
-        raise ZeroDivisionError("no-fan run")
-
-    with pytest.raises(ZeroDivisionError, match="no-fan run"):
-        Beside(fails).result()
-    assert Beside(lambda: 42).result() == 42
-
-
 def test_reused_forcing_is_the_one_a_fresh_build_gives(clear_week):
     # Study points reuse the forcing built for an earlier point on the same weather frame, site, roof and
     # period; the reused channels must equal a fresh build, and another roof must not hit the cache.

@@ -8,9 +8,9 @@ with their types and time zone). Every number is written to the decimals its uni
 
 from __future__ import annotations
 
-import threading
 
 from atticsim.results.output import write_json
+from atticsim.beside import ahead
 
 #: Decimals written for a column by its unit ending (the first ending that matches; the longer endings come
 #: before the ones they end with). Chosen by what the figure means, not by what the solver carries:
@@ -204,45 +204,6 @@ def _batches(frame, index: bool, for_text: bool, time_unit: str, rows: int | Non
         yield pa.RecordBatch.from_arrays(arrays, names=names)
 
 
-def _ahead(items, depth: int = 2):
-    """``items`` (an iterator) produced in a thread of its own, up to ``depth`` ahead of the caller: a table's
-    next batch is converted (numpy, which lets go of the GIL) while the writer encodes and writes the last
-    one (Arrow, which does too). The items and their order are the same; what the producer raises is raised
-    here, and a caller that stops early stops the producer."""
-    import queue
-
-    out = queue.Queue(maxsize=depth)
-    done, stop = object(), threading.Event()
-
-    def produce():
-        try:
-            for item in items:
-                while not stop.is_set():
-                    try:
-                        out.put((item, None), timeout=0.1)
-                        break
-                    except queue.Full:
-                        continue
-                if stop.is_set():
-                    return
-            out.put((done, None))
-        except BaseException as exc:  # noqa: BLE001 - handed to the caller below
-            out.put((done, exc))
-
-    thread = threading.Thread(target=produce, name="atticsim-batches", daemon=True)
-    thread.start()
-    try:
-        while True:
-            item, error = out.get()
-            if item is done:
-                if error is not None:
-                    raise error
-                return
-            yield item
-    finally:
-        stop.set()
-
-
 def _needs_quotes(text: str) -> bool:
     return any(c in text for c in ',"\r\n')
 
@@ -268,7 +229,7 @@ def write_csv(frame, path, index: bool = False, time_unit: str = "s") -> None:
         _needs_quotes(str(v)) for c in text_cols for v in c.dropna().unique())
     options = pcsv.WriteOptions(quoting_style="needed" if quote else "none",
                                 quoting_header="needed" if quote else "none")
-    batches = _ahead(_batches(frame, index, True, time_unit))
+    batches = ahead(_batches(frame, index, True, time_unit))
     first = next(batches)
     with pcsv.CSVWriter(str(path), first.schema, write_options=options) as writer:
         writer.write_batch(first)
@@ -282,7 +243,7 @@ def write_parquet(frame, path, index: bool = True) -> None:
     import pyarrow as pa
     import pyarrow.parquet as pq
 
-    batches = _ahead(_batches(frame, index, False, "s", rows=PARQUET_ROWS))
+    batches = ahead(_batches(frame, index, False, "s", rows=PARQUET_ROWS))
     first = next(batches)
     # dictionary encoding only where values repeat (states, words), not for the numbers and times: on the demo
     # year it cost 0.35 s and made the file larger, 48 MB against 41 MB

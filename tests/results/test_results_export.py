@@ -247,49 +247,7 @@ def test_every_chunk_of_a_column_has_one_type(tmp_path):
     assert back["ceiling_heat_gain_w"].iloc[-1] == 1e300 and back["fan"].iloc[-1] == "on"
 
 
-# --- the next batch converted while the last one is written (export._ahead) ---------------------------------
-
-def test_batches_made_ahead_come_in_order_and_whole():
-    from atticsim.results.export import _ahead
-
-    assert list(_ahead(iter(range(1000)), depth=2)) == list(range(1000))
-    assert list(_ahead(iter([]))) == []
-
-
-def test_a_batch_that_fails_fails_the_writer_and_a_writer_that_stops_stops_the_batches():
-    import threading
-
-    from atticsim.results.export import _ahead
-
-    def failing():
-        yield 1
-        raise ValueError("column 7: cannot convert")
-
-    got = []
-    with pytest.raises(ValueError, match="column 7"):
-        for item in _ahead(failing()):
-            got.append(item)
-    assert got == [1]
-
-    made = []
-
-    def endless():
-        i = 0
-        while True:
-            made.append(i)
-            yield i
-            i += 1
-
-    before = threading.active_count()
-    it = _ahead(endless(), depth=2)
-    assert [next(it) for _ in range(3)] == [0, 1, 2]
-    it.close()  # the writer failed (a full disk): the producer must not go on
-    for _ in range(200):
-        if threading.active_count() == before:
-            break
-        threading.Event().wait(0.01)
-    assert threading.active_count() == before and len(made) <= 3 + 2 + 1
-
+# --- the next batch converted while the last one is written (atticsim.beside.ahead) ---------------------
 
 def test_a_year_written_with_batches_ahead_is_the_file_written_one_batch_at_a_time(tmp_path, monkeypatch):
     # a table of several chunks, written through the thread and then in the caller alone: the same bytes
@@ -301,7 +259,7 @@ def test_a_year_written_with_batches_ahead_is_the_file_written_one_batch_at_a_ti
                           "fan_on": (rng.random(len(idx)) > 0.6).astype(int)}, index=idx)
     export.write_csv(frame, tmp_path / "a.csv", index=True)
     export.write_parquet(frame, tmp_path / "a.parquet")
-    monkeypatch.setattr(export, "_ahead", lambda items, depth=2: items)
+    monkeypatch.setattr(export, "ahead", lambda items, depth=2: items)
     export.write_csv(frame, tmp_path / "b.csv", index=True)
     export.write_parquet(frame, tmp_path / "b.parquet")
     assert (tmp_path / "a.csv").read_bytes() == (tmp_path / "b.csv").read_bytes()
