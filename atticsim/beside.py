@@ -16,18 +16,22 @@ import threading
 
 
 class Beside:
-    """``work()`` run in a thread of its own while the caller goes on; :meth:`result` waits for it and
-    returns what it returned or raises what it raised. A daemon thread: a run stopped meanwhile does not
-    wait for it."""
+    """``work(cancel)`` run in a thread of its own while the caller goes on; :meth:`result` waits for it and
+    returns what it returned or raises what it raised. ``cancel`` is a :class:`threading.Event` the work
+    looks at between its steps: :meth:`stop` sets it and waits, so that a caller that fails (a run stopped
+    by a signal) never leaves the work running while Python shuts down (compiled code running on in a
+    daemon thread can crash the interpreter at its exit: measured, a run stopped by SIGTERM ended with
+    SIGSEGV about one time in four before it waited)."""
 
     def __init__(self, work):
         self._value, self._error = None, None
+        self.cancel = threading.Event()
         self._thread = threading.Thread(target=self._run, args=(work,), name="atticsim-beside", daemon=True)
         self._thread.start()
 
     def _run(self, work):
         try:
-            self._value = work()
+            self._value = work(self.cancel)
         except BaseException as exc:  # noqa: BLE001 - handed to the caller by result()
             self._error = exc
 
@@ -37,6 +41,14 @@ class Beside:
             raise self._error
         return self._value
 
+    def stop(self) -> None:
+        """Ask the work to end at its next step and wait for it (what it raised is dropped)."""
+        self.cancel.set()
+        self._thread.join()
+
+    @property
+    def running(self) -> bool:
+        return self._thread.is_alive()
 
 
 def ahead(items, depth: int = 2):
@@ -77,3 +89,4 @@ def ahead(items, depth: int = 2):
             yield item
     finally:
         stop.set()
+        thread.join()  # within one item (or 0.1 s): nothing left running while the process exits

@@ -53,7 +53,7 @@ class RawRuns:
     notes: list = field(default_factory=list)
 
 
-def _spin_up(network, forcing, controller, period, y, days, simulation):
+def _spin_up(network, forcing, controller, period, y, days, simulation, cancel=None):
     """Repeat the period's first day ``days`` times to approach a periodic start state.
 
     The books are reset after each repetition; the returned state is the start state of the run (the
@@ -64,7 +64,7 @@ def _spin_up(network, forcing, controller, period, y, days, simulation):
     for _ in range(days):
         t1 = period.t_start + span
         run = integrate(network, forcing, controller, period.t_start, t1, y, np.array([period.t_start, t1]),
-                        simulation)
+                        simulation, cancel=cancel)
         y = run.y_end.copy()
         y[n_nodes:] = 0.0
     return y
@@ -239,13 +239,14 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
 
     words = period_words(period)
 
-    def one(enabled: bool, outputs=output_times, stage=""):
+    def one(enabled: bool, outputs=output_times, stage="", cancel=None):
         net = network if enabled else build_network(no_fan_scenario, pressure=pressure)
         ctl = controller if enabled else None
         _say(progress, stage)
-        y_start = _spin_up(net, forcing, ctl, period, y0.copy(), sim.spinup_days, sim)
+        y_start = _spin_up(net, forcing, ctl, period, y0.copy(), sim.spinup_days, sim, cancel)
         report = (lambda fraction: progress(stage, fraction)) if progress is not None and stage else None
-        run = integrate(net, forcing, ctl, period.t_start, period.t_end, y_start, outputs, sim, progress=report)
+        run = integrate(net, forcing, ctl, period.t_start, period.t_end, y_start, outputs, sim, progress=report,
+                        cancel=cancel)
         if report is not None:
             report(1.0)
         return run, y_start
@@ -254,13 +255,18 @@ def run_raw(scenario, weather=None, start=None, end=None, include_no_fan=True, m
     key = _no_fan_key(no_fan_scenario, frame, period, pressure) if include_no_fan and reuse_no_fan else None
     # the no-fan run, when one is needed, goes on in a thread beside the fan's (the compiled solver lets go
     # of the GIL, so on a machine with two cores the two take the time of the longer); it says nothing
-    beside = (Beside(lambda: one(False, no_fan_outputs))
+    beside = (Beside(lambda cancel: one(False, no_fan_outputs, cancel=cancel))
               if include_no_fan and (key is None or key not in _NO_FAN_RUNS) else None)
-    with_fan, y_fan = one(scenario.fan.enabled, output_times,
-                          f"simulating {words} " + ("with the fan" if scenario.fan.enabled else "(fan disabled)"))
-    if beside is not None:
-        _say(progress, f"simulating {words} without the fan")  # (what is left of it)
-        without_fan, y_nofan = beside.result()
+    try:
+        with_fan, y_fan = one(scenario.fan.enabled, output_times,
+                              f"simulating {words} " + ("with the fan" if scenario.fan.enabled else "(fan disabled)"))
+        if beside is not None:
+            _say(progress, f"simulating {words} without the fan")  # (what is left of it)
+            without_fan, y_nofan = beside.result()
+    except BaseException:
+        if beside is not None:
+            beside.stop()  # ended here, not left running in compiled code while the process exits
+        raise
     if key is not None:
         if beside is not None:
             while len(_NO_FAN_RUNS) >= _NO_FAN_KEEP:

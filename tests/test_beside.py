@@ -9,12 +9,28 @@ from atticsim.beside import Beside, ahead
 
 
 def test_what_the_run_beside_raises_is_raised_to_the_caller():
-    def fails():
+    def fails(cancel):
         raise ZeroDivisionError("no-fan run")
 
     with pytest.raises(ZeroDivisionError, match="no-fan run"):
         Beside(fails).result()
-    assert Beside(lambda: 42).result() == 42
+    assert Beside(lambda cancel: 42).result() == 42
+
+
+def test_work_beside_that_is_stopped_ends_at_its_next_step():
+    steps = []
+
+    def work(cancel):
+        while not cancel.is_set():
+            steps.append(1)
+            cancel.wait(0.01)
+        return "ended"
+
+    job = Beside(work)
+    threading.Event().wait(0.05)
+    assert job.running
+    job.stop()
+    assert not job.running and steps
 
 
 def test_batches_made_ahead_come_in_order_and_whole():

@@ -1,5 +1,6 @@
 """Whole-run checks: energy books, exact event location, and a clear summer day against field data."""
 
+import time
 from dataclasses import replace
 
 import numpy as np
@@ -9,6 +10,7 @@ import pytest
 from atticsim.forcing.synthetic import DEMO_CLIMATES, synthetic_weather
 from atticsim.scenario import demo_scenario
 from atticsim.network.kernel import FORCING_BASE
+from atticsim.hybrid.solve import integrate
 from atticsim.pipeline import run_raw, simulate
 
 
@@ -127,7 +129,7 @@ def test_the_no_fan_run_beside_the_fans_is_the_run_made_alone(clear_week, monkey
 
     class InTurn:  # the work done at once, in the caller's thread
         def __init__(self, work):
-            self.value = work()
+            self.value = work(None)
 
         def result(self):
             return self.value
@@ -136,6 +138,49 @@ def test_the_no_fan_run_beside_the_fans_is_the_run_made_alone(clear_week, monkey
     alone = run_raw(sc, weather=clear_week, start="2025-07-15", end="2025-07-16")
     for a, b in ((beside.with_fan, alone.with_fan), (beside.without_fan, alone.without_fan)):
         assert np.array_equal(a.y, b.y) and np.array_equal(a.t, b.t) and a.events == b.events
+
+
+def test_a_fan_run_that_fails_ends_the_no_fan_run_beside_it(clear_week, monkeypatch):
+    # a run stopped (Ctrl-C, SIGTERM) while its no-fan run goes on in a thread: that thread ends before the
+    # exception leaves run_raw, at its next step, and never finishes its period
+    import threading
+
+    import atticsim.pipeline as pipeline
+
+    from atticsim.hybrid.driver import RunCancelled
+
+    ended = []
+
+    def integrate(*args, **kw):
+        if kw.get("progress") is not None:  # the fan's run (it reports progress)
+            threading.Event().wait(0.2)  # the no-fan run is under way meanwhile
+            raise KeyboardInterrupt
+        if kw["cancel"].wait(30.0):  # a long no-fan run, between two of its steps
+            ended.append("cancelled")
+            raise RunCancelled("cancelled")
+        raise AssertionError("never cancelled")
+
+    monkeypatch.setattr(pipeline, "integrate", integrate)
+    t0 = time.monotonic()
+    with pytest.raises(KeyboardInterrupt):
+        run_raw(demo_scenario(["simulation.spinup_days=0"]), weather=clear_week, start="2025-07-14",
+                end="2025-07-17", progress=lambda *a: None)
+    assert not [t for t in threading.enumerate() if t.name == "atticsim-beside"]
+    assert ended == ["cancelled"] and time.monotonic() - t0 < 10.0
+
+
+def test_a_run_whose_cancel_is_set_ends_at_its_next_step(clear_week):
+    import threading
+
+    from atticsim.hybrid.driver import RunCancelled
+
+    raw = run_raw(demo_scenario(["simulation.spinup_days=0"]), weather=clear_week, start="2025-07-15",
+                  end="2025-07-15", include_no_fan=False)
+    cancel = threading.Event()
+    cancel.set()
+    with pytest.raises(RunCancelled, match="cancelled at t = "):
+        integrate(raw.network, raw.forcing, None, raw.period.t_start, raw.period.t_end,
+                  raw.with_fan.y[:, 0].copy(), raw.output_times, demo_scenario([]).simulation, cancel=cancel)
 
 
 def test_heat_flows_formed_by_blocks_in_threads_are_those_formed_at_once(clear_week):

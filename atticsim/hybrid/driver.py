@@ -115,8 +115,12 @@ def _solve_air(network, airflow, forcing, y, t, fan, speed):
                          temp_room=u[_T_ROOM], speed=speed)
 
 
+class RunCancelled(Exception):
+    """A run ended early because its ``cancel`` event was set (:func:`simulate_hybrid`)."""
+
+
 def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_times, stepper,
-                    fallback=None, progress=None) -> HybridRun:
+                    fallback=None, progress=None, cancel=None) -> HybridRun:
     """Integrate the hybrid system from t_start to t_end.
 
     Parameters
@@ -141,6 +145,9 @@ def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_tim
     progress : callable, optional
         ``progress(fraction)`` is called with the share of the period done [0-1] at most about every simulated
         day (for a progress bar).
+    cancel : threading.Event, optional
+        Set by another thread to end the run at its next step (:class:`RunCancelled` is raised): a run in a
+        thread of its own ends before the process does, never inside compiled code while Python shuts down.
     """
     airflow = getattr(network, "airflow", None)  # None: no air flows (a bare network)
     update = airflow.update_interval if airflow is not None else math.inf
@@ -161,6 +168,8 @@ def simulate_hybrid(network, forcing, controller, t_start, t_end, y0, output_tim
     span = max(t_end - t_start, 1e-9)
     reported = t
     while t < t_end - 1e-9:
+        if cancel is not None and cancel.is_set():
+            raise RunCancelled(f"cancelled at t = {t:.0f} s")
         if airflow is not None and t >= min(next_air, motor_change) - 1e-9:
             next_air = (math.floor(t / update + 1e-9) + 1) * update if math.isfinite(update) else math.inf
             motor_change = motor.next_change(t)

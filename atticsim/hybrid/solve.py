@@ -11,10 +11,10 @@ from atticsim.hybrid.reference import ReferenceStepper
 
 
 def integrate(network, forcing, controller, t_start, t_end, y0, output_times, simulation,
-              progress=None) -> HybridRun:
+              progress=None, cancel=None) -> HybridRun:
     """:func:`simulate_hybrid` with the stepper the scenario's ``simulation`` settings ask for: the compiled
     stepper (``solver = "fast"``; the reference takes over where it cannot go on, or when the outputs are
-    not on one regular grid) or the reference stepper (``"reference"``); ``progress`` as there."""
+    not on one regular grid) or the reference stepper (``"reference"``); ``progress`` and ``cancel`` as there."""
     out = np.ascontiguousarray(output_times, dtype=float)
     out_y = np.empty((len(y0), out.size))
 
@@ -23,17 +23,17 @@ def integrate(network, forcing, controller, t_start, t_end, y0, output_times, si
 
     if simulation.solver != "fast":
         return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, reference(out_y),
-                               progress=progress)
+                               progress=progress, cancel=cancel)
     try:
         stepper = CompiledStepper(network, forcing, out, out_y, tol=simulation.fast_tolerance,
                                   check_step=min(60.0, simulation.max_step))
     except ValueError as exc:
         run = simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, reference(out_y),
-                              progress=progress)
+                              progress=progress, cancel=cancel)
         run.notes.append(f"the reference solver ran: {exc}")
         return run
     return simulate_hybrid(network, forcing, controller, t_start, t_end, y0, out, stepper, fallback=reference,
-                           progress=progress)
+                           progress=progress, cancel=cancel)
 
 
 def run_fast(network, forcing, t_start, t_end, y0, output_times, controller=None, **settings) -> HybridRun:
