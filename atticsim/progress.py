@@ -195,4 +195,5 @@ def announced(writers: dict, stages) -> dict:
 
         return announced_write
 
-    return {name: wrap(name, write) for name, write in writers.items()}
+    # (one drawn in a child process is not announced from there: the child keeps off the terminal)
+    return {name: write if getattr(write, "apart", False) else wrap(name, write) for name, write in writers.items()}

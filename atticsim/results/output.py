@@ -25,13 +25,16 @@ import json
 import math
 import os
 import shutil
+import signal
 import socket
 import sys
 import time
+import warnings
 from pathlib import Path
 
 from atticsim import stopping
 from atticsim.errors import OutputError, WriteFailure
+from atticsim.processes import worker_init
 
 LOCK = ".atticsim-lock"
 #: Prefix of the temporary files and folders a run writes inside its claimed folder.
@@ -167,7 +170,9 @@ class OutputClaim:
         Parameters
         ----------
         writers : dict
-            file name -> callable(path) that writes that file.
+            file name -> callable(path) that writes that file, in order. Writers marked with :func:`apart`
+            (the figures) run in a child process started first, while the others before them run here;
+            the writers after them run once the child is done (the report page reads the figures).
 
         Returns
         -------
@@ -175,16 +180,19 @@ class OutputClaim:
             The files written (in their final place).
         """
         tmp = self.tmp_path("files")
+        child = None
         try:
             tmp.mkdir()
+            apart = {name: w for name, w in writers.items() if getattr(w, "apart", False)}
+            child = ApartWriters([(w, tmp / name) for name, w in apart.items()])
             for name, write in writers.items():
-                try:
-                    write(tmp / name)
-                except OSError as exc:
-                    if isinstance(exc, WriteFailure):
-                        raise
-                    raise WriteFailure(exc.errno, f"{self.out}: cannot write {name}: {_os_reason(exc)}; nothing "
-                                                  f"was written") from None
+                if name in apart:
+                    if child is not None and not child.wait():  # (once; False: the child did not write them)
+                        for again_name, again in apart.items():
+                            self._write_one(again, tmp, again_name)
+                    child = None
+                    continue
+                self._write_one(write, tmp, name)
             with stopping.held():  # a stop dropped by a finaliser is raised here; none cuts the moves in half
                 for name in writers:
                     os.replace(tmp / name, self.out / name)
@@ -194,9 +202,20 @@ class OutputClaim:
         except OSError as exc:
             raise WriteFailure(exc.errno, f"{self.out}: cannot write the files: {_os_reason(exc)}") from None
         finally:
+            if child is not None:
+                child.stop()  # nothing may still be writing into the folder removed next
             shutil.rmtree(tmp, ignore_errors=True)
         self.committed = True
         return [self.out / name for name in writers]
+
+    def _write_one(self, write, tmp: Path, name: str) -> None:
+        try:
+            write(tmp / name)
+        except OSError as exc:
+            if isinstance(exc, WriteFailure):
+                raise
+            raise WriteFailure(exc.errno, f"{self.out}: cannot write {name}: {_os_reason(exc)}; nothing "
+                                          f"was written") from None
 
     def release(self, failed: bool | None = None) -> None:
         """Give the folder up. After a failure (``failed``, or nothing written yet), remove the temporary files
@@ -338,6 +357,90 @@ def _older_leftovers(out: Path) -> list[str]:
         return []
     return [f"{out.parent / name}: looks like the unfinished files of a run of an earlier atticsim version that was "
             f"stopped while writing into {out.name}; delete it if no such run is going on" for name in found]
+
+
+def apart(write):
+    """The writer ``write`` marked to run in a child process while the writers before it run in this one
+    (:meth:`OutputClaim.write`): for the figures, whose drawing holds the GIL (a thread would gain nothing)
+    and reads only what the run computed. Off Linux it runs here, in turn."""
+    write.apart = True
+    return write
+
+
+class ApartWriters:
+    """Writers ``[(write, path), ...]`` run in a child process forked from this one (nothing to pickle: the
+    child has the run's results as they are).
+
+    The child ends with this process (:func:`atticsim.processes.worker_init`), writes nothing on the
+    terminal (its output goes to the null device, so it never waits on a lock a thread of this process held
+    at the fork) and reports by its exit status alone. :meth:`wait` says whether it wrote every file; a
+    child that failed leaves the writing to this process, which then meets the failure itself and reports it.
+    """
+
+    def __init__(self, jobs):
+        self.pid = None
+        if not jobs or not sys.platform.startswith("linux"):  # (forking is safe for this on Linux, tested there)
+            return
+        parent = os.getpid()
+        for stream in (sys.stdout, sys.stderr):
+            try:
+                stream.flush()
+            except (OSError, ValueError):
+                pass
+        held = {signal.SIGINT, signal.SIGTERM, signal.SIGHUP}
+        signal.pthread_sigmask(signal.SIG_BLOCK, held)  # no stop raised in the child before it is quiet
+        try:
+            with warnings.catch_warnings():  # (Python 3.12 warns about forking a process with threads: the
+                warnings.simplefilter("ignore", DeprecationWarning)  # child uses no lock they could hold)
+                pid = os.fork()
+        except BaseException:
+            signal.pthread_sigmask(signal.SIG_UNBLOCK, held)
+            raise
+        if pid == 0:
+            code = 1
+            try:
+                _quiet_child(parent)
+                signal.pthread_sigmask(signal.SIG_UNBLOCK, held)
+                for write, path in jobs:
+                    write(path)
+                code = 0
+            except BaseException:  # noqa: BLE001 - reported by the exit status; the parent writes instead
+                pass
+            finally:
+                os._exit(code)
+        self.pid = pid
+        signal.pthread_sigmask(signal.SIG_UNBLOCK, held)  # a stop asked for meanwhile is raised here
+
+    def wait(self) -> bool:
+        """Wait for the child; True when it wrote every file (False too when there is no child)."""
+        if self.pid is None:
+            return False
+        _, status = os.waitpid(self.pid, 0)
+        self.pid = None
+        return os.waitstatus_to_exitcode(status) == 0
+
+    def stop(self) -> None:
+        """End the child now, if it still runs, and reap it."""
+        if self.pid is None:
+            return
+        try:
+            os.kill(self.pid, signal.SIGKILL)
+        except ProcessLookupError:
+            pass
+        try:
+            os.waitpid(self.pid, 0)
+        except ChildProcessError:
+            pass
+        self.pid = None
+
+
+def _quiet_child(parent: int) -> None:
+    worker_init(parent)  # SIGTERM and SIGHUP: their default action
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
+    null = os.open(os.devnull, os.O_WRONLY)
+    os.dup2(null, 1)
+    os.dup2(null, 2)
+    sys.stdout = sys.stderr = open(null, "w", closefd=False)  # fresh objects: no lock held at the fork
 
 
 def write_outputs(out, writers: dict, force: bool = False) -> list[Path]:

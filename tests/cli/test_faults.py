@@ -127,6 +127,19 @@ def test_signal_while_writing_leaves_nothing(tmp_path, sig, code):
     assert not out.exists()  # no hidden temporary folder left behind either
 
 
+def test_signal_while_a_year_is_written_ends_its_figures_child_and_leaves_nothing(tmp_path):
+    # a year's figures are drawn in a child process while its tables are written (results.output.apart)
+    out = tmp_path / "r"
+    proc = start(["run", "--months", "year", "--out", out])
+    assert wait_for(lambda: len(tmp_files(out)) > 0), "the run never started writing"
+    proc.send_signal(signal.SIGTERM)
+    _, err = proc.communicate(timeout=60)
+    assert proc.returncode == 143, err
+    assert "stopped by SIGTERM" in err.strip().splitlines()[-1]
+    assert not out.exists()
+    assert not children(proc.pid)
+
+
 def test_sigkill_while_writing_is_cleaned_up_by_the_next_run(tmp_path):
     out = tmp_path / "r"
     proc = start(["run", *MONTH, "--out", out])

@@ -1,6 +1,7 @@
 """Output folders: claimed by one run at a time, written all at once, nothing left by a failure, what a killed
 run left removed by the next claim."""
 
+import os
 import signal
 import sys
 
@@ -8,7 +9,7 @@ import pytest
 
 from atticsim import stopping
 from atticsim.errors import InputError, InterruptedRun, OutputError, WriteFailure
-from atticsim.results.output import LOCK, claim_output, write_outputs
+from atticsim.results.output import LOCK, apart, claim_output, write_outputs
 
 
 def test_a_claim_is_exclusive_and_released(tmp_path):
@@ -128,3 +129,78 @@ def test_a_stop_during_a_held_block_waits_for_its_end(no_stop):
 def test_without_a_signal_nothing_is_raised(tmp_path, no_stop):
     stopping.raise_if_stopped()
     assert [p.name for p in write_outputs(tmp_path / "o", {"a.txt": lambda p: p.write_text("x")})] == ["a.txt"]
+
+
+# --- writers run in a child process (results.output.apart) -----------------------------------------------------
+
+def _gone(pid: int) -> bool:
+    """The process has ended and been reaped (no entry left, not even a zombie's)."""
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return True
+    return False
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="figures are drawn apart on Linux only")
+def test_writers_apart_run_in_a_child_and_the_ones_after_them_see_their_files(tmp_path):
+    seen = {}
+
+    def whose(path):
+        path.write_text(str(os.getpid()))
+
+    def page(path):  # after the figures: they must be there
+        seen.update({name: (path.parent / name).read_text() for name in ("a.png", "b.png")})
+        path.write_text("page")
+
+    files = write_outputs(tmp_path / "o", {"t.csv": whose, "a.png": apart(lambda p: whose(p)),
+                                           "b.png": apart(lambda p: whose(p)), "r.html": page})
+    assert [p.name for p in files] == ["t.csv", "a.png", "b.png", "r.html"]
+    child = (tmp_path / "o" / "a.png").read_text()
+    assert child != str(os.getpid()) and (tmp_path / "o" / "b.png").read_text() == child
+    assert (tmp_path / "o" / "t.csv").read_text() == str(os.getpid())
+    assert seen == {"a.png": child, "b.png": child}
+    assert _gone(int(child))  # ended and reaped
+
+
+def test_a_child_that_fails_leaves_its_files_to_this_process(tmp_path):
+    parent = os.getpid()
+
+    def only_here(path):
+        if os.getpid() != parent:
+            raise RuntimeError("no figures in the child")  # e.g. the child ran out of memory
+        path.write_text("drawn here")
+
+    write_outputs(tmp_path / "o", {"a.png": apart(only_here)})
+    assert (tmp_path / "o" / "a.png").read_text() == "drawn here"
+
+
+def test_a_failure_here_stops_the_child_and_leaves_nothing(tmp_path):
+    import time
+
+    def slow(path):
+        (tmp_path / "child.pid").write_text(str(os.getpid()))
+        time.sleep(30)  # a child still drawing when the run fails
+        path.write_text("late")
+
+    def full_disk_later(path):
+        for _ in range(500):  # once the child is drawing
+            if (tmp_path / "child.pid").exists():
+                break
+            time.sleep(0.01)
+        raise OSError(28, "No space left on device")
+
+    t0 = time.monotonic()
+    with pytest.raises(WriteFailure, match="cannot write t.csv: no space left"):
+        write_outputs(tmp_path / "o", {"t.csv": full_disk_later, "a.png": apart(slow)})
+    assert time.monotonic() - t0 < 20.0  # the child was not waited for
+    assert not (tmp_path / "o").exists() and _gone(int((tmp_path / "child.pid").read_text()))
+
+
+def test_a_childs_write_failure_is_met_and_reported_here(tmp_path):
+    def full_disk(path):
+        raise OSError(28, "No space left on device")
+
+    with pytest.raises(WriteFailure, match="cannot write a.png: no space left"):
+        write_outputs(tmp_path / "o", {"a.png": apart(full_disk)})
+    assert not (tmp_path / "o").exists()
