@@ -123,10 +123,25 @@ def book_against_rates():
 def sensor_step():
     import numpy as np
 
-    from atticsim.forcing.build import build_forcing
     from atticsim.hybrid.solve import run_fast
-    from atticsim.network.model import BOOKS
+
+    net, forcing, y0, t_out, expected = sensor_step_setup()
+    run = run_fast(net, forcing, 0.0, 200.0, y0, t_out)
+    worst = float(np.max(np.abs(run.y[net.index["sensor"]] - expected)))
+    k = int(np.searchsorted(t_out, 25.0))
+    return Comparison(float(run.y[net.index["sensor"], k]), float(expected[k]),
+                      note="largest difference over the 200 s: "
+                           + ("under 0.0001 K" if worst < 1e-4 else f"{worst:.4f} K"))
+
+
+def sensor_step_setup():
+    """The sensor's step (the case above; its test runs it with the reference solver): (network, forcing, y0,
+    output instants over 200 s, the analytic first-order response T_a + (T_s0 - T_a) exp(-t / tau) there)."""
+    import numpy as np
+
     from atticsim.assembly import build_network
+    from atticsim.forcing.build import build_forcing
+    from atticsim.network.model import BOOKS
     from atticsim.validation.houses import constant_weather, demo_house
 
     sc = demo_house({"attic": {"ridge_height": 2.5, "air_layers": 1},
@@ -142,13 +157,7 @@ def sensor_step():
     y0[net.index["sensor"]] = 20.0
     net.air = net.airflow.solve(40.0, 30.0, 3.0, False)
     t_out = np.arange(0.0, 201.0, 5.0)
-    run = run_fast(net, forcing, 0.0, 200.0, y0, t_out)
-    expected = 40.0 - 20.0 * np.exp(-t_out / 25.0)
-    worst = float(np.max(np.abs(run.y[net.index["sensor"]] - expected)))
-    k = int(np.searchsorted(t_out, 25.0))
-    return Comparison(float(run.y[net.index["sensor"], k]), float(expected[k]),
-                      note="largest difference over the 200 s: "
-                           + ("under 0.0001 K" if worst < 1e-4 else f"{worst:.4f} K"))
+    return net, forcing, y0, t_out, 40.0 - 20.0 * np.exp(-t_out / 25.0)
 
 
 class DrivenRC:

@@ -10,7 +10,6 @@ its invented weather. Kept short: a month or a year of the demo house, a four-po
 """
 
 import errno
-import os
 import resource
 import signal
 import subprocess

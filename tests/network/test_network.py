@@ -4,19 +4,13 @@ import numpy as np
 import pytest
 from scipy.optimize import brentq
 
-from atticsim.forcing.build import Forcing, build_forcing
+from atticsim.forcing.build import Forcing
 from atticsim.network.model import BOOKS
 from atticsim.assembly import build_network
 from atticsim.scenario import demo_scenario
-from atticsim.validation.solver import DrivenRC
+from atticsim.validation.solver import DrivenRC, sensor_step_setup
 from atticsim.hybrid.driver import simulate_hybrid
 from atticsim.hybrid.reference import ReferenceStepper
-
-from conftest import make_weather
-
-
-def _forcing(scenario, frame, meta):
-    return build_forcing(frame, meta, scenario)
 
 
 def reference_run(net, forcing, t_start, t_end, y0, t_out, rtol):
@@ -26,23 +20,10 @@ def reference_run(net, forcing, t_start, t_end, y0, t_out, rtol):
 
 
 def test_sensor_step_response_is_first_order():
-    # First-order RC step response (analytic): T_s(t) = T_a + (T_s0 - T_a) exp(-t / tau).
-    # The attic air node is made enormous (and unventilated) so it holds its temperature: 1e9 m3 is beyond the
-    # schema's physical bounds, so it is set after validation (model_copy does not validate).
-    sc = demo_scenario(["attic.ridge_height=2.5", "attic.air_layers=1", "vents.passive_ach=0",
-                        "fan.enabled=false", 'sensor.time_constant="25 s"'])
-    sc = sc.model_copy(update={"attic": sc.attic.model_copy(update={"volume": 1e9})})
-    net = build_network(sc)
-    frame, meta = make_weather(np.full(4, 30.0))
-    forcing = _forcing(sc, frame, meta)
-    y0 = np.zeros(net.n_nodes + len(BOOKS))
-    y0[:net.n_nodes] = 30.0
-    y0[net.index["air"]] = 40.0
-    y0[net.index["sensor"]] = 20.0
-    net.air = net.airflow.solve(40.0, 30.0, 3.0, False)
-    t_out = np.arange(0.0, 201.0, 5.0)
+    # First-order RC step response (analytic): T_s(t) = T_a + (T_s0 - T_a) exp(-t / tau), by the reference
+    # solver on the validation case's set-up (the case runs the fast one)
+    net, forcing, y0, t_out, expected = sensor_step_setup()
     run = reference_run(net, forcing, 0.0, 200.0, y0, t_out, rtol=1e-9)
-    expected = 40.0 - 20.0 * np.exp(-t_out / 25.0)
     assert np.max(np.abs(run.y[net.index["sensor"]] - expected)) < 2e-3
 
 
